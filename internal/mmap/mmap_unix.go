@@ -1,0 +1,24 @@
+//go:build unix && !nommap
+
+package mmap
+
+import (
+	"os"
+
+	"golang.org/x/sys/unix"
+)
+
+// canMap reports whether this build maps files rather than reading them.
+const canMap = true
+
+// load maps the first size bytes of f read-only and shared.
+func load(f *os.File, size int) ([]byte, bool, error) {
+	b, err := unix.Mmap(int(f.Fd()), 0, size, unix.PROT_READ, unix.MAP_SHARED)
+	if err != nil {
+		return nil, false, err
+	}
+	return b, true, nil
+}
+
+// unmap releases a mapping made by load.
+func unmap(b []byte) error { return unix.Munmap(b) }

@@ -1,0 +1,164 @@
+package lm
+
+import "math"
+
+// Model is a compact, read-only back-off n-gram model laid out for lookup
+// straight from a model file's bytes (see LoadSection). It is immutable and safe
+// for concurrent use by any number of goroutines.
+type Model struct {
+	order, vocab int
+	qbits        int
+	bos, eos     uint32
+	unk          uint32
+	lv           []level
+	tree         []vec // unigram maximum tree, finest level first
+}
+
+type level struct {
+	n                 int
+	size              int // number of entries (the vocabulary size at order 1)
+	probBook, bowBook codebook
+	words, probs      vec
+	// successors of this level's entries in the next level
+	has   rankBits
+	start vec
+	bow   vec
+	big   rankBits
+	top   vec
+}
+
+// Order returns the highest n-gram order.
+func (m *Model) Order() int { return m.order }
+
+// VocabSize returns the number of word IDs, special tokens included.
+func (m *Model) VocabSize() int { return m.vocab }
+
+// QuantBits returns the code width of the stored values (0 = lossless).
+func (m *Model) QuantBits() int { return m.qbits }
+
+// Specials returns the IDs of <s>, </s> and <unk>.
+func (m *Model) Specials() (bos, eos, unk uint32) { return m.bos, m.eos, m.unk }
+
+// NGrams returns the number of stored n-grams per order, unigrams first.
+func (m *Model) NGrams() []int {
+	out := make([]int, m.order)
+	for i := range m.lv {
+		out[i] = m.lv[i].size
+	}
+	return out
+}
+
+func (l *level) prob(i int) float64 { return l.probBook.value(l.probs.at(i)) }
+
+// children returns the successor group [lo, hi) of entry e in the next level,
+// its context index and back-off weight. ok is false when e has no successors.
+func (m *Model) children(l *level, e int) (lo, hi, c int, ok bool) {
+	if l.n >= m.order || e < 0 || e >= l.size || !l.has.get(e) {
+		return 0, 0, 0, false
+	}
+	c = l.has.rank1(e)
+	if c+1 >= l.start.n {
+		return 0, 0, 0, false
+	}
+	lo, hi = int(l.start.at(c)), int(l.start.at(c+1))
+	if hi > m.lv[l.n].size || lo > hi {
+		return 0, 0, 0, false
+	}
+	return lo, hi, c, true
+}
+
+func (l *level) bowAt(c int) float64 { return l.bowBook.value(l.bow.at(c)) }
+
+// search returns the position of word w in [lo, hi) of level l (sorted by word), or -1.
+func (l *level) search(lo, hi int, w uint32) int {
+	p := l.lowerBound(lo, hi, w)
+	if p < hi && l.words.at(p) == uint64(w) {
+		return p
+	}
+	return -1
+}
+
+// lowerBound returns the first position in [lo, hi) whose word is ≥ w.
+func (l *level) lowerBound(lo, hi int, w uint32) int {
+	x := uint64(w)
+	for lo < hi {
+		mid := int(uint(lo+hi) >> 1)
+		if l.words.at(mid) < x {
+			lo = mid + 1
+		} else {
+			hi = mid
+		}
+	}
+	return lo
+}
+
+// node is a context found in the model: its successor group and back-off weight.
+type node struct {
+	lo, hi int
+	bow    float64
+	lvl    int // level index of the successors
+	ctx    int // context index in the parent level
+}
+
+// contexts fills dst with the successor groups of every suffix of ctx that is
+// a context in the model, longest first. It returns the filled part.
+func (m *Model) contexts(ctx []uint32, dst *[MaxOrder]node) []node {
+	if k := m.order - 1; len(ctx) > k {
+		ctx = ctx[len(ctx)-k:]
+	}
+	out := dst[:0]
+	for s := 0; s < len(ctx); s++ {
+		h := ctx[s:]
+		if h[0] >= uint32(m.vocab) {
+			continue
+		}
+		e := int(h[0])
+		found := true
+		for j := 1; j < len(h); j++ {
+			lo, hi, _, ok := m.children(&m.lv[j-1], e)
+			if !ok {
+				found = false
+				break
+			}
+			p := m.lv[j].search(lo, hi, h[j])
+			if p < 0 {
+				found = false
+				break
+			}
+			e = p
+		}
+		if !found {
+			continue
+		}
+		l := &m.lv[len(h)-1]
+		lo, hi, c, ok := m.children(l, e)
+		if !ok {
+			continue
+		}
+		out = append(out, node{lo: lo, hi: hi, bow: l.bowAt(c), lvl: len(h), ctx: c})
+	}
+	return out
+}
+
+// LogProb returns ln p(w | ctx) by the back-off rule, using at most the last
+// Order()-1 IDs of ctx (oldest first). Unknown IDs give -Inf for w and are
+// treated as unseen in the context. Cost: O(order²) binary searches.
+func (m *Model) LogProb(ctx []uint32, w uint32) float64 {
+	if w >= uint32(m.vocab) {
+		return math.Inf(-1)
+	}
+	var buf [MaxOrder]node
+	return m.score(m.contexts(ctx, &buf), w)
+}
+
+func (m *Model) score(nodes []node, w uint32) float64 {
+	acc := 0.0
+	for _, nd := range nodes {
+		l := &m.lv[nd.lvl]
+		if p := l.search(nd.lo, nd.hi, w); p >= 0 {
+			return acc + l.prob(p)
+		}
+		acc += nd.bow
+	}
+	return acc + m.lv[0].prob(int(w))
+}

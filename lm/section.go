@@ -1,0 +1,439 @@
+package lm
+
+import (
+	"encoding/binary"
+	"fmt"
+	"math"
+	"slices"
+
+	"github.com/keyloom/keyloom/internal/format"
+)
+
+// Layout of an n-gram section (all little-endian; see FORMAT.md in this directory):
+//
+//	header   40 bytes: version, order, vocab size, quantization bits, top-list
+//	                   length, IDs of <s>, </s>, <unk>, directory length, zero
+//	directory 32 bytes per array: tag, width, count, offset, words
+//	arrays   8-byte aligned packed vectors (64-bit words, one spare word each)
+const (
+	sectionVersion = 1
+	headerSize     = 40
+	dirEntrySize   = 32
+	// TopListLen is the number of best successors kept in probability order
+	// for every context with more successors than that.
+	TopListLen = 8
+	// treeFanout is the branching factor of the unigram maximum tree.
+	treeFanout = 32
+)
+
+// Array tags: kind<<8 | order.
+const (
+	tagProbBook = 1
+	tagBowBook  = 2
+	tagWords    = 3
+	tagProbs    = 4
+	tagHas      = 5 // per entry: has successors at the next order
+	tagHasRank  = 6
+	tagStart    = 7 // per context: first successor (context count + 1 values)
+	tagBow      = 8 // per context: back-off weight code
+	tagBig      = 9 // per context: has a top list
+	tagBigRank  = 10
+	tagTop      = 11 // top lists: offsets inside the successor group
+	tagTree     = 16 // 16+level: unigram maximum tree
+)
+
+func tag(kind, order int) uint32 { return uint32(kind<<8 | order) }
+
+// LayoutOptions controls AppendSection.
+type LayoutOptions struct {
+	// QuantBits is the code width of log-probabilities and back-off weights:
+	// 4..16 quantizes through per-order codebooks, 0 stores float64 values
+	// losslessly. The zero value means lossless; build tools default to 8.
+	QuantBits int
+}
+
+type arr struct {
+	tag   uint32
+	width uint
+	n     int
+	words []uint64
+}
+
+// AppendSection lays b out as an n-gram section and appends it to dst.
+func AppendSection(dst []byte, b *Backoff, opts LayoutOptions) ([]byte, error) {
+	q := opts.QuantBits
+	if q != 0 && (q < 4 || q > 16) {
+		return nil, fmt.Errorf("%w: %d (want 0 or 4..16)", ErrQuantBits, q)
+	}
+	N := b.Order()
+	if N < 1 || N > MaxOrder {
+		return nil, fmt.Errorf("%w: %d", ErrOrder, N)
+	}
+	V := len(b.Vocab)
+	if V > MaxVocab {
+		return nil, ErrVocabTooLarge
+	}
+	bos, eos, unk := b.specials()
+	var arrs []arr
+	add := func(t uint32, width uint, vals []uint64) {
+		arrs = append(arrs, arr{tag: t, width: width, n: len(vals), words: packVec(vals, width)})
+	}
+	wbits := bitsFor(uint64(max(V-1, 0)))
+	var unigramCodes []uint64
+	var probBook0 codebook
+	for n := 1; n <= N; n++ {
+		lv := &b.Levels[n-1]
+		var pb, bb codebook
+		if q > 0 {
+			pb = trainCodebook(lv.LogP, q)
+			var bows []float64
+			for i, x := range lv.Bow {
+				if x != 0 || (n < N && hasChildren(b, n, i)) {
+					bows = append(bows, x)
+				}
+			}
+			bb = trainCodebook(append(bows, 0), q)
+			add(tag(tagProbBook, n), 64, floatBits(pb))
+			add(tag(tagBowBook, n), 64, floatBits(bb))
+		}
+		codes := make([]uint64, lv.Len())
+		for i, x := range lv.LogP {
+			codes[i] = pb.encode(x)
+		}
+		if n == 1 {
+			unigramCodes, probBook0 = codes, pb
+		} else {
+			ws := make([]uint64, lv.Len())
+			for i := range ws {
+				ws[i] = uint64(lv.Key(i)[n-1])
+			}
+			add(tag(tagWords, n), wbits, ws)
+		}
+		add(tag(tagProbs, n), pb.width(), codes)
+		if n == N {
+			continue
+		}
+		// Successor groups of this level's entries in the next level.
+		next := &b.Levels[n]
+		has := make([]bool, lv.Len())
+		var start, bows []uint64
+		var big []bool
+		var top []uint64
+		maxGroup := 0
+		type grp struct{ lo, hi int }
+		var groups []grp
+		for g := 0; g < next.Len(); {
+			h := next.Key(g)[:n]
+			e := g
+			for e < next.Len() && equalIDs(next.Key(e)[:n], h) {
+				e++
+			}
+			p := lv.Find(h)
+			if p < 0 {
+				return nil, fmt.Errorf("lm: %d-gram %v has successors but is not in the model", n, h)
+			}
+			has[p] = true
+			groups = append(groups, grp{g, e})
+			maxGroup = max(maxGroup, e-g)
+			g = e
+		}
+		// groups are in entry order because both levels are sorted.
+		nextCodes := make([]uint64, next.Len())
+		nb := pbNext(b, n+1, q)
+		for i, x := range next.LogP {
+			nextCodes[i] = nb.encode(x)
+		}
+		gi := 0
+		for p := range lv.Len() {
+			if !has[p] {
+				continue
+			}
+			g := groups[gi]
+			gi++
+			start = append(start, uint64(g.lo))
+			bows = append(bows, bb.encode(lv.Bow[p]))
+			isBig := g.hi-g.lo > TopListLen
+			big = append(big, isBig)
+			if isBig {
+				idx := make([]int, g.hi-g.lo)
+				for i := range idx {
+					idx[i] = i
+				}
+				slices.SortStableFunc(idx, func(x, y int) int {
+					vx, vy := nb.value(nextCodes[g.lo+x]), nb.value(nextCodes[g.lo+y])
+					switch {
+					case vx > vy:
+						return -1
+					case vx < vy:
+						return 1
+					}
+					return x - y // IDs ascend inside a group
+				})
+				for _, i := range idx[:TopListLen] {
+					top = append(top, uint64(i))
+				}
+			}
+		}
+		start = append(start, uint64(next.Len()))
+		hw, hs := buildRank(has)
+		arrs = append(arrs, arr{tag: tag(tagHas, n), width: 1, n: len(has), words: hw})
+		add(tag(tagHasRank, n), 32, hs)
+		add(tag(tagStart, n), bitsFor(uint64(next.Len())), start)
+		add(tag(tagBow, n), bb.width(), bows)
+		bw, bs := buildRank(big)
+		arrs = append(arrs, arr{tag: tag(tagBig, n), width: 1, n: len(big), words: bw})
+		add(tag(tagBigRank, n), 32, bs)
+		add(tag(tagTop, n), bitsFor(uint64(max(maxGroup-1, 0))), top)
+	}
+	// Unigram maximum tree: level l holds the best code of each run of 32 nodes below.
+	below := unigramCodes
+	for lvl := 1; len(below) > treeFanout; lvl++ {
+		up := make([]uint64, (len(below)+treeFanout-1)/treeFanout)
+		for i := range up {
+			best := below[i*treeFanout]
+			for _, c := range below[i*treeFanout : min((i+1)*treeFanout, len(below))] {
+				if probBook0.value(c) > probBook0.value(best) {
+					best = c
+				}
+			}
+			up[i] = best
+		}
+		add(tag(tagTree+lvl, 1), probBook0.width(), up)
+		below = up
+	}
+
+	// Serialize.
+	base := len(dst)
+	off := headerSize + dirEntrySize*len(arrs)
+	off = (off + 7) &^ 7
+	var hdr [headerSize]byte
+	le := binary.LittleEndian
+	for i, v := range []uint32{sectionVersion, uint32(N), uint32(V), uint32(q), TopListLen, bos, eos, unk, uint32(len(arrs)), 0} {
+		le.PutUint32(hdr[4*i:], v)
+	}
+	dst = append(dst, hdr[:]...)
+	for _, a := range arrs {
+		var d [dirEntrySize]byte
+		le.PutUint32(d[0:], a.tag)
+		le.PutUint32(d[4:], uint32(a.width))
+		le.PutUint64(d[8:], uint64(a.n))
+		le.PutUint64(d[16:], uint64(off))
+		le.PutUint64(d[24:], uint64(len(a.words)))
+		dst = append(dst, d[:]...)
+		off += 8 * len(a.words)
+	}
+	for (len(dst)-base)%8 != 0 {
+		dst = append(dst, 0)
+	}
+	for _, a := range arrs {
+		for _, w := range a.words {
+			dst = le.AppendUint64(dst, w)
+		}
+	}
+	return dst, nil
+}
+
+func hasChildren(b *Backoff, n, i int) bool {
+	next := &b.Levels[n]
+	k := b.Levels[n-1].Key(i)
+	lo, hi := 0, next.Len()
+	for lo < hi {
+		mid := int(uint(lo+hi) >> 1)
+		if slices.Compare(next.Key(mid)[:n], k) < 0 {
+			lo = mid + 1
+		} else {
+			hi = mid
+		}
+	}
+	return lo < next.Len() && equalIDs(next.Key(lo)[:n], k)
+}
+
+// pbNext returns the probability codebook that AppendSection uses for order n.
+func pbNext(b *Backoff, n, q int) codebook {
+	if q == 0 {
+		return nil
+	}
+	return trainCodebook(b.Levels[n-1].LogP, q)
+}
+
+func floatBits(cb codebook) []uint64 {
+	out := make([]uint64, len(cb))
+	for i, x := range cb {
+		out[i] = math.Float64bits(x)
+	}
+	return out
+}
+
+// LoadSection returns a Model reading the n-gram section b in place: no table
+// is copied, so b must stay valid (and unchanged) while the Model is used.
+// Opening checks the header and every array's bounds; the values inside the
+// arrays are range-checked as they are read, and Check verifies them all.
+func LoadSection(b []byte) (*Model, error) {
+	le := binary.LittleEndian
+	if len(b) < headerSize {
+		return nil, corrupt(0, "section of %d bytes is shorter than its header", len(b))
+	}
+	var h [10]uint32
+	for i := range h {
+		h[i] = le.Uint32(b[4*i:])
+	}
+	if h[0] != sectionVersion {
+		return nil, fmt.Errorf("%w: section version %d, this library reads %d", ErrSectionVersion, h[0], sectionVersion)
+	}
+	N, V, q, topT := int(h[1]), int(h[2]), int(h[3]), int(h[4])
+	switch {
+	case N < 1 || N > MaxOrder:
+		return nil, corrupt(4, "order %d", N)
+	case V < 3 || V > MaxVocab:
+		return nil, corrupt(8, "vocabulary size %d", V)
+	case q != 0 && (q < 4 || q > 16):
+		return nil, corrupt(12, "quantization bits %d", q)
+	case topT != TopListLen:
+		return nil, corrupt(16, "top list length %d", topT)
+	case int(h[5]) >= V || int(h[6]) >= V || int(h[7]) >= V:
+		return nil, corrupt(20, "special token id out of range")
+	}
+	nd := int(h[8])
+	if nd > (len(b)-headerSize)/dirEntrySize {
+		return nil, corrupt(32, "directory of %d entries does not fit", nd)
+	}
+	dirEnd := headerSize + nd*dirEntrySize
+	arrays := make(map[uint32]vec, nd)
+	for i := range nd {
+		d := b[headerSize+i*dirEntrySize:]
+		t, width := le.Uint32(d), uint(le.Uint32(d[4:]))
+		n, off, words := le.Uint64(d[8:]), le.Uint64(d[16:]), le.Uint64(d[24:])
+		at := headerSize + i*dirEntrySize
+		switch {
+		case width == 0 || width > 64:
+			return nil, corrupt(at, "array %#x: width %d", t, width)
+		case n > uint64(len(b))*8:
+			return nil, corrupt(at, "array %#x: %d values cannot fit", t, n)
+		case off%8 != 0 || off < uint64(dirEnd) || off > uint64(len(b)):
+			return nil, corrupt(at, "array %#x: offset %d", t, off)
+		case words > (uint64(len(b))-off)/8:
+			return nil, corrupt(at, "array %#x: %d words past the end", t, words)
+		case words < uint64(vecWords(int(n), width)):
+			return nil, corrupt(at, "array %#x: %d words hold fewer than %d values", t, words, n)
+		}
+		if _, dup := arrays[t]; dup {
+			return nil, corrupt(at, "array %#x repeated", t)
+		}
+		w := format.Uint64s(b[off : off+words*8])
+		arrays[t] = newVec(w, int(n), width)
+	}
+	m := &Model{order: N, vocab: V, qbits: q, bos: h[5], eos: h[6], unk: h[7]}
+	m.lv = make([]level, N)
+	need := func(t uint32, n int, width uint) (vec, error) {
+		v, ok := arrays[t]
+		if !ok {
+			return vec{}, corrupt(0, "array %#x missing", t)
+		}
+		if n >= 0 && v.n != n {
+			return vec{}, corrupt(0, "array %#x holds %d values, want %d", t, v.n, n)
+		}
+		if width > 0 && v.width != width {
+			return vec{}, corrupt(0, "array %#x has width %d, want %d", t, v.width, width)
+		}
+		return v, nil
+	}
+	prev := V
+	for n := 1; n <= N; n++ {
+		l := &m.lv[n-1]
+		l.n = n
+		var err error
+		if q > 0 {
+			if l.probBook, err = loadBook(need, tag(tagProbBook, n), q); err != nil {
+				return nil, err
+			}
+			if l.bowBook, err = loadBook(need, tag(tagBowBook, n), q); err != nil {
+				return nil, err
+			}
+		}
+		cw := l.probBook.width()
+		if n == 1 {
+			if l.probs, err = need(tag(tagProbs, 1), V, cw); err != nil {
+				return nil, err
+			}
+			l.size = V
+		} else {
+			if l.words, err = need(tag(tagWords, n), -1, 0); err != nil {
+				return nil, err
+			}
+			if l.probs, err = need(tag(tagProbs, n), l.words.n, cw); err != nil {
+				return nil, err
+			}
+			l.size = l.words.n
+		}
+		_ = prev
+		prev = l.size
+		if n == N {
+			continue
+		}
+		hv, err := need(tag(tagHas, n), l.size, 1)
+		if err != nil {
+			return nil, err
+		}
+		hr, err := need(tag(tagHasRank, n), l.size/512+1, 32)
+		if err != nil {
+			return nil, err
+		}
+		l.has = rankBits{w: hv.w, samples: hr, n: l.size}
+		if l.start, err = need(tag(tagStart, n), -1, 0); err != nil {
+			return nil, err
+		}
+		C := l.start.n - 1
+		if C < 0 {
+			return nil, corrupt(0, "order %d: empty start array", n)
+		}
+		if l.bow, err = need(tag(tagBow, n), C, l.bowBook.width()); err != nil {
+			return nil, err
+		}
+		bv, err := need(tag(tagBig, n), C, 1)
+		if err != nil {
+			return nil, err
+		}
+		br, err := need(tag(tagBigRank, n), C/512+1, 32)
+		if err != nil {
+			return nil, err
+		}
+		l.big = rankBits{w: bv.w, samples: br, n: C}
+		if l.top, err = need(tag(tagTop, n), -1, 0); err != nil {
+			return nil, err
+		}
+	}
+	// Successor counts must agree with the next level's size.
+	for n := 1; n < N; n++ {
+		l := &m.lv[n-1]
+		if int(l.start.at(l.start.n-1)) != m.lv[n].size {
+			return nil, corrupt(0, "order %d: successor table ends at %d, order %d has %d entries", n, l.start.at(l.start.n-1), n+1, m.lv[n].size)
+		}
+	}
+	for lvl, size := 1, V; size > treeFanout; lvl++ {
+		size = (size + treeFanout - 1) / treeFanout
+		v, err := need(tag(tagTree+lvl, 1), size, m.lv[0].probBook.width())
+		if err != nil {
+			return nil, err
+		}
+		m.tree = append(m.tree, v)
+	}
+	return m, nil
+}
+
+func loadBook(need func(uint32, int, uint) (vec, error), t uint32, q int) (codebook, error) {
+	v, err := need(t, -1, 64)
+	if err != nil {
+		return nil, err
+	}
+	if v.n < 1 || v.n > 1<<q {
+		return nil, corrupt(0, "codebook %#x has %d entries", t, v.n)
+	}
+	cb := make(codebook, v.n)
+	for i := range cb {
+		cb[i] = math.Float64frombits(v.at(i))
+		if math.IsNaN(cb[i]) || (i > 0 && cb[i] < cb[i-1]) {
+			return nil, corrupt(0, "codebook %#x is not sorted", t)
+		}
+	}
+	return cb, nil
+}

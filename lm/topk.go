@@ -1,0 +1,274 @@
+package lm
+
+
+// MaxK is the largest number of results TopK returns.
+const MaxK = 32
+
+// Scored is a word ID with its natural-log probability.
+type Scored struct {
+	ID   uint32
+	LogP float64
+}
+
+// better orders results: higher probability first, then lower ID (byte order
+// of the words), so rankings are deterministic.
+func better(a, b Scored) bool {
+	if a.LogP != b.LogP {
+		return a.LogP > b.LogP
+	}
+	return a.ID < b.ID
+}
+
+// topBuf keeps the k best entries seen, best first.
+type topBuf struct {
+	k   int
+	n   int
+	buf [MaxK]Scored
+}
+
+func (t *topBuf) worst() (Scored, bool) {
+	if t.n < t.k {
+		return Scored{}, false
+	}
+	return t.buf[t.n-1], true
+}
+
+func (t *topBuf) push(s Scored) {
+	if t.n == t.k {
+		if !better(s, t.buf[t.n-1]) {
+			return
+		}
+		t.n--
+	}
+	i := t.n
+	for i > 0 && better(s, t.buf[i-1]) {
+		t.buf[i] = t.buf[i-1]
+		i--
+	}
+	t.buf[i] = s
+	t.n++
+}
+
+func (t *topBuf) has(id uint32) bool {
+	for _, s := range t.buf[:t.n] {
+		if s.ID == id {
+			return true
+		}
+	}
+	return false
+}
+
+// TopK appends to dst the k most probable next words after ctx (oldest
+// first) whose IDs lie in [lo, hi), best first, ties broken by ID. Pass
+// lo=0, hi=VocabSize() for no restriction; a typed prefix's lexicon range
+// restricts the answer to its completions. The special tokens <s>, </s> and
+// <unk> are never returned. k is capped at MaxK.
+//
+// The search never scores the whole vocabulary: it takes the best k of each
+// context's successor group that falls in the range (a prefix of the group's
+// top list, or a scan of the range inside the group) and the best k
+// unigrams in the range from a maximum tree, then scores those candidates
+// exactly. For Kneser-Ney estimates, where a word's probability in a context
+// is never below its backed-off value, this is exact. It does not allocate
+// when dst has room for k results.
+func (m *Model) TopK(ctx []uint32, lo, hi uint32, k int, dst []Scored) []Scored {
+	if k > MaxK {
+		k = MaxK
+	}
+	if hi > uint32(m.vocab) {
+		hi = uint32(m.vocab)
+	}
+	if k <= 0 || lo >= hi {
+		return dst
+	}
+	var nb [MaxOrder]node
+	nodes := m.contexts(ctx, &nb)
+	var seen [MaxK * (MaxOrder + 1)]uint32
+	ns := 0
+	addCand := func(id uint32) {
+		if id == m.bos || id == m.eos || id == m.unk {
+			return
+		}
+		for _, x := range seen[:ns] {
+			if x == id {
+				return
+			}
+		}
+		if ns < len(seen) {
+			seen[ns] = id
+			ns++
+		}
+	}
+	// Candidates from each successor group.
+	for _, nd := range nodes {
+		l := &m.lv[nd.lvl]
+		m.groupTop(l, nd, lo, hi, k+3, addCand)
+	}
+	m.unigramTop(lo, hi, k+3, addCand)
+	var res topBuf
+	res.k = k
+	for _, id := range seen[:ns] {
+		res.push(Scored{ID: id, LogP: m.score(nodes, id)})
+	}
+	return append(dst, res.buf[:res.n]...)
+}
+
+// groupTop calls add for the best k entries of a successor group whose words lie in [lo, hi).
+func (m *Model) groupTop(l *level, nd node, lo, hi uint32, k int, add func(uint32)) {
+	glo, ghi := nd.lo, nd.hi
+	whole := lo == 0 && hi >= uint32(m.vocab)
+	if !whole {
+		glo = l.lowerBound(nd.lo, nd.hi, lo)
+		ghi = l.lowerBound(glo, nd.hi, hi)
+	}
+	if glo >= ghi {
+		return
+	}
+	parent := &m.lv[nd.lvl-1]
+	if whole && ghi-glo > TopListLen && k <= TopListLen {
+		// Big group: its top list holds the best successors in order.
+		if c := nd.ctx; c < parent.big.n && parent.big.get(c) {
+			b := parent.big.rank1(c)
+			for i := 0; i < k && (b*TopListLen+i) < parent.top.n; i++ {
+				off := int(parent.top.at(b*TopListLen + i))
+				if glo+off < ghi {
+					add(uint32(l.words.at(glo + off)))
+				}
+			}
+			return
+		}
+	}
+	var t topBuf
+	t.k = min(k, MaxK)
+	for p := glo; p < ghi; p++ {
+		t.push(Scored{ID: uint32(l.words.at(p)), LogP: l.prob(p)})
+	}
+	for _, s := range t.buf[:t.n] {
+		add(s.ID)
+	}
+}
+
+// heapItem is a node of the unigram maximum tree waiting in the search heap.
+type heapItem struct {
+	val   float64
+	start uint32 // first leaf covered
+	lvl   int8   // 0 = leaf
+	idx   uint32
+}
+
+func itemBefore(a, b heapItem) bool {
+	if a.val != b.val {
+		return a.val > b.val
+	}
+	return a.start < b.start
+}
+
+type itemHeap struct {
+	n   int
+	buf [1024]heapItem
+}
+
+func (h *itemHeap) push(x heapItem) bool {
+	if h.n == len(h.buf) {
+		return false
+	}
+	i := h.n
+	h.buf[i] = x
+	h.n++
+	for i > 0 {
+		p := (i - 1) / 2
+		if !itemBefore(h.buf[i], h.buf[p]) {
+			break
+		}
+		h.buf[i], h.buf[p] = h.buf[p], h.buf[i]
+		i = p
+	}
+	return true
+}
+
+func (h *itemHeap) pop() heapItem {
+	top := h.buf[0]
+	h.n--
+	h.buf[0] = h.buf[h.n]
+	i := 0
+	for {
+		l, r, b := 2*i+1, 2*i+2, i
+		if l < h.n && itemBefore(h.buf[l], h.buf[b]) {
+			b = l
+		}
+		if r < h.n && itemBefore(h.buf[r], h.buf[b]) {
+			b = r
+		}
+		if b == i {
+			break
+		}
+		h.buf[i], h.buf[b] = h.buf[b], h.buf[i]
+		i = b
+	}
+	return top
+}
+
+// treeVal returns the value of node idx at tree level lvl (0 = leaves).
+func (m *Model) treeVal(lvl int, idx uint32) float64 {
+	u := &m.lv[0]
+	if lvl == 0 {
+		return u.prob(int(idx))
+	}
+	return u.probBook.value(m.tree[lvl-1].at(int(idx)))
+}
+
+// unigramTop calls add for the k most probable words in [lo, hi), best
+// first, by a best-first search of the maximum tree.
+func (m *Model) unigramTop(lo, hi uint32, k int, add func(uint32)) {
+	var h itemHeap
+	// Decompose [lo, hi) into maximal aligned tree nodes.
+	span := uint32(1)
+	lvl := 0
+	for lo < hi {
+		upper := lvl == len(m.tree)
+		next := span * treeFanout
+		for lo < hi && (upper || lo%next != 0) && lo+span <= hi {
+			idx := lo / span
+			h.push(heapItem{val: m.treeVal(lvl, idx), start: lo, lvl: int8(lvl), idx: idx})
+			lo += span
+		}
+		for hi > lo && (upper || hi%next != 0) && hi-span >= lo {
+			hi -= span
+			idx := hi / span
+			h.push(heapItem{val: m.treeVal(lvl, idx), start: hi, lvl: int8(lvl), idx: idx})
+		}
+		if upper {
+			break
+		}
+		span = next
+		lvl++
+	}
+	emitted := 0
+	for h.n > 0 && emitted < k {
+		it := h.pop()
+		if it.lvl == 0 {
+			if id := it.idx; id != m.bos && id != m.eos && id != m.unk {
+				add(id)
+				emitted++
+			}
+			continue
+		}
+		cl := int(it.lvl) - 1
+		first := it.idx * treeFanout
+		var size uint32
+		if cl == 0 {
+			size = uint32(m.vocab)
+		} else {
+			size = uint32(m.tree[cl-1].n)
+		}
+		cspan := uint32(1)
+		for range cl {
+			cspan *= treeFanout
+		}
+		for c := first; c < first+treeFanout && c < size; c++ {
+			if !h.push(heapItem{val: m.treeVal(cl, c), start: c * cspan, lvl: int8(cl), idx: c}) {
+				break
+			}
+		}
+	}
+}

@@ -1,0 +1,164 @@
+package trie
+
+import (
+	"bytes"
+	"encoding/binary"
+	"fmt"
+	"math"
+	"unicode/utf8"
+
+	"github.com/blevesearch/vellum"
+)
+
+// Entry is one word of a lexicon as given to [AppendSection].
+type Entry struct {
+	// Word is the folded (lower-cased) key: non-empty, valid UTF-8, at most
+	// MaxWordLen bytes. Its rank among all Words in byte order is its id.
+	Word string
+	// Surface is the usual display form of the word, such as "London" for
+	// "london" or "NASA" for "nasa". The empty string means the same as
+	// Word. It must be valid UTF-8 of at most MaxSurfaceLen bytes.
+	Surface string
+}
+
+// fstRegistrySize is the number of cells of vellum's suffix registry used
+// when building. A larger registry finds more shared suffixes (a smaller
+// FST) at the cost of build memory; it is fixed so that the same entries
+// always give the same bytes.
+const fstRegistrySize = 10000
+
+// AppendSection appends a lexicon section holding entries to dst and returns
+// the extended slice. The entries must be sorted by Word in byte order
+// (as sort.Strings orders them) with no Word repeated; the id of each word
+// is its index in entries. The section is a whole number of 8-byte words
+// long and, if it starts 8-byte aligned, every part inside it is aligned
+// too (see FORMAT.md). The same entries always give the same bytes.
+//
+// It returns an error wrapping [ErrEmptyWord], [ErrInvalidUTF8],
+// [ErrWordTooLong], [ErrUnsorted], [ErrDuplicate] or [ErrTooLarge] naming
+// the offending entry, and then dst is returned unchanged. It costs
+// O(total bytes of the entries) time.
+func AppendSection(dst []byte, entries []Entry) ([]byte, error) {
+	if err := checkEntries(entries); err != nil {
+		return dst, err
+	}
+	fst, err := buildFST(entries)
+	if err != nil {
+		return dst, err
+	}
+
+	base := len(dst)
+	out := append(dst, make([]byte, headerSize)...)
+	var h header
+	h.count = uint32(len(entries))
+	h.blockSize = blockSize
+	for _, e := range entries {
+		h.maxWordLen = max(h.maxWordLen, uint32(len(e.Word)))
+	}
+
+	h.fstOff = uint32(len(out) - base)
+	h.fstLen = uint32(len(fst))
+	out = append(out, fst...)
+	out = padTo(out, base)
+
+	var words []byte
+	var offs []uint32
+	words, offs = appendWords(nil, entries, blockSize)
+	h.blocksOff = uint32(len(out) - base)
+	for _, o := range offs {
+		out = binary.LittleEndian.AppendUint32(out, o)
+	}
+	h.wordsOff = uint32(len(out) - base)
+	h.wordsLen = uint32(len(words))
+	out = append(out, words...)
+	out = padTo(out, base)
+
+	h.caseOff = uint32(len(out) - base)
+	codes := make([]byte, (len(entries)+3)/4)
+	var excIDs, excEnds []uint32
+	var excData []byte
+	for i, e := range entries {
+		c := casingCode(e.Word, e.Surface)
+		codes[i/4] |= c << (2 * (i % 4))
+		if c == caseExcept {
+			excIDs = append(excIDs, uint32(i))
+			excData = append(excData, e.Surface...)
+			excEnds = append(excEnds, uint32(len(excData)))
+		}
+	}
+	out = append(out, codes...)
+	out = padTo(out, base)
+	h.excCount = uint32(len(excIDs))
+	h.excIDOff = uint32(len(out) - base)
+	for _, id := range excIDs {
+		out = binary.LittleEndian.AppendUint32(out, id)
+	}
+	h.excEndOff = uint32(len(out) - base)
+	for _, end := range excEnds {
+		out = binary.LittleEndian.AppendUint32(out, end)
+	}
+	h.excDataOff = uint32(len(out) - base)
+	h.excDataLen = uint32(len(excData))
+	out = append(out, excData...)
+	out = padTo(out, base)
+
+	if len(out)-base > math.MaxUint32 {
+		return dst, fmt.Errorf("%w: section would be %d bytes", ErrTooLarge, len(out)-base)
+	}
+	h.totalLen = uint32(len(out) - base)
+	h.put(out[base : base+headerSize])
+	return out, nil
+}
+
+// checkEntries checks every rule AppendSection states for its entries.
+func checkEntries(entries []Entry) error {
+	if uint64(len(entries)) > MaxWords {
+		return fmt.Errorf("%w: %d words", ErrTooLarge, len(entries))
+	}
+	var total uint64
+	for i, e := range entries {
+		switch {
+		case e.Word == "":
+			return fmt.Errorf("%w: entry %d", ErrEmptyWord, i)
+		case len(e.Word) > MaxWordLen:
+			return fmt.Errorf("%w: entry %d is %d bytes, limit %d", ErrWordTooLong, i, len(e.Word), MaxWordLen)
+		case len(e.Surface) > MaxSurfaceLen:
+			return fmt.Errorf("%w: surface of entry %d is %d bytes, limit %d", ErrWordTooLong, i, len(e.Surface), MaxSurfaceLen)
+		case !utf8.ValidString(e.Word):
+			return fmt.Errorf("%w: entry %d (%q)", ErrInvalidUTF8, i, e.Word)
+		case !utf8.ValidString(e.Surface):
+			return fmt.Errorf("%w: surface of entry %d (%q)", ErrInvalidUTF8, i, e.Surface)
+		case i > 0 && e.Word == entries[i-1].Word:
+			return fmt.Errorf("%w: entry %d (%q)", ErrDuplicate, i, e.Word)
+		case i > 0 && e.Word < entries[i-1].Word:
+			return fmt.Errorf("%w: entry %d (%q) comes after %q", ErrUnsorted, i, e.Word, entries[i-1].Word)
+		}
+		total += uint64(len(e.Word)) + uint64(len(e.Surface))
+	}
+	if total > math.MaxUint32 {
+		return fmt.Errorf("%w: %d words of %d bytes", ErrTooLarge, len(entries), total)
+	}
+	return nil
+}
+
+// buildFST builds the vellum FST mapping each Word to its index.
+func buildFST(entries []Entry) ([]byte, error) {
+	var buf bytes.Buffer
+	bld, err := vellum.New(&buf, &vellum.BuilderOpts{
+		Encoder:           fstVersion,
+		RegistryTableSize: fstRegistrySize,
+		RegistryMRUSize:   2,
+	})
+	if err != nil {
+		return nil, fmt.Errorf("trie: start fst: %w", err)
+	}
+	for i, e := range entries {
+		if err := bld.Insert([]byte(e.Word), uint64(i)); err != nil {
+			return nil, fmt.Errorf("trie: insert %q into fst: %w", e.Word, err)
+		}
+	}
+	if err := bld.Close(); err != nil {
+		return nil, fmt.Errorf("trie: finish fst: %w", err)
+	}
+	return buf.Bytes(), nil
+}

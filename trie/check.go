@@ -1,0 +1,67 @@
+package trie
+
+// Check enumerates every word of the FST in order and compares it, and the
+// id its path gives, with the word table: the i-th word of the FST must be
+// word i of the table and its outputs must sum to i. LoadSection does not do
+// this (it costs a walk over every word, not every state); a model checker
+// or a test can. It returns nil or an error wrapping [ErrCorrupt]. It costs
+// O(total bytes of the words) time and O(MaxWordLen) memory.
+func (l *Lexicon) Check() error {
+	type frame struct {
+		trans []Transition
+		i     int    // next transition to follow
+		sum   uint64 // outputs up to this state
+	}
+	// frames[d] is the state reached after path[:d]; the buffers are reused
+	// from word to word.
+	frames := make([]frame, l.maxWordLen+1)
+	depth := 0
+	path := make([]byte, 0, l.maxWordLen)
+	want := make([]byte, 0, l.maxWordLen)
+	var next uint32 // id of the next word expected
+	enter := func(state int, sum uint64) error {
+		if final, out := l.Final(state); final {
+			want = l.AppendWord(want[:0], next)
+			switch {
+			case next >= l.n:
+				return corrupt("fst", headerSize, "fst holds more than %d words", l.n)
+			case string(path) != string(want):
+				return corrupt("fst", headerSize, "fst word %d is %q, table has %q", next, path, want)
+			case sum+out != uint64(next):
+				return corrupt("fst", headerSize, "fst gives %q id %d, want %d", path, sum+out, next)
+			}
+			next++
+		}
+		if depth == len(frames) {
+			return corrupt("fst", headerSize, "fst path longer than the longest word (%d bytes)", l.maxWordLen)
+		}
+		f := &frames[depth]
+		f.trans = l.AppendTransitions(f.trans[:0], state)
+		f.i, f.sum = 0, sum
+		depth++
+		return nil
+	}
+	if err := enter(l.root, 0); err != nil {
+		return err
+	}
+	for depth > 0 {
+		f := &frames[depth-1]
+		if f.i == len(f.trans) {
+			depth--
+			if depth > 0 {
+				path = path[:len(path)-1]
+			}
+			continue
+		}
+		t := f.trans[f.i]
+		f.i++
+		path = append(path, t.Byte)
+		if err := enter(t.Next, f.sum+t.Out); err != nil {
+			return err
+		}
+	}
+	if next != l.n {
+		return corrupt("fst", headerSize, "fst holds %d words, table has %d", next, l.n)
+	}
+	return nil
+}

@@ -1,0 +1,132 @@
+package trie
+
+import (
+	"iter"
+	"math"
+	"math/bits"
+)
+
+// fstStates is the set of states reachable from the root of a checked FST,
+// as a bitset over addresses.
+type fstStates struct {
+	root int
+	set  []uint64
+}
+
+// all yields the addresses of the states in increasing order. Address 0
+// (the shared final state with no transitions) is not in the set.
+func (st fstStates) all() iter.Seq[int] {
+	return func(yield func(int) bool) {
+		for w, x := range st.set {
+			for x != 0 {
+				if !yield(w*64 + bits.TrailingZeros64(x)) {
+					return
+				}
+				x &= x - 1
+			}
+		}
+	}
+}
+
+// checkFST walks the FST bytes d once, visiting every state reachable from
+// the root, and checks that each state lies inside the FST body, that every
+// multiple-transition state lists its bytes in strictly increasing order,
+// that every state leads to at least one word, that the FST holds exactly n
+// words and that no path sums to an output of n or more. Every transition
+// points to a lower address, so the walk always ends. base is the offset of
+// the FST within the section, for error reports.
+func checkFST(d []byte, codes *[64]byte, n uint32, base int) (fstStates, error) {
+	root, err := fstRoot(d)
+	if err != nil {
+		return fstStates{}, corrupt("fst", base, "%v", err)
+	}
+	if c := readPacked(d[len(d)-16 : len(d)-8]); c != uint64(n) {
+		return fstStates{}, corrupt("fst", base+len(d)-16, "fst records %d words, table has %d", c, n)
+	}
+	st := fstStates{root: root, set: make([]uint64, (len(d)+63)/64)}
+	has := func(a int) bool { return st.set[a/64]&(1<<(a%64)) != 0 }
+
+	// Depth-first visit of every reachable state.
+	stack := []int{root}
+	for len(stack) > 0 {
+		addr := stack[len(stack)-1]
+		stack = stack[:len(stack)-1]
+		if addr == emptyState || has(addr) {
+			continue
+		}
+		s, ok := decodeState(d, codes, addr)
+		if !ok {
+			return st, corrupt("fst", base+addr, "state runs outside the fst")
+		}
+		st.set[addr/64] |= 1 << (addr % 64)
+		prev := -1
+		for i := 0; i < s.n; i++ {
+			c, next, _, ok := s.transition(d, i)
+			if !ok {
+				return st, corrupt("fst", base+addr, "transition %q points outside the fst", c)
+			}
+			if int(c) <= prev {
+				return st, corrupt("fst", base+addr, "transition bytes out of order")
+			}
+			prev = int(c)
+			if next != emptyState && !has(next) {
+				stack = append(stack, next)
+			}
+		}
+	}
+
+	// Count the words and the largest output below each state, lowest
+	// address first: every transition points lower, so the targets of a
+	// state are done before it. rank maps an address to its index among
+	// the reachable states.
+	ranks := make([]uint32, len(st.set))
+	var total uint32
+	for w, x := range st.set {
+		ranks[w] = total
+		total += uint32(bits.OnesCount64(x))
+	}
+	rank := func(a int) uint32 {
+		return ranks[a/64] + uint32(bits.OnesCount64(st.set[a/64]&(1<<(a%64)-1)))
+	}
+	count := make([]uint32, total)  // words below, saturating at math.MaxUint32
+	maxOut := make([]uint64, total) // largest output sum below, saturating
+	for addr := range st.all() {
+		s, _ := decodeState(d, codes, addr) // checked above
+		var cnt uint64
+		var mx uint64
+		if s.final {
+			cnt, mx = 1, s.finalOut
+		}
+		for i := 0; i < s.n; i++ {
+			_, next, out, _ := s.transition(d, i)
+			nc, nm := uint64(1), uint64(0) // the empty final state
+			if next != emptyState {
+				r := rank(next)
+				nc, nm = uint64(count[r]), maxOut[r]
+			}
+			cnt = min(cnt+nc, math.MaxUint32)
+			sum := out + nm
+			if sum < out {
+				sum = math.MaxUint64
+			}
+			mx = max(mx, sum)
+		}
+		if cnt == 0 && !(addr == root && n == 0) {
+			return st, corrupt("fst", base+addr, "state leads to no word")
+		}
+		r := rank(addr)
+		count[r], maxOut[r] = uint32(cnt), mx
+	}
+	rootCount, rootMax := uint64(1), uint64(0)
+	if root != emptyState {
+		r := rank(root)
+		rootCount, rootMax = uint64(count[r]), maxOut[r]
+	}
+	if rootCount != uint64(n) {
+		return st, corrupt("fst", base+root, "fst accepts %d words, table has %d", rootCount, n)
+	}
+	if n > 0 && rootMax >= uint64(n) {
+		return st, corrupt("fst", base+root, "fst gives ids up to %d for %d words", rootMax, n)
+	}
+	return st, nil
+}

@@ -1,0 +1,152 @@
+package trie
+
+// This file holds the whole byte layout of a lexicon section in one place.
+// FORMAT.md describes the same layout byte by byte; change both together.
+
+import "encoding/binary"
+
+// SectionMagic is the 4 bytes every lexicon section starts with.
+const SectionMagic = "KLXw"
+
+// SectionVersion is the layout version this package writes and the only one
+// it reads. A section with any other version is refused with [ErrVersion].
+const SectionVersion uint16 = 1
+
+// MaxWordLen is the longest Word, in bytes, a lexicon can hold. Word lengths
+// are stored in one byte in the word table, so AppendWord never needs more
+// than this much room in dst.
+const MaxWordLen = 255
+
+// MaxSurfaceLen is the longest stored Surface, in bytes.
+const MaxSurfaceLen = 1024
+
+// MaxWords is the largest number of words a lexicon can hold.
+const MaxWords = 1<<31 - 1
+
+// headerSize is the size in bytes of the fixed section header.
+const headerSize = 64
+
+// blockSize is the number of words per front-coded block of the word table.
+// The loader accepts any value from 1 to maxBlockSize recorded in the header;
+// the builder always writes blockSize.
+const blockSize = 16
+
+// maxBlockSize is the largest block size the loader accepts.
+const maxBlockSize = 256
+
+// partAlign is the alignment, in bytes from the start of the section, of
+// every part after the header. The section itself starts 8-byte aligned in
+// the model file, so the uint32 arrays can be read straight from a mapping.
+const partAlign = 8
+
+// Byte offsets of the header fields. All integers are little-endian uint32
+// unless noted.
+const (
+	hMagic      = 0  // [4]byte, SectionMagic
+	hVersion    = 4  // uint16, SectionVersion
+	hFlags      = 6  // uint16, no flags are defined in version 1; must be 0
+	hTotalLen   = 8  // length of the whole section, a multiple of partAlign
+	hCount      = 12 // number of words n
+	hBlockSize  = 16 // uint16, words per front-coded block (1..maxBlockSize)
+	hMaxWordLen = 18 // uint16, length in bytes of the longest word
+	hFSTOff     = 20 // offset of the vellum FST
+	hFSTLen     = 24 // length of the vellum FST
+	hBlocksOff  = 28 // offset of the block offset array: ceil(n/blockSize)+1 uint32
+	hWordsOff   = 32 // offset of the front-coded word bytes
+	hWordsLen   = 36 // length of the front-coded word bytes
+	hCaseOff    = 40 // offset of the 2-bit casing codes: ceil(n/4) bytes
+	hExcCount   = 44 // number of casing exceptions e
+	hExcIDOff   = 48 // offset of the exception word ids: e uint32, ascending
+	hExcEndOff  = 52 // offset of the exception end offsets: e uint32
+	hExcDataOff = 56 // offset of the exception surfaces, concatenated
+	hExcDataLen = 60 // length of the exception surfaces
+)
+
+// Casing codes, two bits per word, word i at bits 2*(i%4) of byte i/4 of the
+// casing part.
+const (
+	caseSame    = 0 // the surface is the word itself
+	caseCapital = 1 // the first rune upper-cased (unicode.ToUpper), the rest as is
+	caseUpper   = 2 // every rune upper-cased (unicode.ToUpper)
+	caseExcept  = 3 // the surface is stored in the exception table
+)
+
+// header is the decoded fixed header of a section.
+type header struct {
+	totalLen   uint32
+	count      uint32
+	blockSize  uint32
+	maxWordLen uint32
+	fstOff     uint32
+	fstLen     uint32
+	blocksOff  uint32
+	wordsOff   uint32
+	wordsLen   uint32
+	caseOff    uint32
+	excCount   uint32
+	excIDOff   uint32
+	excEndOff  uint32
+	excDataOff uint32
+	excDataLen uint32
+}
+
+// put writes h, with the magic and version, into b[:headerSize].
+func (h *header) put(b []byte) {
+	le := binary.LittleEndian
+	copy(b[hMagic:], SectionMagic)
+	le.PutUint16(b[hVersion:], SectionVersion)
+	le.PutUint16(b[hFlags:], 0)
+	le.PutUint32(b[hTotalLen:], h.totalLen)
+	le.PutUint32(b[hCount:], h.count)
+	le.PutUint16(b[hBlockSize:], uint16(h.blockSize))
+	le.PutUint16(b[hMaxWordLen:], uint16(h.maxWordLen))
+	le.PutUint32(b[hFSTOff:], h.fstOff)
+	le.PutUint32(b[hFSTLen:], h.fstLen)
+	le.PutUint32(b[hBlocksOff:], h.blocksOff)
+	le.PutUint32(b[hWordsOff:], h.wordsOff)
+	le.PutUint32(b[hWordsLen:], h.wordsLen)
+	le.PutUint32(b[hCaseOff:], h.caseOff)
+	le.PutUint32(b[hExcCount:], h.excCount)
+	le.PutUint32(b[hExcIDOff:], h.excIDOff)
+	le.PutUint32(b[hExcEndOff:], h.excEndOff)
+	le.PutUint32(b[hExcDataOff:], h.excDataOff)
+	le.PutUint32(b[hExcDataLen:], h.excDataLen)
+}
+
+// get reads the fields of h from b, which holds at least headerSize bytes.
+// It does not check magic or version.
+func (h *header) get(b []byte) {
+	le := binary.LittleEndian
+	h.totalLen = le.Uint32(b[hTotalLen:])
+	h.count = le.Uint32(b[hCount:])
+	h.blockSize = uint32(le.Uint16(b[hBlockSize:]))
+	h.maxWordLen = uint32(le.Uint16(b[hMaxWordLen:]))
+	h.fstOff = le.Uint32(b[hFSTOff:])
+	h.fstLen = le.Uint32(b[hFSTLen:])
+	h.blocksOff = le.Uint32(b[hBlocksOff:])
+	h.wordsOff = le.Uint32(b[hWordsOff:])
+	h.wordsLen = le.Uint32(b[hWordsLen:])
+	h.caseOff = le.Uint32(b[hCaseOff:])
+	h.excCount = le.Uint32(b[hExcCount:])
+	h.excIDOff = le.Uint32(b[hExcIDOff:])
+	h.excEndOff = le.Uint32(b[hExcEndOff:])
+	h.excDataOff = le.Uint32(b[hExcDataOff:])
+	h.excDataLen = le.Uint32(b[hExcDataLen:])
+}
+
+// numBlocks returns the number of front-coded blocks for n words.
+func numBlocks(n, size uint32) uint32 {
+	return uint32((uint64(n) + uint64(size) - 1) / uint64(size))
+}
+
+// align rounds n up to a multiple of partAlign.
+func align(n int) int { return (n + partAlign - 1) &^ (partAlign - 1) }
+
+// padTo appends zero bytes to b until len(b)-base is a multiple of
+// partAlign.
+func padTo(b []byte, base int) []byte {
+	for (len(b)-base)%partAlign != 0 {
+		b = append(b, 0)
+	}
+	return b
+}
