@@ -36,11 +36,20 @@ type hit struct {
 
 // appRule is a multi-letter rule whose typed side occurs in the word.
 type appRule struct {
+	src   int32
 	alpha string
 	la    int
 	lb    int
 	cost  float32
 	ends  uint64 // bit e: β ends at typed position e
+}
+
+// partial is a rule whose intended side has been matched for k bytes,
+// starting at depth from.
+type partial struct {
+	rule int32
+	k    int32
+	from int32
 }
 
 // search is the scratch of one candidate search; it lives in a sync.Pool.
@@ -56,19 +65,24 @@ type search struct {
 	extra    []float32
 	path     []byte
 	ins      []float32
-	rules    []appRule
-	head     [256]int32
-	next     []int32
-	usedLast []byte
+	subQ     []float32 // subQ[j<<8|c]: intended c typed as t[j]; 0 when equal
+	rules    []appRule // sorted by cost
+	first    [256][]int32
+	usedFirst []byte
+	act      []partial // partial rule matches, stacked by depth
+	actStart []int     // act[actStart[d]:actEnd[d]] belongs to depth d
+	actEnd   []int
+	done     []partial // rules completed by the row being computed
 	hits     []hit
 	visited  int
 }
 
 // reset prepares a search of typed (already lower-cased) within budget.
 // Intended words are followed to depth maxDepth.
-func (s *search) reset(ch *channel, lex Lexicon, typed []byte, budget float32, maxDepth int) {
+func (s *search) reset(ch *channel, lex Lexicon, typed string, budget float32, maxDepth int) {
 	s.ch, s.lex, s.budget = ch, lex, budget
-	s.t = append(s.t[:0], typed...)
+	s.t = s.t[:0]
+	s.t = append(s.t, typed...)
 	s.n = len(typed)
 	s.w = s.n + 1
 	s.maxDepth = maxDepth
@@ -87,21 +101,43 @@ func (s *search) reset(ch *channel, lex Lexicon, typed []byte, budget float32, m
 	s.hits = s.hits[:0]
 	s.visited = 0
 	ch.insCosts(s.t, s.ins)
-	// Rules whose typed side occurs in the word, with their end positions.
-	for _, c := range s.usedLast {
-		s.head[c] = -1
+	s.subQ = grow(s.subQ, s.n<<8)
+	for j, tj := range s.t {
+		q := s.subQ[j<<8 : (j+1)<<8]
+		copy(q, ch.sub[tj][:])
+		q[tj] = 0
 	}
-	s.usedLast = s.usedLast[:0]
+	// Rules whose typed side occurs in the word, with their end positions.
+	for _, c := range s.usedFirst {
+		s.first[c] = s.first[c][:0]
+	}
+	s.usedFirst = s.usedFirst[:0]
 	s.rules = s.rules[:0]
-	s.next = s.next[:0]
 	for _, lb := range ch.betaLens {
 		for e := lb; e <= s.n; e++ {
-			list := ch.byBeta[string(s.t[e-lb:e])]
-			for _, ri := range list {
+			for _, ri := range ch.byBeta[string(s.t[e-lb:e])] {
 				s.addRule(ri, e)
 			}
 		}
 	}
+	sortRules(s.rules)
+	for i := range s.rules {
+		c := s.rules[i].alpha[0]
+		if len(s.first[c]) == 0 {
+			s.usedFirst = append(s.usedFirst, c)
+		}
+		s.first[c] = append(s.first[c], int32(i))
+	}
+	s.act = s.act[:0]
+	if cap(s.actEnd) < s.maxDepth+1 {
+		s.actEnd = make([]int, s.maxDepth+1)
+	}
+	s.actEnd = s.actEnd[:s.maxDepth+1]
+	if cap(s.actStart) < s.maxDepth+1 {
+		s.actStart = make([]int, s.maxDepth+1)
+	}
+	s.actStart = s.actStart[:s.maxDepth+1]
+	s.actStart[0], s.actEnd[0] = 0, 0
 	// Row zero: typed bytes before any intended one are extra.
 	r := s.rows[:s.w]
 	r[0] = 0
@@ -121,27 +157,23 @@ func grow(b []float32, n int) []float32 {
 // addRule records that rule ri's typed side ends at e.
 func (s *search) addRule(ri int32, e int) {
 	r := &s.ch.rules[ri]
-	last := r.alpha[len(r.alpha)-1]
-	for i := s.head[last]; i >= 0 && int(i) < len(s.rules); i = s.next[i] {
-		if s.rules[i].alpha == r.alpha && s.rules[i].lb == len(r.beta) && s.rules[i].cost == r.cost {
+	for i := range s.rules {
+		if s.rules[i].src == ri {
 			s.rules[i].ends |= 1 << e
 			return
 		}
 	}
-	found := false
-	for _, c := range s.usedLast {
-		if c == last {
-			found = true
-			break
+	s.rules = append(s.rules, appRule{src: ri, alpha: r.alpha, la: len(r.alpha), lb: len(r.beta), cost: r.cost, ends: 1 << e})
+}
+
+// sortRules orders rules by cost (insertion sort: the lists are short and
+// this allocates nothing).
+func sortRules(r []appRule) {
+	for i := 1; i < len(r); i++ {
+		for j := i; j > 0 && r[j].cost < r[j-1].cost; j-- {
+			r[j], r[j-1] = r[j-1], r[j]
 		}
 	}
-	if !found {
-		s.usedLast = append(s.usedLast, last)
-		s.head[last] = -1
-	}
-	s.rules = append(s.rules, appRule{alpha: r.alpha, la: len(r.alpha), lb: len(r.beta), cost: r.cost, ends: 1 << e})
-	s.next = append(s.next, s.head[last])
-	s.head[last] = int32(len(s.rules) - 1)
 }
 
 // run walks the lexicon from its start state and collects every word
@@ -202,13 +234,14 @@ func (s *search) visit(d int, state int, acc uint64) {
 			}
 		}
 	}
+	for _, p := range s.act[s.actStart[d]:s.actEnd[d]] {
+		add(s.rules[p.rule].alpha[p.k])
+	}
 	for i := range s.rules {
-		r := &s.rules[i]
-		for k := 0; k < r.la && k <= d; k++ {
-			if s.mins[d-k]+r.cost <= budget && string(s.path[d-k:d]) == r.alpha[:k] {
-				add(r.alpha[k])
-			}
+		if m+s.rules[i].cost > budget {
+			break
 		}
+		add(s.rules[i].alpha[0])
 	}
 	for wi, word := range set {
 		for word != 0 {
@@ -220,15 +253,53 @@ func (s *search) visit(d int, state int, acc uint64) {
 				continue
 			}
 			s.path[d] = c
-			if s.computeRow(d+1) <= budget || s.pending(d+1) {
+			base := s.advance(d, c)
+			if s.computeRow(d+1) <= budget || s.actEnd[d+1] > base {
 				s.visit(d+1, next, acc+out)
 			}
+			s.act = s.act[:base]
 		}
 	}
 }
 
-// computeRow fills row d from the rows above it and path[:d], stores and
-// returns its minimum.
+// advance extends the partial rule matches of depth d by byte c into
+// depth d+1 and lists the rules c completes in s.done. It returns where
+// depth d+1's partials start.
+func (s *search) advance(d int, c byte) int {
+	base := len(s.act)
+	s.done = s.done[:0]
+	for i := s.actStart[d]; i < s.actEnd[d]; i++ {
+		p := s.act[i]
+		r := &s.rules[p.rule]
+		if r.alpha[p.k] != c {
+			continue
+		}
+		p.k++
+		if int(p.k) == r.la {
+			s.done = append(s.done, p)
+		} else {
+			s.act = append(s.act, p)
+		}
+	}
+	m := s.mins[d]
+	for _, ri := range s.first[c] {
+		r := &s.rules[ri]
+		if m+r.cost > s.budget {
+			break // first[c] is sorted by cost
+		}
+		p := partial{rule: ri, k: 1, from: int32(d)}
+		if r.la == 1 {
+			s.done = append(s.done, p)
+		} else {
+			s.act = append(s.act, p)
+		}
+	}
+	s.actStart[d+1], s.actEnd[d+1] = base, len(s.act)
+	return base
+}
+
+// computeRow fills row d from the rows above it, path[:d] and the rules in
+// s.done, stores and returns its minimum.
 func (s *search) computeRow(d int) float32 {
 	w, n, ch := s.w, s.n, s.ch
 	c := s.path[d-1]
@@ -242,25 +313,21 @@ func (s *search) computeRow(d int) float32 {
 	if d >= 2 && pc == c {
 		dc = min(dc, ch.delDbl)
 	}
-	hasRules := false
-	if s.head[c] >= 0 && s.containsLast(c) {
+	hasRules := len(s.done) > 0
+	if hasRules {
 		E := s.extra
 		for j := range E {
 			E[j] = inf
 		}
-		for ri := s.head[c]; ri >= 0; ri = s.next[ri] {
-			r := &s.rules[ri]
-			if r.la > d || string(s.path[d-r.la:d]) != r.alpha {
-				continue
-			}
-			base := s.rows[(d-r.la)*w : (d-r.la+1)*w]
+		for _, p := range s.done {
+			r := &s.rules[p.rule]
+			base := s.rows[int(p.from)*w : (int(p.from)+1)*w]
 			for ends := r.ends; ends != 0; ends &= ends - 1 {
 				e := bits.TrailingZeros64(ends)
 				if v := base[e-r.lb] + r.cost; v < E[e] {
 					E[e] = v
 				}
 			}
-			hasRules = true
 		}
 	}
 	v0 := P[0] + dc
@@ -273,13 +340,10 @@ func (s *search) computeRow(d int) float32 {
 	if d >= 2 {
 		T = s.rows[(d-2)*w : (d-1)*w]
 	}
+	subQ := s.subQ
 	for j := 1; j <= n; j++ {
 		tj := s.t[j-1]
-		v := P[j-1]
-		if tj != c {
-			v += ch.sub[tj][c]
-		}
-		v = min(v, P[j]+dc, R[j-1]+s.ins[j-1])
+		v := min(P[j-1]+subQ[(j-1)<<8|int(c)], P[j]+dc, R[j-1]+s.ins[j-1])
 		if T != nil && j >= 2 && c == s.t[j-2] && pc == tj && c != pc {
 			v = min(v, T[j-2]+ch.trans)
 		}
@@ -293,41 +357,15 @@ func (s *search) computeRow(d int) float32 {
 	return m
 }
 
-// containsLast reports whether head[c] was set during this search.
-func (s *search) containsLast(c byte) bool {
-	for _, u := range s.usedLast {
-		if u == c {
-			return true
-		}
-	}
-	return false
-}
-
-// pending reports whether a rule whose intended side has begun at the end
-// of path[:d] could still bring the row back within budget.
-func (s *search) pending(d int) bool {
-	for i := range s.rules {
-		r := &s.rules[i]
-		for k := 1; k < r.la && k <= d; k++ {
-			if s.mins[d-k]+r.cost <= s.budget && string(s.path[d-k:d]) == r.alpha[:k] {
-				return true
-			}
-		}
-	}
-	return false
-}
-
 // distance returns the channel cost of typing typed when intended was
 // meant, by the same row recurrence the search uses.
 func (ch *channel) distance(typed, intended string) float32 {
 	var s search
-	for i := range s.head {
-		s.head[i] = -1
-	}
-	s.reset(ch, nil, []byte(typed), inf, len(intended))
-	for d := 1; d <= len(intended); d++ {
-		s.path[d-1] = intended[d-1]
-		s.computeRow(d)
+	s.reset(ch, nil, typed, inf, len(intended))
+	for d := 0; d < len(intended); d++ {
+		s.path[d] = intended[d]
+		s.advance(d, intended[d])
+		s.computeRow(d + 1)
 	}
 	return s.rows[len(intended)*s.w+s.n]
 }

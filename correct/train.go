@@ -153,6 +153,9 @@ func TrainErrorModel(pairs []Pair, opts TrainOptions) *ErrorModel {
 						continue
 					}
 					key := [2]string{a.String(), b.String()}
+					if !utf8.ValidString(key[0]) || !utf8.ValidString(key[1]) {
+						continue
+					}
 					if !seen[key] {
 						seen[key] = true
 						ruleCount[key]++

@@ -16,7 +16,7 @@ type built struct {
 
 func (x built) lookup(w []byte) (uint32, bool) { return x.b.ID(string(w)) }
 
-func (x built) ids(t *testing.T, words []string) []uint32 {
+func (x built) ids(t testing.TB, words []string) []uint32 {
 	t.Helper()
 	out := make([]uint32, len(words))
 	for i, w := range words {

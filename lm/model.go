@@ -12,6 +12,7 @@ type Model struct {
 	unk          uint32
 	lv           []level
 	tree         []vec // unigram maximum tree, finest level first
+	uniTop       []uint32 // the most probable words, best first (computed at load)
 }
 
 type level struct {

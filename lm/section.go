@@ -417,6 +417,13 @@ func LoadSection(b []byte) (*Model, error) {
 		}
 		m.tree = append(m.tree, v)
 	}
+	m.unigramTop(0, uint32(V), MaxK, func(id uint32) bool {
+		if id == m.bos || id == m.eos || id == m.unk {
+			return false
+		}
+		m.uniTop = append(m.uniTop, id)
+		return true
+	})
 	return m, nil
 }
 

@@ -85,26 +85,33 @@ func (m *Model) TopK(ctx []uint32, lo, hi uint32, k int, dst []Scored) []Scored 
 	nodes := m.contexts(ctx, &nb)
 	var seen [MaxK * (MaxOrder + 1)]uint32
 	ns := 0
-	addCand := func(id uint32) {
+	addCand := func(id uint32) bool {
 		if id == m.bos || id == m.eos || id == m.unk {
-			return
+			return false
 		}
 		for _, x := range seen[:ns] {
 			if x == id {
-				return
+				return true
 			}
 		}
 		if ns < len(seen) {
 			seen[ns] = id
 			ns++
 		}
+		return true
 	}
 	// Candidates from each successor group.
 	for _, nd := range nodes {
 		l := &m.lv[nd.lvl]
-		m.groupTop(l, nd, lo, hi, k+3, addCand)
+		m.groupTop(l, nd, lo, hi, k, addCand)
 	}
-	m.unigramTop(lo, hi, k+3, addCand)
+	if lo == 0 && hi == uint32(m.vocab) && k <= len(m.uniTop) {
+		for _, id := range m.uniTop[:k] {
+			addCand(id)
+		}
+	} else {
+		m.unigramTop(lo, hi, k, addCand)
+	}
 	var res topBuf
 	res.k = k
 	for _, id := range seen[:ns] {
@@ -114,7 +121,7 @@ func (m *Model) TopK(ctx []uint32, lo, hi uint32, k int, dst []Scored) []Scored 
 }
 
 // groupTop calls add for the best k entries of a successor group whose words lie in [lo, hi).
-func (m *Model) groupTop(l *level, nd node, lo, hi uint32, k int, add func(uint32)) {
+func (m *Model) groupTop(l *level, nd node, lo, hi uint32, k int, add func(uint32) bool) {
 	glo, ghi := nd.lo, nd.hi
 	whole := lo == 0 && hi >= uint32(m.vocab)
 	if !whole {
@@ -129,17 +136,20 @@ func (m *Model) groupTop(l *level, nd node, lo, hi uint32, k int, add func(uint3
 		// Big group: its top list holds the best successors in order.
 		if c := nd.ctx; c < parent.big.n && parent.big.get(c) {
 			b := parent.big.rank1(c)
-			for i := 0; i < k && (b*TopListLen+i) < parent.top.n; i++ {
+			got := 0
+			for i := 0; got < k && i < TopListLen && (b*TopListLen+i) < parent.top.n; i++ {
 				off := int(parent.top.at(b*TopListLen + i))
-				if glo+off < ghi {
-					add(uint32(l.words.at(glo + off)))
+				if glo+off < ghi && add(uint32(l.words.at(glo+off))) {
+					got++
 				}
 			}
-			return
+			if got == k {
+				return
+			}
 		}
 	}
 	var t topBuf
-	t.k = min(k, MaxK)
+	t.k = min(k+3, MaxK) // room for the special tokens, which add refuses
 	for p := glo; p < ghi; p++ {
 		t.push(Scored{ID: uint32(l.words.at(p)), LogP: l.prob(p)})
 	}
@@ -219,7 +229,7 @@ func (m *Model) treeVal(lvl int, idx uint32) float64 {
 
 // unigramTop calls add for the k most probable words in [lo, hi), best
 // first, by a best-first search of the maximum tree.
-func (m *Model) unigramTop(lo, hi uint32, k int, add func(uint32)) {
+func (m *Model) unigramTop(lo, hi uint32, k int, add func(uint32) bool) {
 	var h itemHeap
 	// Decompose [lo, hi) into maximal aligned tree nodes.
 	span := uint32(1)
@@ -247,8 +257,7 @@ func (m *Model) unigramTop(lo, hi uint32, k int, add func(uint32)) {
 	for h.n > 0 && emitted < k {
 		it := h.pop()
 		if it.lvl == 0 {
-			if id := it.idx; id != m.bos && id != m.eos && id != m.unk {
-				add(id)
+			if add(it.idx) {
 				emitted++
 			}
 			continue

@@ -2,7 +2,8 @@ package trie
 
 // Check enumerates every word of the FST in order and compares it, and the
 // id its path gives, with the word table: the i-th word of the FST must be
-// word i of the table and its outputs must sum to i. LoadSection does not do
+// word i of the table and its outputs must sum to i, and the outputs along
+// every prefix must sum to the first id below it (which PrefixRange uses). LoadSection does not do
 // this (it costs a walk over every word, not every state); a model checker
 // or a test can. It returns nil or an error wrapping [ErrCorrupt]. It costs
 // O(total bytes of the words) time and O(MaxWordLen) memory.
@@ -20,6 +21,11 @@ func (l *Lexicon) Check() error {
 	want := make([]byte, 0, l.maxWordLen)
 	var next uint32 // id of the next word expected
 	enter := func(state int, sum uint64) error {
+		// The words below state come next, so the smallest is word next:
+		// PrefixRange relies on the path sum being its id.
+		if sum != uint64(next) {
+			return corrupt("fst", headerSize, "path %q sums to %d, want the first id below it, %d", path, sum, next)
+		}
 		if final, out := l.Final(state); final {
 			want = l.AppendWord(want[:0], next)
 			switch {

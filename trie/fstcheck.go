@@ -28,9 +28,26 @@ func (st fstStates) all() iter.Seq[int] {
 	}
 }
 
+// has reports whether the state at address a is in the set.
+func (st fstStates) has(a int) bool {
+	return a >= 0 && a/64 < len(st.set) && st.set[a/64]&(1<<(a%64)) != 0
+}
+
+// count returns the number of states in the set.
+func (st fstStates) count() int {
+	n := 0
+	for _, x := range st.set {
+		n += bits.OnesCount64(x)
+	}
+	return n
+}
+
 // checkFST walks the FST bytes d once, visiting every state reachable from
 // the root, and checks that each state lies inside the FST body, that every
 // multiple-transition state lists its bytes in strictly increasing order,
+// that the smallest continuation from every state adds 0 to the output (a
+// final state has final output 0, any other state's first transition has
+// output 0: true of every FST whose values are the ranks of its keys),
 // that every state leads to at least one word, that the FST holds exactly n
 // words and that no path sums to an output of n or more. Every transition
 // points to a lower address, so the walk always ends. base is the offset of
@@ -44,14 +61,13 @@ func checkFST(d []byte, codes *[64]byte, n uint32, base int) (fstStates, error) 
 		return fstStates{}, corrupt("fst", base+len(d)-16, "fst records %d words, table has %d", c, n)
 	}
 	st := fstStates{root: root, set: make([]uint64, (len(d)+63)/64)}
-	has := func(a int) bool { return st.set[a/64]&(1<<(a%64)) != 0 }
 
 	// Depth-first visit of every reachable state.
 	stack := []int{root}
 	for len(stack) > 0 {
 		addr := stack[len(stack)-1]
 		stack = stack[:len(stack)-1]
-		if addr == emptyState || has(addr) {
+		if addr == emptyState || st.has(addr) {
 			continue
 		}
 		s, ok := decodeState(d, codes, addr)
@@ -59,17 +75,23 @@ func checkFST(d []byte, codes *[64]byte, n uint32, base int) (fstStates, error) 
 			return st, corrupt("fst", base+addr, "state runs outside the fst")
 		}
 		st.set[addr/64] |= 1 << (addr % 64)
+		if s.final && s.finalOut != 0 {
+			return st, corrupt("fst", base+addr, "final output %d, want 0 for ids that are ranks", s.finalOut)
+		}
 		prev := -1
 		for i := 0; i < s.n; i++ {
-			c, next, _, ok := s.transition(d, i)
+			c, next, out, ok := s.transition(d, i)
 			if !ok {
 				return st, corrupt("fst", base+addr, "transition %q points outside the fst", c)
 			}
 			if int(c) <= prev {
 				return st, corrupt("fst", base+addr, "transition bytes out of order")
 			}
+			if i == 0 && !s.final && out != 0 {
+				return st, corrupt("fst", base+addr, "first transition output %d, want 0 for ids that are ranks", out)
+			}
 			prev = int(c)
-			if next != emptyState && !has(next) {
+			if next != emptyState && !st.has(next) {
 				stack = append(stack, next)
 			}
 		}

@@ -9,6 +9,7 @@ import (
 	"strings"
 	"sync"
 	"testing"
+	"unicode/utf8"
 )
 
 // subtlexPath is the SUBTLEX-US word list (Brysbaert & New 2009, word
@@ -133,3 +134,14 @@ func buildEntries(tb testing.TB, entries []Entry) ([]byte, *Lexicon) {
 	}
 	return sec, lex
 }
+
+// smallEntries is the four-word lexicon of the worked example in FORMAT.md.
+var smallEntries = []Entry{
+	{Word: "i", Surface: "I"},
+	{Word: "iphone", Surface: "iPhone"},
+	{Word: "it"},
+	{Word: "nasa", Surface: "NASA"},
+}
+
+// validUTF8 reports whether s is valid UTF-8.
+func validUTF8(s string) bool { return utf8.ValidString(s) }

@@ -139,9 +139,6 @@ func numBlocks(n, size uint32) uint32 {
 	return uint32((uint64(n) + uint64(size) - 1) / uint64(size))
 }
 
-// align rounds n up to a multiple of partAlign.
-func align(n int) int { return (n + partAlign - 1) &^ (partAlign - 1) }
-
 // padTo appends zero bytes to b until len(b)-base is a multiple of
 // partAlign.
 func padTo(b []byte, base int) []byte {
@@ -149,4 +146,47 @@ func padTo(b []byte, base int) []byte {
 		b = append(b, 0)
 	}
 	return b
+}
+
+// layout is where every part of a section goes, computed in uint64 so that
+// no recorded size can overflow it.
+type layout struct {
+	fstOff, fstEnd        uint64
+	blocksOff, wordsOff   uint64
+	wordsEnd, caseOff     uint64
+	caseEnd, excIDOff     uint64
+	excEndOff, excDataOff uint64
+	excDataEnd, total     uint64
+}
+
+// layoutFor returns the placement of the parts of a section of n words in
+// blocks of bs words, an FST of fstLen bytes, wordsLen bytes of front-coded
+// words and e exceptions with excDataLen bytes of surfaces.
+func layoutFor(n, bs uint32, fstLen, wordsLen, e, excDataLen uint64) layout {
+	al := func(x uint64) uint64 { return (x + partAlign - 1) &^ (partAlign - 1) }
+	var l layout
+	l.fstOff = headerSize
+	l.fstEnd = l.fstOff + fstLen
+	l.blocksOff = al(l.fstEnd)
+	l.wordsOff = l.blocksOff + 4*(uint64(numBlocks(n, bs))+1)
+	l.wordsEnd = l.wordsOff + wordsLen
+	l.caseOff = al(l.wordsEnd)
+	l.caseEnd = l.caseOff + (uint64(n)+3)/4
+	l.excIDOff = al(l.caseEnd)
+	l.excEndOff = l.excIDOff + 4*e
+	l.excDataOff = l.excEndOff + 4*e
+	l.excDataEnd = l.excDataOff + excDataLen
+	l.total = al(l.excDataEnd)
+	return l
+}
+
+// padding returns the [start, end) byte ranges of a section that hold
+// alignment padding.
+func (l layout) padding() [][2]uint64 {
+	return [][2]uint64{
+		{l.fstEnd, l.blocksOff},
+		{l.wordsEnd, l.caseOff},
+		{l.caseEnd, l.excIDOff},
+		{l.excDataEnd, l.total},
+	}
 }

@@ -31,7 +31,7 @@ func (l *Lexicon) ID(word string) (uint32, bool) {
 	state := l.root
 	var sum uint64
 	for i := 0; i < len(word); i++ {
-		next, out, ok := l.Step(state, word[i])
+		next, out, ok := stepAt(l.fst, &l.codes, state, word[i])
 		if !ok {
 			return 0, false
 		}
@@ -93,16 +93,11 @@ func (l *Lexicon) Surface(id uint32) string {
 // PrefixRange returns the ids [lo, hi) of all words that start with the
 // bytes of prefix; the range is empty (lo == hi, at the place such words
 // would sort) when there are none. The empty prefix gives [0, Len). It
-// costs two binary searches over the word table's blocks and no
+// walks the FST along prefix and then down the largest transitions to the
+// last word of the range: O(len(prefix) + MaxWordLen) state decodings, no
 // allocation.
 func (l *Lexicon) PrefixRange(prefix string) (lo, hi uint32) {
-	lo = l.words.search(prefix, false, 0)
-	if prefix == "" {
-		return lo, l.n
-	}
-	from := lo / l.words.bs
-	hi = l.words.search(prefix, true, from)
-	return lo, max(hi, lo)
+	return l.prefixRange(prefix)
 }
 
 // Start returns the FST state before any byte: the root. States are plain
@@ -115,11 +110,7 @@ func (l *Lexicon) Start() int { return l.root }
 // word is the sum of the outputs along its path plus the final output of
 // the last state (see Final). It decodes one state and does not allocate.
 func (l *Lexicon) Step(state int, b byte) (next int, out uint64, ok bool) {
-	s, ok := decodeState(l.fst, &l.codes, state)
-	if !ok {
-		return 0, 0, false
-	}
-	return s.step(l.fst, b)
+	return stepAt(l.fst, &l.codes, state, b)
 }
 
 // Final reports whether state ends a word, and the output to add to the

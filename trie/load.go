@@ -15,18 +15,19 @@ import (
 // that every recorded offset and length matches the layout of FORMAT.md and
 // len(b)), the zero padding, the word table (every word decodes within its
 // block, is valid UTF-8 and sorts strictly after the one before it), the
-// casing codes and exception table, and the FST (one walk over every state
+// casing codes and exception table, and the FST: one walk over every state
 // reachable from the root, checking that each lies in bounds, that the FST
-// accepts exactly as many words as the table holds and that no path can
-// give an id outside [0, Len())). It then loads the FST into vellum and
-// replays every transition through it inside a recover, so that the
-// *vellum.FST returned by [Lexicon.FST] is known to read the same states
-// without panicking. It does not compare every FST word with the table;
-// [Lexicon.Check] does.
+// accepts exactly as many words as the table holds, that no path can give
+// an id outside [0, Len()) and that outputs are placed as ranks need. Then
+// vellum itself walks the same states once, inside the project's single
+// recover, and must read each one as this package does, so the *vellum.FST
+// returned by [Lexicon.FST] is known not to panic. It does not compare
+// every FST word with the table; [Lexicon.Check] does.
 //
 // Errors wrap [ErrVersion] for a section of another layout version and
 // [ErrCorrupt] (as a [*FormatError]) for anything else; bad bytes never
-// cause a panic. It costs O(len(b)) time and O(states) temporary memory.
+// cause a panic. It costs O(len(b)) time; it allocates O(states) temporary
+// memory, most of it one small object per FST state in vellum's walk.
 func LoadSection(b []byte) (*Lexicon, error) {
 	h, err := parseHeader(b)
 	if err != nil {
@@ -44,6 +45,7 @@ func LoadSection(b []byte) (*Lexicon, error) {
 		words: wordTable{
 			n:      h.count,
 			bs:     h.blockSize,
+			maxLen: int(h.maxWordLen),
 			blocks: b[h.blocksOff:h.wordsOff],
 			words:  b[h.wordsOff : h.wordsOff+h.wordsLen],
 		},
@@ -129,55 +131,25 @@ func parseHeader(b []byte) (header, error) {
 	return h, nil
 }
 
-// layout is where every part of a section goes, computed in uint64 so that
-// no recorded size can overflow it.
-type layout struct {
-	fstOff, fstEnd       uint64
-	blocksOff, wordsOff  uint64
-	wordsEnd, caseOff    uint64
-	caseEnd, excIDOff    uint64
-	excEndOff, excDataOff uint64
-	excDataEnd, total    uint64
+// vellumState is the part of vellum's decoded state that [vellum.FST.Debug]
+// hands to its callback (as an empty interface).
+type vellumState interface {
+	Address() int
+	Final() bool
+	FinalOutput() uint64
+	NumTransitions() int
+	TransitionAt(i int) byte
+	TransitionFor(b byte) (int, int, uint64)
 }
 
-// layoutFor returns the placement of the parts of a section of n words in
-// blocks of bs words, an FST of fstLen bytes, wordsLen bytes of front-coded
-// words and e exceptions with excDataLen bytes of surfaces.
-func layoutFor(n, bs uint32, fstLen, wordsLen, e, excDataLen uint64) layout {
-	al := func(x uint64) uint64 { return (x + partAlign - 1) &^ (partAlign - 1) }
-	var l layout
-	l.fstOff = headerSize
-	l.fstEnd = l.fstOff + fstLen
-	l.blocksOff = al(l.fstEnd)
-	l.wordsOff = l.blocksOff + 4*(uint64(numBlocks(n, bs))+1)
-	l.wordsEnd = l.wordsOff + wordsLen
-	l.caseOff = al(l.wordsEnd)
-	l.caseEnd = l.caseOff + (uint64(n)+3)/4
-	l.excIDOff = al(l.caseEnd)
-	l.excEndOff = l.excIDOff + 4*e
-	l.excDataOff = l.excEndOff + 4*e
-	l.excDataEnd = l.excDataOff + excDataLen
-	l.total = al(l.excDataEnd)
-	return l
-}
-
-// padding returns the [start, end) byte ranges of a section that hold
-// alignment padding.
-func (l layout) padding() [][2]uint64 {
-	return [][2]uint64{
-		{l.fstEnd, l.blocksOff},
-		{l.wordsEnd, l.caseOff},
-		{l.caseEnd, l.excIDOff},
-		{l.excDataEnd, l.total},
-	}
-}
-
-// loadVellum loads the FST bytes d into vellum and replays every transition
-// and final output of the reachable states through vellum's own decoder,
-// comparing with what this package decoded. vellum does not check offsets
-// before it indexes, so this replay is wrapped in the project's single
-// recover: a panic inside vellum becomes ErrCorrupt. base is the offset of
-// the FST within the section, for error reports.
+// loadVellum loads the FST bytes d into vellum and lets vellum walk every
+// state reachable from the root once (vellum's Debug walk), comparing each
+// state, its final output and every transition with what this package
+// decoded. vellum does not check offsets before it indexes, so the walk is
+// wrapped in the project's single recover: a panic inside vellum becomes
+// ErrCorrupt. checkFST must have accepted d first, so that every address
+// vellum meets is in bounds. base is the offset of the FST within the
+// section, for error reports.
 func loadVellum(d []byte, codes *[64]byte, st fstStates, base int) (f *vellum.FST, err error) {
 	at := base
 	defer func() {
@@ -192,20 +164,40 @@ func loadVellum(d []byte, codes *[64]byte, st fstStates, base int) (f *vellum.FS
 	if f.Start() != st.root {
 		return nil, corrupt("fst", base+len(d)-8, "vellum reads root %d, want %d", f.Start(), st.root)
 	}
-	for addr := range st.all() {
+	visited := 0 // states other than the empty final state
+	err = f.Debug(func(_ int, v any) error {
+		vs, ok := v.(vellumState)
+		if !ok {
+			return corrupt("fst", base, "vellum state of unexpected type %T", v)
+		}
+		addr := vs.Address()
 		at = base + addr
-		s, _ := decodeState(d, codes, addr) // checked by checkFST
-		final, fout := f.IsMatchWithVal(addr)
-		if final != s.final || fout != s.finalOut {
-			return nil, corrupt("fst", at, "vellum reads final=%v/%d, want %v/%d", final, fout, s.final, s.finalOut)
+		s, ok := decodeState(d, codes, addr)
+		if !ok || (addr != emptyState && !st.has(addr)) {
+			return corrupt("fst", at, "vellum reaches state %d, which is not a checked state", addr)
+		}
+		if addr != emptyState {
+			visited++
+		}
+		if vs.Final() != s.final || vs.FinalOutput() != s.finalOut || vs.NumTransitions() != s.n {
+			return corrupt("fst", at, "vellum reads the state differently")
 		}
 		for i := 0; i < s.n; i++ {
 			c, next, out, _ := s.transition(d, i)
-			vnext, vout := f.AcceptWithVal(addr, c)
-			if vnext != next || vout != out {
-				return nil, corrupt("fst", at, "vellum reads transition %q as %d/%d, want %d/%d", c, vnext, vout, next, out)
+			if vc := vs.TransitionAt(i); vc != c {
+				return corrupt("fst", at, "vellum reads transition %d as %q, want %q", i, vc, c)
+			}
+			if _, vnext, vout := vs.TransitionFor(c); vnext != next || vout != out {
+				return corrupt("fst", at, "vellum reads transition %q as %d/%d, want %d/%d", c, vnext, vout, next, out)
 			}
 		}
+		return nil
+	})
+	if err != nil {
+		return nil, err
+	}
+	if visited != st.count() {
+		return nil, corrupt("fst", base, "vellum walks %d states, want %d", visited, st.count())
 	}
 	return f, nil
 }

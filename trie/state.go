@@ -7,8 +7,6 @@ package trie
 // written backwards from their top byte, and every transition points to a
 // lower address, so the states form a DAG whose edges always go down.
 
-import "bytes"
-
 // Sizes fixed by the vellum v1 encoding.
 const (
 	fstHeaderLen = 16 // version uint64, type uint64
@@ -176,18 +174,86 @@ func (s *stateView) transition(d []byte, i int) (b byte, next int, out uint64, o
 	return b, next, out, ok
 }
 
-// step follows the transition on b from the decoded state s.
-func (s *stateView) step(d []byte, b byte) (next int, out uint64, ok bool) {
-	if s.single {
-		if s.ch != b {
+// stepAt follows the transition on b from the state at addr without
+// decoding the rest of the state: the hot path of Step and ID. It checks
+// every index it uses and reports false for a missing transition or any
+// bounds failure.
+func stepAt(d []byte, codes *[64]byte, addr int, b byte) (next int, out uint64, ok bool) {
+	lim := len(d) - fstFooterLen
+	if addr < fstHeaderLen || addr >= lim {
+		return 0, 0, false
+	}
+	top := d[addr]
+	pos := addr
+	if top&topSingle != 0 {
+		c := codes[top&topLowBits]
+		if top&topLowBits == 0 {
+			pos--
+			if pos < fstHeaderLen {
+				return 0, 0, false
+			}
+			c = d[pos]
+		}
+		if c != b {
 			return 0, 0, false
 		}
-		return s.next, s.out, true
+		if top&topNext != 0 {
+			if pos-1 < fstHeaderLen {
+				return 0, 0, false
+			}
+			return pos - 1, 0, true
+		}
+		pos--
+		if pos < fstHeaderLen {
+			return 0, 0, false
+		}
+		ts, os := int(d[pos]>>4), int(d[pos]&0xf)
+		lo := pos - ts - os
+		if lo < fstHeaderLen || ts > maxPackSize || os > maxPackSize {
+			return 0, 0, false
+		}
+		next, ok = target(lo, readPacked(d[lo+os:pos]))
+		return next, readPacked(d[lo : lo+os]), ok
 	}
-	j := bytes.IndexByte(d[s.keys:s.keys+s.n], b)
+	n := int(top & topLowBits)
+	if n == 0 {
+		pos--
+		if pos < fstHeaderLen {
+			return 0, 0, false
+		}
+		n = int(d[pos])
+		if n == 1 {
+			n = 256
+		}
+	}
+	pos--
+	keys := pos - n
+	if keys < fstHeaderLen {
+		return 0, 0, false
+	}
+	ts, os := int(d[pos]>>4), int(d[pos]&0xf)
+	if ts > maxPackSize || os > maxPackSize {
+		return 0, 0, false
+	}
+	j := -1
+	for i, c := range d[keys:pos] {
+		if c == b {
+			j = i
+			break
+		}
+	}
 	if j < 0 {
 		return 0, 0, false
 	}
-	_, next, out, ok = s.transition(d, s.n-1-j)
-	return next, out, ok
+	dests := keys - n*ts
+	outs := dests - n*os
+	bottom := outs
+	if top&topFinal != 0 {
+		bottom -= os
+	}
+	if bottom < fstHeaderLen {
+		return 0, 0, false
+	}
+	next, ok = target(bottom, readPacked(d[dests+j*ts:dests+(j+1)*ts]))
+	return next, readPacked(d[outs+j*os : outs+(j+1)*os]), ok
 }

@@ -2,14 +2,18 @@ package trie
 
 // This file holds the front-coded word table: the words in rank order, cut
 // into blocks of blockSize words. Each block starts with its first word in
-// full (length byte, bytes); every later word is stored as the length of
-// the prefix it shares with the word before it (one byte), the length of
-// the rest (one byte) and the rest. An array of block offsets lets rank →
-// word decode at most one block, and the first words of the blocks serve a
-// binary search for word → rank.
+// full (length byte, bytes); every later word is stored as a head byte
+// holding the length of the prefix it shares with the word before it (high
+// nibble) and the length of the rest (low nibble), then the rest. A nibble
+// of 15 means the length did not fit and follows in a byte of its own
+// (shared length first), so most words cost one byte plus their new
+// suffix. An array of block offsets lets rank → word decode at most one
+// block. Word → rank goes through the FST instead: it measured faster than
+// a binary search over the first words of the blocks.
 
 import (
 	"encoding/binary"
+	"slices"
 	"unicode/utf8"
 )
 
@@ -18,6 +22,7 @@ import (
 type wordTable struct {
 	n      uint32 // number of words
 	bs     uint32 // words per block
+	maxLen int    // length of the longest word
 	blocks []byte // numBlocks(n, bs)+1 little-endian uint32 offsets into words
 	words  []byte
 }
@@ -36,13 +41,63 @@ func appendWords(dst []byte, entries []Entry, bs int) ([]byte, []uint32) {
 			dst = append(dst, w...)
 		} else {
 			p := commonPrefix(prev, w)
-			dst = append(dst, byte(p), byte(len(w)-p))
+			dst = appendHead(dst, p, len(w)-p)
 			dst = append(dst, w[p:]...)
 		}
 		prev = w
 	}
 	offs = append(offs, uint32(len(dst)-base))
 	return dst, offs
+}
+
+// nibbleEscape in a head nibble means the length follows in its own byte.
+const nibbleEscape = 15
+
+// appendHead appends the head of a front-coded entry.
+func appendHead(dst []byte, shared, rest int) []byte {
+	h := byte(min(shared, nibbleEscape))<<4 | byte(min(rest, nibbleEscape))
+	dst = append(dst, h)
+	if shared >= nibbleEscape {
+		dst = append(dst, byte(shared))
+	}
+	if rest >= nibbleEscape {
+		dst = append(dst, byte(rest))
+	}
+	return dst
+}
+
+// readHead decodes the head of the front-coded entry at b[p:] and returns
+// the shared length, the rest length and the offset of the rest, or false
+// when the entry runs past b. canonical reports whether every escaped
+// length is at least nibbleEscape, as appendHead writes it.
+func readHead(b []byte, p int) (shared, rest, q int, canonical, ok bool) {
+	if p >= len(b) {
+		return 0, 0, 0, false, false
+	}
+	h := b[p]
+	p++
+	shared, rest = int(h>>4), int(h&0xf)
+	canonical = true
+	if shared == nibbleEscape {
+		if p >= len(b) {
+			return 0, 0, 0, false, false
+		}
+		shared = int(b[p])
+		canonical = shared >= nibbleEscape
+		p++
+	}
+	if rest == nibbleEscape {
+		if p >= len(b) {
+			return 0, 0, 0, false, false
+		}
+		rest = int(b[p])
+		canonical = canonical && rest >= nibbleEscape
+		p++
+	}
+	if rest > len(b)-p {
+		return 0, 0, 0, false, false
+	}
+	return shared, rest, p, canonical, true
 }
 
 // commonPrefix returns the length in bytes of the longest common prefix of
@@ -72,19 +127,16 @@ func (t *wordTable) block(i uint32) ([]byte, bool) {
 	return t.words[lo:hi], true
 }
 
-// first returns the first word of block i.
-func (t *wordTable) first(i uint32) ([]byte, bool) {
-	b, ok := t.block(i)
-	if !ok || len(b) == 0 || 1+int(b[0]) > len(b) {
-		return nil, false
-	}
-	return b[1 : 1+int(b[0])], true
-}
-
-// appendWord appends word id to dst. Intermediate words of the block are
-// built in dst's spare room, so it does not allocate when cap(dst)-len(dst)
-// is at least the longest word of the lexicon. It returns dst unchanged when
-// id is out of range or the block is damaged.
+// appendWord appends word id to dst. It does not allocate when
+// cap(dst)-len(dst) is at least maxLen, the longest word of the lexicon.
+// It returns dst unchanged when id is out of range or the block is
+// damaged.
+//
+// Rather than rebuilding every word of the block up to the wanted one, it
+// first reads the heads of the entries (no copying), then fills the word
+// from its own new bytes backwards: each earlier entry supplies the bytes
+// between its shared length and the shortest shared length seen after it,
+// so every byte of the result is copied once.
 func (t *wordTable) appendWord(dst []byte, id uint32) []byte {
 	if id >= t.n {
 		return dst
@@ -93,99 +145,84 @@ func (t *wordTable) appendWord(dst []byte, id uint32) []byte {
 	if !ok || len(b) == 0 {
 		return dst
 	}
-	base := len(dst)
+	j := int(id % t.bs)
+	if j >= fillMax {
+		return t.appendWordForward(dst, b, j)
+	}
+	// Entry k's new bytes are b[qs[k]:qs[k]+rest], placed from ss[k] on;
+	// entry 0 is the first word, with ss[0] = 0.
+	var qs, ss [fillMax]int32
 	p := 1 + int(b[0])
 	if p > len(b) {
 		return dst
 	}
-	dst = append(dst, b[1:p]...)
-	for j := id % t.bs; j > 0; j-- {
-		if p+2 > len(b) {
-			return dst[:base]
+	qs[0], ss[0] = 1, 0
+	length := p - 1 // length of the word decoded so far
+	for k := 1; k <= j; k++ {
+		if p >= len(b) {
+			return dst
 		}
-		shared, rest := int(b[p]), int(b[p+1])
-		p += 2
-		if shared > len(dst)-base || p+rest > len(b) {
-			return dst[:base]
+		var shared, rest, q int
+		if h := b[p]; h>>4 != nibbleEscape && h&0xf != nibbleEscape {
+			shared, rest, q = int(h>>4), int(h&0xf), p+1 // the common case, inline
+			if rest > len(b)-q {
+				return dst
+			}
+		} else {
+			var ok bool
+			if shared, rest, q, _, ok = readHead(b, p); !ok {
+				return dst
+			}
 		}
-		dst = append(dst[:base+shared], b[p:p+rest]...)
-		p += rest
+		if shared > length {
+			return dst
+		}
+		qs[k], ss[k] = int32(q), int32(shared)
+		length = shared + rest
+		p = q + rest
+	}
+	if length > t.maxLen {
+		return dst
+	}
+	base := len(dst)
+	dst = slices.Grow(dst, length)[:base+length]
+	w := dst[base:]
+	need := length // bytes [0, need) of w are still to fill
+	for k := j; need > 0; k-- {
+		s := int(ss[k])
+		if s < need {
+			copy(w[s:need], b[qs[k]:])
+			need = s
+		}
 	}
 	return dst
 }
 
-// search returns the smallest rank whose word w satisfies
-// compare(w[:min(len(w), len(key))], key) > 0 when upper is true, or
-// w >= key when upper is false. Over a sorted table both conditions hold
-// for a suffix of the ranks, so the first gives the end of the range of
-// words that start with key and the second gives its start. It costs a
-// binary search over the first words of the blocks plus the decoding of one
-// block, and does not allocate.
-func (t *wordTable) search(key string, upper bool, from uint32) uint32 {
-	nb := numBlocks(t.n, t.bs)
-	// Find the first block, at or after from, whose first word satisfies
-	// the condition; the answer lies in the block before it.
-	lo, hi := from, nb
-	for lo < hi {
-		m := lo + (hi-lo)/2
-		w, ok := t.first(m)
-		if !ok {
-			return t.n
-		}
-		if satisfies(w, key, upper) {
-			hi = m
-		} else {
-			lo = m + 1
-		}
-	}
-	if lo == from {
-		return min(from*t.bs, t.n)
-	}
-	blk := lo - 1
-	b, ok := t.block(blk)
-	if !ok {
-		return t.n
-	}
-	var buf [MaxWordLen]byte
-	cur := buf[:0]
-	p := 0
-	rank := blk * t.bs
-	end := min(rank+t.bs, t.n)
-	for ; rank < end; rank++ {
-		if rank == blk*t.bs {
-			if len(b) == 0 || 1+int(b[0]) > len(b) {
-				return t.n
-			}
-			cur = append(cur, b[1:1+int(b[0])]...)
-			p = 1 + int(b[0])
-		} else {
-			if p+2 > len(b) {
-				return t.n
-			}
-			shared, rest := int(b[p]), int(b[p+1])
-			p += 2
-			if shared > len(cur) || p+rest > len(b) || shared+rest > len(buf) {
-				return t.n
-			}
-			cur = append(cur[:shared], b[p:p+rest]...)
-			p += rest
-		}
-		if satisfies(cur, key, upper) {
-			return rank
-		}
-	}
-	return end
-}
+// fillMax is the largest in-block position appendWord decodes with its
+// backward fill; later positions (possible only with blocks larger than
+// the writer makes) go through appendWordForward.
+const fillMax = 32
 
-// satisfies is the search condition of [wordTable.search].
-func satisfies(w []byte, key string, upper bool) bool {
-	if upper {
-		if len(w) > len(key) {
-			w = w[:len(key)]
-		}
-		return string(w) > key
+// appendWordForward appends word j of block b by rebuilding every word of
+// the block up to it in dst's spare room.
+func (t *wordTable) appendWordForward(dst []byte, b []byte, j int) []byte {
+	p := 1 + int(b[0])
+	if p > len(b) || p-1 > t.maxLen {
+		return dst
 	}
-	return string(w) >= key
+	base := len(dst)
+	dst = slices.Grow(dst, t.maxLen)
+	w := dst[base : base+t.maxLen]
+	n := copy(w, b[1:p])
+	for ; j > 0; j-- {
+		shared, rest, q, _, ok := readHead(b, p)
+		if !ok || shared > n || shared+rest > len(w) {
+			return dst[:base]
+		}
+		n = shared + copy(w[shared:], b[q:q+rest])
+		p = q + rest
+	}
+	return dst[:base+n]
 }
 
 // validate checks every block of the table: offsets in order and in range,
@@ -222,19 +259,18 @@ func (t *wordTable) validate(maxLen int, blocksOff, wordsOff int) error {
 				next = append(next[:0], b[1:1+int(b[0])]...)
 				p = 1 + int(b[0])
 			} else {
-				if p+2 > len(b) {
+				shared, rest, q, canonical, ok := readHead(b, p)
+				switch {
+				case !ok || shared+rest > MaxWordLen:
 					return corrupt("words", at+p, "word %d runs past its block", rank)
-				}
-				shared, rest := int(b[p]), int(b[p+1])
-				if shared > len(cur) {
+				case !canonical:
+					return corrupt("words", at+p, "word %d has an escaped length below %d", rank, nibbleEscape)
+				case shared > len(cur):
 					return corrupt("words", at+p, "word %d shares %d bytes of a %d-byte word", rank, shared, len(cur))
 				}
-				if p+2+rest > len(b) || shared+rest > MaxWordLen {
-					return corrupt("words", at+p, "word %d runs past its block", rank)
-				}
 				next = append(next[:0], cur[:shared]...)
-				next = append(next, b[p+2:p+2+rest]...)
-				p += 2 + rest
+				next = append(next, b[q:q+rest]...)
+				p = q + rest
 			}
 			switch {
 			case len(next) == 0:

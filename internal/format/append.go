@@ -3,6 +3,7 @@ package format
 import (
 	"encoding/binary"
 	"fmt"
+	"math"
 	"slices"
 )
 
@@ -29,7 +30,8 @@ type fileHeader struct {
 //
 // Append returns [ErrInvalidKind] for a section of kind 0,
 // [ErrDuplicateKind] when two sections share a kind and [ErrTooLarge] for
-// more than [MaxSections] sections; dst is then returned unchanged.
+// more than [MaxSections] sections or a file too large for one slice; dst
+// is then returned unchanged.
 // It runs in O(total bytes + n log n) for n sections.
 func Append(dst []byte, sections []Section) ([]byte, error) {
 	return appendFile(dst, fileHeader{major: MajorVersion, minor: MinorVersion}, sections)
@@ -69,6 +71,9 @@ func appendFile(dst []byte, h fileHeader, sections []Section) ([]byte, error) {
 	}
 
 	base := len(dst)
+	if end > uint64(math.MaxInt-base) {
+		return dst, fmt.Errorf("%w: %d bytes do not fit in memory", ErrTooLarge, end)
+	}
 	dst = slices.Grow(dst, int(end))
 	dst = dst[:base+int(end)]
 	file := dst[base:]

@@ -38,8 +38,8 @@ var (
 // Errors returned by Append.
 var (
 	// ErrTooLarge is returned when Append is given more than [MaxSections]
-	// sections.
-	ErrTooLarge = errors.New("format: too many sections")
+	// sections, or sections whose file would not fit in one slice.
+	ErrTooLarge = errors.New("format: file too large")
 
 	// ErrInvalidKind is returned when Append is given a section of kind 0.
 	ErrInvalidKind = errors.New("format: invalid section kind")

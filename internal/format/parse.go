@@ -67,8 +67,8 @@ func Parse(b []byte) (*File, error) {
 	}
 	major, minor := le.Uint16(b[offMajor:]), le.Uint16(b[offMinor:])
 	if major != MajorVersion {
-		return nil, fmt.Errorf("%w: file has version %d.%d, this library reads version %d (minors %d.0 and later)",
-			ErrVersion, major, minor, MajorVersion, MajorVersion)
+		return nil, fmt.Errorf("%w: file has version %d.%d, this library reads version %d.x",
+			ErrVersion, major, minor, MajorVersion)
 	}
 
 	count := le.Uint32(b[offCount:])

@@ -8,7 +8,6 @@ import (
 	"math"
 	"strings"
 	"testing"
-	"unsafe"
 )
 
 func TestParseValid(t *testing.T) {
@@ -160,8 +159,8 @@ func TestParseCorruption(t *testing.T) {
 		}, ErrNotModel, nil},
 		{"only magic", func(*testing.T) []byte { return valid[:8] }, ErrCorrupt, nil},
 		{"partial magic", func(*testing.T) []byte { return valid[:3] }, ErrCorrupt, nil},
-		{"major 2", version(2, 0), ErrVersion, []string{"2.0", "version 1"}},
-		{"major 0", version(0, 3), ErrVersion, []string{"0.3", "version 1"}},
+		{"major 2", version(2, 0), ErrVersion, []string{"version 2.0", "reads version 1.x"}},
+		{"major 0", version(0, 3), ErrVersion, []string{"version 0.3", "reads version 1.x"}},
 		{"major 65535", version(math.MaxUint16, 0), ErrVersion, []string{"65535.0"}},
 		{"major bumped without crc", mod(func(b []byte) { b[8]++ }), ErrVersion, []string{"2.0"}},
 		{"minor changed without crc", mod(func(b []byte) { b[10]++ }), ErrChecksum, nil},
@@ -209,6 +208,22 @@ func TestParseCorruption(t *testing.T) {
 		{"last section cut", func(*testing.T) []byte { return valid[:len(valid)-1] }, ErrCorrupt, nil},
 		{"table cut", func(*testing.T) []byte { return valid[:tableEnd-1] }, ErrCorrupt, nil},
 	}
+	// Where each FormatError must point (FORMAT.md: the count field is at
+	// 16; entry i starts at 24+24i with kind at +0, offset at +8, length at
+	// +16; overlaps point at the later body), which pins down that each case
+	// fails on the check it names.
+	wantOffset := map[string]uint64{
+		"only magic": 8, "partial magic": 3,
+		"count max uint32": 16, "count above MaxSections": 16, "count beyond bytes left": 16,
+		"offset past end": 32, "length past end": 40, "offset max uint64": 32,
+		"offset plus length overflows": 40, "length max uint64": 40,
+		"offset inside header": 32, "offset zero": 32,
+		"misaligned section": 32, "misaligned by one": 32,
+		"overlapping sections": 80, "overlapping out of table order": 96,
+		"identical sections": 72, "section contains another": 112,
+		"duplicate kind": 48, "table not sorted": 48, "kind zero": 24,
+		"last section cut": 24 + 24*3 + 16, "table cut": 16,
+	}
 	sentinels := []error{ErrNotModel, ErrVersion, ErrChecksum, ErrCorrupt}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
@@ -234,8 +249,14 @@ func TestParseCorruption(t *testing.T) {
 			if errors.As(err, &fe) != (tt.want == ErrCorrupt) {
 				t.Errorf("errors.As(%v, *FormatError) = %v, want %v", err, !(tt.want == ErrCorrupt), tt.want == ErrCorrupt)
 			}
-			if fe != nil && fe.Offset > uint64(max(len(b), 24)) {
-				t.Errorf("FormatError offset %d beyond the file (%d bytes)", fe.Offset, len(b))
+			if fe != nil {
+				want, ok := wantOffset[tt.name]
+				if !ok {
+					t.Fatalf("no expected offset for case %q", tt.name)
+				}
+				if fe.Offset != want {
+					t.Errorf("FormatError.Offset = %d, want %d (%v)", fe.Offset, want, fe)
+				}
 			}
 		})
 	}
@@ -420,7 +441,7 @@ func TestSectionAliasesInput(t *testing.T) {
 	}
 	for _, s := range f.Sections() {
 		got, _ := f.Section(s.Kind)
-		if unsafe.SliceData(got) != &b[s.Offset] {
+		if len(got) > 0 && &got[0] != &b[s.Offset] {
 			t.Errorf("Section(%s) does not alias the input", s.Kind)
 		}
 		if cap(got) != len(got) {

@@ -3,14 +3,18 @@ package format
 import (
 	"encoding/binary"
 	"fmt"
+	"reflect"
 	"testing"
-	"unsafe"
 )
 
-// seqBytes returns n bytes 1, 2, 3, ... in an 8-byte-aligned buffer.
+// addr returns the address of the first element of a slice.
+func addr(s any) uintptr { return reflect.ValueOf(s).Pointer() }
+
+// seqBytes returns n bytes 1, 2, 3, ... starting on an 8-byte boundary.
 func seqBytes(n int) []byte {
-	words := make([]uint64, n/8+1) // a []uint64 backing array is 8-byte aligned
-	b := unsafe.Slice((*byte)(unsafe.Pointer(unsafe.SliceData(words))), len(words)*8)[:n]
+	buf := make([]byte, n+8)
+	skip := int((8 - addr(buf)%8) % 8)
+	b := buf[skip : skip+n : skip+n]
 	for i := range b {
 		b[i] = byte(i + 1)
 	}
@@ -48,24 +52,24 @@ func TestViews(t *testing.T) {
 		size  int
 		value func(b []byte, i int) uint64 // i-th value of the view of b
 		ref   func(b []byte) uint64        // reference decode of one value
-		ptr   func(b []byte) unsafe.Pointer
+		ptr   func(b []byte) uintptr
 		n     func(b []byte) int
 	}
 	views := []view{
 		{"Uint64s", 8,
 			func(b []byte, i int) uint64 { return Uint64s(b)[i] },
 			binary.LittleEndian.Uint64,
-			func(b []byte) unsafe.Pointer { return unsafe.Pointer(unsafe.SliceData(Uint64s(b))) },
+			func(b []byte) uintptr { return addr(Uint64s(b)) },
 			func(b []byte) int { return len(Uint64s(b)) }},
 		{"Uint32s", 4,
 			func(b []byte, i int) uint64 { return uint64(Uint32s(b)[i]) },
 			func(b []byte) uint64 { return uint64(binary.LittleEndian.Uint32(b)) },
-			func(b []byte) unsafe.Pointer { return unsafe.Pointer(unsafe.SliceData(Uint32s(b))) },
+			func(b []byte) uintptr { return addr(Uint32s(b)) },
 			func(b []byte) int { return len(Uint32s(b)) }},
 		{"Uint16s", 2,
 			func(b []byte, i int) uint64 { return uint64(Uint16s(b)[i]) },
 			func(b []byte) uint64 { return uint64(binary.LittleEndian.Uint16(b)) },
-			func(b []byte) unsafe.Pointer { return unsafe.Pointer(unsafe.SliceData(Uint16s(b))) },
+			func(b []byte) uintptr { return addr(Uint16s(b)) },
 			func(b []byte) int { return len(Uint16s(b)) }},
 	}
 	buf := seqBytes(64)
@@ -85,12 +89,12 @@ func TestViews(t *testing.T) {
 					}
 				}
 				if n < v.size {
-					if p := v.ptr(b); p != nil {
+					if p := v.ptr(b); p != 0 {
 						t.Errorf("%s: non-nil view of too few bytes", name)
 					}
 					continue
 				}
-				alias := v.ptr(b) == unsafe.Pointer(&b[0])
+				alias := v.ptr(b) == addr(b)
 				wantAlias := isLittleEndianHost() && shift%v.size == 0
 				if alias != wantAlias {
 					t.Errorf("%s: aliases input = %v, want %v", name, alias, wantAlias)
@@ -140,7 +144,7 @@ func TestViewsOfSections(t *testing.T) {
 	if fmt.Sprint(got) != fmt.Sprint(want) {
 		t.Errorf("Uint64s(section) = %v, want %v", got, want)
 	}
-	if isLittleEndianHost() && unsafe.Pointer(unsafe.SliceData(got)) != unsafe.Pointer(unsafe.SliceData(sec)) {
+	if isLittleEndianHost() && addr(got) != addr(sec) {
 		t.Errorf("Uint64s(section) copied an aligned section")
 	}
 }

@@ -1,0 +1,117 @@
+package main
+
+import (
+	"context"
+	"fmt"
+	"io"
+	"os"
+	"time"
+
+	"github.com/keyloom/keyloom/internal/bundle"
+	"github.com/keyloom/keyloom/internal/format"
+)
+
+func runBuild(ctx context.Context, e *env, args []string) error {
+	fs := newFlags(e, "build", "[TEXT...]",
+		"Counts running text (or pre-tokenized text with --tokenized) and word lists, estimates an\n"+
+			"interpolated modified Kneser-Ney model and writes one model file. Use - for standard input.")
+	out := fs.String("out", "", "model file to write (required)")
+	order := fs.Int("order", 3, "highest n-gram order (1-5)")
+	qbits := fs.Int("qbits", 8, "bits per stored probability and back-off weight (4-16), or 0 for lossless")
+	tokenized := fs.Bool("tokenized", false, "TEXT is one sentence per line, tokens separated by spaces, no normalization")
+	var counts, words listFlag
+	fs.Var(&counts, "counts", "word-count list (word<TAB>count per line); repeatable")
+	fs.Var(&words, "words", "word list (one word per line), added with a small pseudo-count; repeatable")
+	corpus := fs.String("describe", "", "description of the training data stored in the file")
+	pos, err := parse(fs, args)
+	if err != nil {
+		return err
+	}
+	if *out == "" {
+		return fmt.Errorf("%w: --out is required", errUsage)
+	}
+	if len(pos) == 0 && len(counts) == 0 && len(words) == 0 {
+		return fmt.Errorf("%w: give TEXT files, --counts or --words", errUsage)
+	}
+	if *qbits != 0 && (*qbits < 4 || *qbits > 16) {
+		return fmt.Errorf("%w: --qbits %d: want 0 or 4..16", errUsage, *qbits)
+	}
+	q := *qbits
+	if q == 0 {
+		q = -1 // lossless
+	}
+	var sources []bundle.Source
+	var total int64
+	var closers []io.Closer
+	defer func() {
+		for _, c := range closers {
+			c.Close()
+		}
+	}()
+	add := func(name string, kind bundle.SourceKind, weight float64) error {
+		if name == "-" {
+			sources = append(sources, bundle.Source{Name: "stdin", R: e.stdin, Kind: kind, Weight: weight})
+			return nil
+		}
+		f, err := os.Open(name)
+		if err != nil {
+			return err
+		}
+		closers = append(closers, f)
+		if st, err := f.Stat(); err == nil {
+			total += st.Size()
+		}
+		sources = append(sources, bundle.Source{Name: name, R: f, Kind: kind, Weight: weight})
+		return nil
+	}
+	kind := bundle.SourceText
+	if *tokenized {
+		kind = bundle.SourceTokenized
+	}
+	for _, p := range pos {
+		if err := add(p, kind, 0); err != nil {
+			return err
+		}
+	}
+	for _, p := range counts {
+		if err := add(p, bundle.SourceWordCounts, 0); err != nil {
+			return err
+		}
+	}
+	for _, p := range words {
+		if err := add(p, bundle.SourceWordList, 0.5); err != nil {
+			return err
+		}
+	}
+	bar := newProgress(e.stderr, "counting", total)
+	var doneBefore int64
+	last := ""
+	var lastN int64
+	start := time.Now()
+	b, data, err := bundle.Build(ctx, sources, bundle.BuildOptions{
+		Order: *order, QuantBits: q, Corpus: *corpus,
+		Progress: func(name string, n int64) {
+			if name != last {
+				doneBefore += lastN
+				last = name
+			}
+			lastN = n
+			bar.set(doneBefore + n)
+		},
+	})
+	bar.done()
+	if err != nil {
+		return err
+	}
+	if err := format.WriteFileAtomic(*out, data, 0o644); err != nil {
+		return err
+	}
+	ng := b.NGrams()
+	sum := 0
+	for _, n := range ng {
+		sum += n
+	}
+	fmt.Fprintf(e.stdout, "wrote %s: %d bytes, order %d, %d words, n-grams per order %v, %.2f bytes/n-gram, %d tokens in %s\n",
+		*out, len(data), b.Order(), len(b.Vocab), ng, float64(len(data))/float64(sum), b.Tokens, time.Since(start).Round(time.Millisecond))
+	return nil
+}

@@ -1,0 +1,91 @@
+package main
+
+import (
+	"context"
+	"fmt"
+	"os"
+	"path/filepath"
+	"strings"
+	"time"
+
+	"github.com/keyloom/keyloom"
+	"github.com/keyloom/keyloom/corpora"
+	"github.com/keyloom/keyloom/internal/bundle"
+	"github.com/keyloom/keyloom/internal/format"
+	"github.com/keyloom/keyloom/lm"
+)
+
+func runDemo(ctx context.Context, e *env, args []string) error {
+	fs := newFlags(e, "demo", "",
+		"Builds a model from the bundled demo corpus (the invented notes and messages of a\n"+
+			"volunteer coordinator) plus the bundled word lists in a temporary directory, then\n"+
+			"shows completions, predictions and perplexity. Takes a few seconds.")
+	keep := fs.String("keep", "", "also save the demo model to this path")
+	if _, err := parse(fs, args); err != nil {
+		return err
+	}
+	w := e.stdout
+	dir, err := os.MkdirTemp("", "keyloom-demo-")
+	if err != nil {
+		return err
+	}
+	defer os.RemoveAll(dir)
+	start := time.Now()
+	// Hold out the last 10% of the demo corpus to measure the model on.
+	docs := corpora.DemoText()
+	cut := len(docs) * 9 / 10
+	cut += strings.Index(docs[cut:], "\n\n") + 2
+	train, test := docs[:cut], docs[cut:]
+	srcs := defaultSources()
+	srcs[0].R = strings.NewReader(train)
+	b, data, err := bundle.Build(ctx, srcs, bundle.BuildOptions{Order: 3, Corpus: "demo: 90% of the invented demo corpus + word lists"})
+	if err != nil {
+		return err
+	}
+	path := filepath.Join(dir, "demo.klm")
+	if err := format.WriteFileAtomic(path, data, 0o644); err != nil {
+		return err
+	}
+	if *keep != "" {
+		if err := format.WriteFileAtomic(*keep, data, 0o644); err != nil {
+			return err
+		}
+	}
+	fmt.Fprintf(w, "Built a demo model in %s: %d training tokens, %d words, n-grams %v, %d bytes on disk.\n",
+		time.Since(start).Round(time.Millisecond), b.Tokens, len(b.Vocab), b.NGrams(), len(data))
+	fmt.Fprintln(w, "(The demo corpus is invented: the notes and messages of a fictional volunteer coordinator.)")
+	eng, err := keyloom.Open(path, keyloom.Options{})
+	if err != nil {
+		return err
+	}
+	defer eng.Close()
+	fmt.Fprintln(w, "\nWhat the keyboard would show (text before the cursor → suggestions):")
+	for _, before := range []string{"see you at the ", "see you at the bl", "Thanks a ", "Can you bring the ", "I'll put it in the sign", "We need more vol"} {
+		t0 := time.Now()
+		res, err := eng.Suggest(before)
+		if err != nil {
+			return err
+		}
+		el := time.Since(t0)
+		list := res.Predictions
+		if res.Prefix != "" {
+			list = res.Completions
+		}
+		words := make([]string, len(list))
+		for i, s := range list {
+			words[i] = fmt.Sprintf("%s (%.2f)", s.Word, s.Prob)
+		}
+		fmt.Fprintf(w, "  %-26q → %s   [%s]\n", before, strings.Join(words, ", "), el.Round(time.Microsecond))
+	}
+	lex := eng.Lexicon()
+	bos, eos, unk := eng.LM().Specials()
+	res, err := lm.Perplexity(ctx, eng.LM(), func(b []byte) (uint32, bool) { return lex.ID(string(b)) }, bos, eos, unk, strings.NewReader(test), lm.ScanOptions{})
+	if err != nil {
+		return err
+	}
+	fmt.Fprintf(w, "\nOn the held-out 10%% (%d events): perplexity %.1f, %.1f%% out of vocabulary.\n",
+		res.Tokens, res.Perplexity, 100*float64(res.OOV)/float64(max(1, res.Tokens)))
+	fmt.Fprintln(w, "\nNext: 'keyloom build --out my.klm notes.txt', 'keyloom suggest --model my.klm \"see you at \"',")
+	fmt.Fprintln(w, "'keyloom eval --ppl --model my.klm test.txt', 'keyloom inspect my.klm'.")
+	return nil
+}

@@ -1,0 +1,83 @@
+package correct
+
+import (
+	"strings"
+	"unicode"
+	"unicode/utf8"
+)
+
+// casePattern is how the letters of a typed word were cased.
+type casePattern uint8
+
+const (
+	caseLower casePattern = iota // as the lexicon stores it
+	caseTitle                    // first letter upper case
+	caseUpper                    // every letter upper case (two letters or more)
+)
+
+// token is a typed word taken apart: leading punctuation, the word,
+// trailing punctuation, and its casing.
+type token struct {
+	lead, core, trail string
+	pattern           casePattern
+}
+
+// splitToken separates surrounding punctuation from the word and records
+// the casing. Apostrophes and hyphens inside the word stay in it.
+func splitToken(s string) token {
+	isWord := func(r rune) bool { return unicode.IsLetter(r) || unicode.IsDigit(r) || unicode.IsMark(r) }
+	start := strings.IndexFunc(s, isWord)
+	if start < 0 {
+		return token{lead: s}
+	}
+	end := strings.LastIndexFunc(s, isWord)
+	_, size := utf8.DecodeRuneInString(s[end:])
+	end += size
+	tk := token{lead: s[:start], core: s[start:end], trail: s[end:]}
+	letters, upper := 0, 0
+	first := true
+	for _, r := range tk.core {
+		if !unicode.IsLetter(r) {
+			continue
+		}
+		letters++
+		if unicode.IsUpper(r) {
+			upper++
+			if first {
+				tk.pattern = caseTitle
+			}
+		}
+		first = false
+	}
+	if letters >= 2 && upper == letters {
+		tk.pattern = caseUpper
+	}
+	return tk
+}
+
+// appendCased appends word (lower case) to dst in the given pattern.
+func appendCased(dst []byte, word []byte, p casePattern) []byte {
+	switch p {
+	case caseUpper:
+		return append(dst, strings.ToUpper(string(word))...)
+	case caseTitle:
+		r, size := utf8.DecodeRune(word)
+		if r == utf8.RuneError {
+			return append(dst, word...)
+		}
+		dst = utf8.AppendRune(dst, unicode.ToTitle(r))
+		return append(dst, word[size:]...)
+	}
+	return append(dst, word...)
+}
+
+// latinOnly reports whether every letter of s is Latin script, so that the
+// keyboard and spelling models apply.
+func latinOnly(s string) bool {
+	for _, r := range s {
+		if unicode.IsLetter(r) && !unicode.Is(unicode.Latin, r) {
+			return false
+		}
+	}
+	return true
+}

@@ -1,0 +1,311 @@
+package correct
+
+import (
+	"fmt"
+	"math"
+	"strings"
+	"sync"
+	"unicode/utf8"
+)
+
+// Scorer gives the natural-log probability of word (a lexicon ID) after
+// context (previous word IDs, oldest first; possibly empty). A language
+// model's LogProb method value fits it. It must be safe for concurrent use.
+type Scorer func(context []uint32, word uint32) float64
+
+// Kind says what a Candidate replaces the typed text with.
+type Kind uint8
+
+// Candidate kinds.
+const (
+	// KindWord replaces the typed word with one lexicon word.
+	KindWord Kind = iota
+	// KindSplit replaces the typed word with two words (a missed space).
+	KindSplit
+	// KindMerge replaces the previous and the typed word with one word (a
+	// space typed inside a word).
+	KindMerge
+)
+
+// String returns "word", "split" or "merge".
+func (k Kind) String() string {
+	switch k {
+	case KindWord:
+		return "word"
+	case KindSplit:
+		return "split"
+	case KindMerge:
+		return "merge"
+	}
+	return fmt.Sprintf("kind(%d)", uint8(k))
+}
+
+// Candidate is one proposed correction.
+type Candidate struct {
+	// Word is the replacement text: the lexicon word(s) in the typed casing
+	// pattern, with the typed leading and trailing punctuation kept.
+	Word string
+	// ID is the lexicon ID of the (first) word.
+	ID uint32
+	// Next is the ID of the second word of a KindSplit candidate.
+	Next uint32
+	// Kind says what the candidate replaces.
+	Kind Kind
+	// Cost is the channel cost -ln P(typed | candidate) in nats.
+	Cost float64
+	// Score is -Cost + LMWeight × ln P(candidate | context); higher is better.
+	Score float64
+}
+
+// Decision says whether the first candidate should replace the typed text
+// without asking when the user types a space.
+type Decision struct {
+	// Apply is true when the first candidate should be applied.
+	Apply bool
+	// Confidence is the estimated probability that the first candidate is
+	// what the user meant, against the other candidates and the typed text
+	// itself.
+	Confidence float64
+}
+
+// Options configures a Corrector. The zero value means defaults.
+type Options struct {
+	// Layout picks a built-in keyboard; default LayoutQWERTY.
+	Layout Layout
+	// Keyboard, if not nil, is used instead of Layout (see ParseLayout).
+	Keyboard *Keyboard
+	// ErrorModel is the spelling-error model; nil means BuiltinErrorModel.
+	ErrorModel *ErrorModel
+	// MaxCost is the channel cost budget of the search in nats; words
+	// dearer to reach are not found. Default 11 (about two ordinary edits).
+	MaxCost float64
+	// LMWeight scales the language-model log-probability against the
+	// channel cost. Default 1.
+	LMWeight float64
+	// ApplyThreshold is the confidence at or above which an unknown typed
+	// word is replaced on space. Default 0.5.
+	ApplyThreshold float64
+	// KnownMargin is how many nats an alternative must out-score a word the
+	// lexicon or Known knows before it may be applied. Default 10.
+	KnownMargin float64
+	// UnknownLogProb is the language-model log-probability given to a typed
+	// word the lexicon does not know, as the "leave it" alternative.
+	// Default -16.
+	UnknownLogProb float64
+	// SpaceCost is the channel cost (nats) of a missing or extra space.
+	// Default 5.
+	SpaceCost float64
+	// Known, if not nil, reports words the user has taught (typed text,
+	// lower-cased); they are never corrected unless by KnownMargin.
+	Known func(word string) bool
+	// Rejected, if not nil, reports corrections the user has undone
+	// (typed and candidate word, both lower-cased); they are not offered.
+	Rejected func(typed, word string) bool
+}
+
+func (o *Options) defaults() error {
+	for _, v := range []float64{o.MaxCost, o.LMWeight, o.ApplyThreshold, o.KnownMargin, o.SpaceCost} {
+		if v < 0 || math.IsNaN(v) || math.IsInf(v, 0) {
+			return fmt.Errorf("%w: negative or non-finite value %v", ErrOptions, v)
+		}
+	}
+	if o.ApplyThreshold > 1 || o.UnknownLogProb > 0 || math.IsNaN(o.UnknownLogProb) || math.IsInf(o.UnknownLogProb, 0) {
+		return fmt.Errorf("%w: threshold above one or positive log-probability", ErrOptions)
+	}
+	def := func(v *float64, d float64) {
+		if *v == 0 {
+			*v = d
+		}
+	}
+	def(&o.MaxCost, 11)
+	def(&o.LMWeight, 1)
+	def(&o.ApplyThreshold, 0.5)
+	def(&o.KnownMargin, 10)
+	def(&o.UnknownLogProb, -16)
+	def(&o.SpaceCost, 5)
+	o.MaxCost = min(o.MaxCost, 40)
+	return nil
+}
+
+// Corrector proposes corrections of typed words. It is immutable after
+// New and safe for concurrent use; per-call scratch comes from a pool.
+type Corrector struct {
+	lex  Lexicon
+	lm   Scorer
+	opts Options
+	ch   *channel
+	pool sync.Pool
+	// passMargin is how far (nats) the best first-pass candidate must beat
+	// leaving the word as typed for the wider pass to be skipped.
+	passMargin float64
+}
+
+// firstPass is the cost budget of the first, narrow search pass: about one
+// ordinary edit.
+const firstPass = 6
+
+// secondPass is the budget of the second pass.
+const secondPass = 9
+
+// New builds a Corrector over a lexicon and a language-model scorer.
+func New(lex Lexicon, lm Scorer, opts Options) (*Corrector, error) {
+	if lex == nil {
+		return nil, ErrNoLexicon
+	}
+	if lm == nil {
+		return nil, ErrNoScorer
+	}
+	if err := opts.defaults(); err != nil {
+		return nil, err
+	}
+	kb := opts.Keyboard
+	if kb == nil {
+		var err error
+		if kb, err = opts.Layout.Keyboard(); err != nil {
+			return nil, err
+		}
+	}
+	em := opts.ErrorModel
+	if em == nil {
+		var err error
+		if em, err = BuiltinErrorModel(); err != nil {
+			return nil, err
+		}
+	}
+	c := &Corrector{lex: lex, lm: lm, opts: opts, ch: newChannel(kb, em), passMargin: 0}
+	c.pool.New = func() any { return &scratch{} }
+	return c, nil
+}
+
+// scratch is the per-call memory of Correct.
+type scratch struct {
+	s     search
+	top   []Candidate
+	buf   []byte
+	lower []byte
+	ctx   []uint32
+}
+
+// Correct proposes up to max corrections of one typed word (surrounding
+// punctuation and casing are kept in the candidates' Word) given the IDs
+// of the words before it, best first, appended to dst[:0]. The typed word
+// itself is never among them. The Decision says whether to apply the
+// first one. Empty, overlong (over 48 bytes), invalid UTF-8 or non-Latin
+// input gets no candidates. Cost: one bounded lexicon walk (see
+// Options.MaxCost) plus one Scorer call per word found within budget.
+func (c *Corrector) Correct(typed string, context []uint32, max int, dst []Candidate) ([]Candidate, Decision) {
+	dst = dst[:0]
+	if max <= 0 || !utf8.ValidString(typed) {
+		return dst, Decision{}
+	}
+	tk := splitToken(typed)
+	if tk.core == "" || len(tk.core) > maxTyped || !latinOnly(tk.core) {
+		return dst, Decision{}
+	}
+	sc := c.pool.Get().(*scratch)
+	defer c.pool.Put(sc)
+	lower := strings.ToLower(tk.core)
+	if len(lower) > maxTyped {
+		return dst, Decision{}
+	}
+	o := &c.opts
+	typedID, inLex := c.lex.ID(lower)
+	known := inLex || (o.Known != nil && o.Known(lower))
+	keep := o.LMWeight * o.UnknownLogProb
+	if inLex {
+		keep = o.LMWeight * c.lm(context, typedID)
+	}
+	keepN := max
+	if keepN < 8 {
+		keepN = 8
+	}
+	// Words within the cost budget, searched in widening passes: most
+	// misspellings are one cheap edit away, and a wider pass runs only when
+	// the narrower one found nothing convincing.
+	s := &sc.s
+	last := 0.0
+	for _, budget := range [...]float64{firstPass, secondPass, o.MaxCost} {
+		budget = min(budget, o.MaxCost)
+		if budget <= last {
+			break
+		}
+		last = budget
+		sc.top = sc.top[:0]
+		s.reset(c.ch, c.lex, lower, float32(budget), min(len(lower)+maxExtra, 2*maxTyped))
+		s.run()
+		for _, h := range s.hits {
+			if inLex && h.id == typedID {
+				continue
+			}
+			score := -float64(h.cost) + o.LMWeight*c.lm(context, h.id)
+			sc.top = insertTop(sc.top, Candidate{ID: h.id, Kind: KindWord, Cost: float64(h.cost), Score: score}, keepN)
+		}
+		if len(sc.top) > 0 && sc.top[0].Score-keep >= c.passMargin {
+			break
+		}
+	}
+	// Missing spaces: two words typed as one.
+	for k := 1; k < len(lower); k++ {
+		a, ok1 := c.lex.ID(lower[:k])
+		if !ok1 {
+			continue
+		}
+		b, ok2 := c.lex.ID(lower[k:])
+		if !ok2 {
+			continue
+		}
+		sc.ctx = append(append(sc.ctx[:0], context...), a)
+		score := -o.SpaceCost + o.LMWeight*(c.lm(context, a)+c.lm(sc.ctx, b))
+		sc.top = insertTop(sc.top, Candidate{ID: a, Next: b, Kind: KindSplit, Cost: o.SpaceCost, Score: score}, keepN)
+	}
+	// Turn IDs into text, drop rejected pairs, compute the posterior.
+	z := math.Exp(0) // the keep alternative, scores taken relative to keep
+	for _, cand := range sc.top {
+		z += math.Exp(cand.Score - keep)
+	}
+	for _, cand := range sc.top {
+		if len(dst) >= max {
+			break
+		}
+		sc.buf = c.lex.AppendWord(sc.buf[:0], cand.ID)
+		if cand.Kind == KindSplit {
+			sc.buf = append(sc.buf, ' ')
+			sc.buf = c.lex.AppendWord(sc.buf, cand.Next)
+		}
+		if o.Rejected != nil && o.Rejected(lower, string(sc.buf)) {
+			continue
+		}
+		sc.lower = append(sc.lower[:0], tk.lead...)
+		sc.lower = appendCased(sc.lower, sc.buf, tk.pattern)
+		sc.lower = append(sc.lower, tk.trail...)
+		cand.Word = string(sc.lower)
+		dst = append(dst, cand)
+	}
+	if len(dst) == 0 {
+		return dst, Decision{}
+	}
+	conf := math.Exp(dst[0].Score-keep) / z
+	apply := conf >= o.ApplyThreshold
+	if known && dst[0].Score-keep < o.KnownMargin {
+		apply = false
+	}
+	return dst, Decision{Apply: apply, Confidence: conf}
+}
+
+// insertTop inserts c into top (sorted by Score, best first), keeping at
+// most n entries.
+func insertTop(top []Candidate, c Candidate, n int) []Candidate {
+	if len(top) == n && top[n-1].Score >= c.Score {
+		return top
+	}
+	i := len(top)
+	for i > 0 && top[i-1].Score < c.Score {
+		i--
+	}
+	if len(top) < n {
+		top = append(top, Candidate{})
+	}
+	copy(top[i+1:], top[i:len(top)-1])
+	top[i] = c
+	return top
+}

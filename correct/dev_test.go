@@ -1,0 +1,130 @@
+package correct
+
+import (
+	"os"
+	"strings"
+	"testing"
+	"time"
+)
+
+// devPairs reads misspellings-dev.tsv (development half of the English
+// Wikipedia "Lists of common misspellings/For machines", see
+// corpora/ and shared/data/SOURCES.md).
+func devPairs(t testing.TB) []Pair {
+	t.Helper()
+	f, err := os.Open("../corpora/misspellings-dev.tsv")
+	if err != nil {
+		t.Fatalf("open: %v", err)
+	}
+	defer f.Close()
+	p, err := ParsePairs(f)
+	if err != nil {
+		t.Fatalf("ParsePairs: %v", err)
+	}
+	return p
+}
+
+type devScore struct {
+	n, top1, top3, applied, appliedRight int
+	elapsed                              time.Duration
+}
+
+func (s devScore) pct(k int) float64 { return 100 * float64(k) / float64(s.n) }
+
+// scoreDev corrects every pair and counts hits: a hit when any listed
+// correction equals a candidate case-insensitively.
+func scoreDev(c *Corrector, pairs []Pair, miss func(Pair, []Candidate)) devScore {
+	var s devScore
+	var buf []Candidate
+	start := time.Now()
+	for _, p := range pairs {
+		var dec Decision
+		buf, dec = c.Correct(p.Typed, nil, 3, buf)
+		s.n++
+		hit := func(k int) bool {
+			for _, cand := range buf[:min(k, len(buf))] {
+				for _, w := range p.Intended {
+					if strings.EqualFold(cand.Word, w) {
+						return true
+					}
+				}
+			}
+			return false
+		}
+		if hit(1) {
+			s.top1++
+		}
+		if hit(3) {
+			s.top3++
+		} else if miss != nil {
+			miss(p, buf)
+		}
+		if dec.Apply {
+			s.applied++
+			if hit(1) {
+				s.appliedRight++
+			}
+		}
+	}
+	s.elapsed = time.Since(start)
+	return s
+}
+
+// Targets from the project brief: top-1 ≥ 90 %, top-3 ≥ 97 % on the dev
+// list with the default model (project goal, no outside source).
+const (
+	wantTop1 = 90.0
+	wantTop3 = 97.0
+	// cvFloorTop1 and cvFloorTop3 are the cross-validated floors. Rules
+	// seen in only one fold cannot help the held-out fold, so CV is below
+	// train-on-all; the floors sit under the measured 5-fold figures (see
+	// the report in doc.go) by about one standard error of a 430-word fold
+	// (±1.3 %), and above the ~83 % / ~95 % of the classic two-edit,
+	// frequency-ranked corrector measured on this list (project brief).
+	cvFloorTop1 = 86.0
+	cvFloorTop3 = 94.5
+)
+
+func TestDevAccuracy(t *testing.T) {
+	pairs := devPairs(t)
+	c, _, _ := devCorrector(t, Options{})
+	s := scoreDev(c, pairs, nil)
+	t.Logf("train-on-all: n=%d top1=%.1f%% top3=%.1f%% auto-applied %d (%.1f%% right) %v/word",
+		s.n, s.pct(s.top1), s.pct(s.top3), s.applied, 100*float64(s.appliedRight)/float64(max(s.applied, 1)), s.elapsed/time.Duration(s.n))
+	if s.pct(s.top1) < wantTop1 || s.pct(s.top3) < wantTop3 {
+		t.Errorf("train-on-all top1 %.1f%% top3 %.1f%%, want ≥ %v%% and ≥ %v%%", s.pct(s.top1), s.pct(s.top3), wantTop1, wantTop3)
+	}
+	// Auto-apply should be right far more often than not: false corrections
+	// are worse than misses (common practice, no source).
+	if prec := float64(s.appliedRight) / float64(max(s.applied, 1)); prec < 0.95 {
+		t.Errorf("auto-apply precision %.3f, want ≥ 0.95", prec)
+	}
+
+	// k-fold cross-validation: the error model is trained on k-1 folds and
+	// tested on the held-out one.
+	const k = 5
+	var cv devScore
+	for f := 0; f < k; f++ {
+		var train, test []Pair
+		for i, p := range pairs {
+			if i%k == f {
+				test = append(test, p)
+			} else {
+				train = append(train, p)
+			}
+		}
+		em := TrainErrorModel(train, TrainOptions{})
+		cf, _, _ := devCorrector(t, Options{ErrorModel: em})
+		fs := scoreDev(cf, test, nil)
+		t.Logf("fold %d: top1=%.1f%% top3=%.1f%%", f, fs.pct(fs.top1), fs.pct(fs.top3))
+		cv.n += fs.n
+		cv.top1 += fs.top1
+		cv.top3 += fs.top3
+		cv.applied += fs.applied
+		cv.appliedRight += fs.appliedRight
+	}
+	t.Logf("%d-fold CV: top1=%.1f%% top3=%.1f%% auto-applied %d (%.1f%% right)", k, cv.pct(cv.top1), cv.pct(cv.top3), cv.applied, 100*float64(cv.appliedRight)/float64(max(cv.applied, 1)))
+	if cv.pct(cv.top1) < cvFloorTop1 || cv.pct(cv.top3) < cvFloorTop3 {
+		t.Errorf("CV top1 %.1f%% top3 %.1f%%, want ≥ %v%% and ≥ %v%%", cv.pct(cv.top1), cv.pct(cv.top3), cvFloorTop1, cvFloorTop3)
+	}
+}

@@ -1,0 +1,122 @@
+package keyloom
+
+import (
+	"fmt"
+	"sync/atomic"
+
+	"github.com/keyloom/keyloom/internal/bundle"
+	"github.com/keyloom/keyloom/internal/mmap"
+	"github.com/keyloom/keyloom/lm"
+	"github.com/keyloom/keyloom/trie"
+)
+
+// DefaultSuggestions is the number of completions and predictions Suggest
+// returns when Options.Suggestions is zero.
+const DefaultSuggestions = 3
+
+// Options configures an Engine. The zero value gives the documented defaults.
+type Options struct {
+	// Suggestions is how many completions and how many predictions Suggest
+	// returns (default DefaultSuggestions, at most lm.MaxK).
+	Suggestions int
+	// VerifyChecksums checks the CRC-32C of every section when opening, which
+	// reads the whole file. By default only the small metadata and lexicon
+	// sections are checked, so that opening costs about a millisecond.
+	VerifyChecksums bool
+}
+
+func (o Options) withDefaults() (Options, error) {
+	if o.Suggestions == 0 {
+		o.Suggestions = DefaultSuggestions
+	}
+	if o.Suggestions < 0 || o.Suggestions > lm.MaxK {
+		return o, fmt.Errorf("keyloom: Options.Suggestions = %d, want 1..%d", o.Suggestions, lm.MaxK)
+	}
+	return o, nil
+}
+
+// Engine answers keystrokes from one model file. It is safe for concurrent
+// use by any number of goroutines.
+type Engine struct {
+	opts   Options
+	region *mmap.Region // nil for OpenBytes
+	model  *bundle.Model
+	closed atomic.Bool
+}
+
+// Open maps the model file at path read-only and returns an Engine for it.
+// Where memory mapping is unavailable (js/wasm) the file is read instead.
+// Opening does not read the tables: the first queries fault in the pages they touch.
+func Open(path string, opts Options) (*Engine, error) {
+	opts, err := opts.withDefaults()
+	if err != nil {
+		return nil, err
+	}
+	r, err := mmap.Open(path)
+	if err != nil {
+		return nil, fmt.Errorf("keyloom: open %s: %w", path, err)
+	}
+	e, err := newEngine(r.Bytes(), opts)
+	if err != nil {
+		r.Close()
+		return nil, fmt.Errorf("keyloom: open %s: %w", path, err)
+	}
+	e.region = r
+	return e, nil
+}
+
+// OpenBytes returns an Engine over a model file the caller already holds in
+// memory. The Engine reads b in place: b must not change while it is used.
+func OpenBytes(b []byte, opts Options) (*Engine, error) {
+	opts, err := opts.withDefaults()
+	if err != nil {
+		return nil, err
+	}
+	e, err := newEngine(b, opts)
+	if err != nil {
+		return nil, fmt.Errorf("keyloom: %w", err)
+	}
+	return e, nil
+}
+
+func newEngine(b []byte, opts Options) (*Engine, error) {
+	m, err := bundle.Load(b, bundle.LoadOptions{VerifyAll: opts.VerifyChecksums})
+	if err != nil {
+		return nil, err
+	}
+	return &Engine{opts: opts, model: m}, nil
+}
+
+// Close releases the mapping. Calls made after Close return ErrClosed.
+// Close must not run while other goroutines are inside Engine methods.
+func (e *Engine) Close() error {
+	if e.closed.Swap(true) {
+		return nil
+	}
+	if e.region != nil {
+		return e.region.Close()
+	}
+	return nil
+}
+
+// Info describes an opened model.
+type Info struct {
+	Order     int    // highest n-gram order
+	Words     int    // lexicon size, special tokens included
+	NGrams    []int  // stored n-grams per order, unigrams first
+	QuantBits int    // code width of stored values (0 = lossless)
+	Bytes     int    // size of the model file
+	Corpus    string // description given at build time
+}
+
+// Info returns a description of the model.
+func (e *Engine) Info() Info {
+	m := e.model
+	return Info{Order: m.LM.Order(), Words: m.Lex.Len(), NGrams: m.LM.NGrams(), QuantBits: m.LM.QuantBits(), Bytes: m.Size, Corpus: m.Meta.Corpus}
+}
+
+// LM returns the n-gram model, for tools that measure it. It is valid until Close.
+func (e *Engine) LM() *lm.Model { return e.model.LM }
+
+// Lexicon returns the word list, for tools that measure it. It is valid until Close.
+func (e *Engine) Lexicon() *trie.Lexicon { return e.model.Lex }

@@ -1,0 +1,225 @@
+// Package bundle assembles and opens Keyloom model files: it puts the
+// metadata, lexicon (package trie) and n-gram (package lm) sections into one
+// container (package internal/format) and loads them back from bytes.
+package bundle
+
+import (
+	"context"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"io"
+
+	"github.com/keyloom/keyloom/internal/format"
+	"github.com/keyloom/keyloom/lm"
+	"github.com/keyloom/keyloom/trie"
+)
+
+// Meta is the metadata section: what the model is and how it was built.
+// It is stored as JSON with fields in this order, so its bytes are deterministic.
+type Meta struct {
+	Order     int          `json:"order"`
+	Vocab     int          `json:"vocab"`
+	QuantBits int          `json:"quant_bits"`
+	NGrams    []int        `json:"ngrams"`
+	Tokens    int64        `json:"tokens"`
+	Discounts [][3]float64 `json:"discounts,omitempty"`
+	Corpus    string       `json:"corpus,omitempty"`
+	Sources   []string     `json:"sources,omitempty"`
+	Params    string       `json:"params,omitempty"`
+}
+
+// Errors returned by Load.
+var (
+	// ErrMissingSection is returned when a model file lacks a required section.
+	ErrMissingSection = errors.New("bundle: required section missing")
+	// ErrMismatch is returned when the sections of a file disagree (lexicon and n-gram vocabulary sizes).
+	ErrMismatch = errors.New("bundle: sections disagree")
+)
+
+// Encode lays out an exact model as the bytes of one model file.
+// qbits is the quantization width (0 = lossless, 4..16). overlay, when not
+// nil, is stored as the user-overlay section.
+func Encode(b *lm.Backoff, meta Meta, qbits int, overlay []byte) ([]byte, error) {
+	entries := make([]trie.Entry, len(b.Vocab))
+	for i, w := range b.Vocab {
+		entries[i] = trie.Entry{Word: w}
+		if i < len(b.Surface) {
+			entries[i].Surface = b.Surface[i]
+		}
+	}
+	lex, err := trie.AppendSection(nil, entries)
+	if err != nil {
+		return nil, fmt.Errorf("lexicon: %w", err)
+	}
+	grams, err := lm.AppendSection(nil, b, lm.LayoutOptions{QuantBits: qbits})
+	if err != nil {
+		return nil, fmt.Errorf("n-grams: %w", err)
+	}
+	meta.Order = b.Order()
+	meta.Vocab = len(b.Vocab)
+	meta.QuantBits = qbits
+	meta.NGrams = b.NGrams()
+	meta.Tokens = b.Tokens
+	if meta.Discounts == nil {
+		meta.Discounts = b.Discounts
+	}
+	mj, err := json.Marshal(meta)
+	if err != nil {
+		return nil, err
+	}
+	secs := []format.Section{
+		{Kind: format.KindMeta, Data: mj},
+		{Kind: format.KindLexicon, Data: lex},
+		{Kind: format.KindNgrams, Data: grams},
+	}
+	if overlay != nil {
+		secs = append(secs, format.Section{Kind: format.KindOverlay, Data: overlay})
+	}
+	return format.Append(nil, secs)
+}
+
+// Model is an opened model file. Its slices alias the bytes given to Load.
+type Model struct {
+	File    *format.File
+	Meta    Meta
+	Lex     *trie.Lexicon
+	LM      *lm.Model
+	Overlay []byte // nil when the file has no overlay section
+	Size    int
+}
+
+// LoadOptions controls Load.
+type LoadOptions struct {
+	// VerifyAll checks the CRC-32C of every section (reads every page).
+	// Without it only the metadata and lexicon sections are checked (the
+	// lexicon always is, before it reaches the FST decoder).
+	VerifyAll bool
+}
+
+// Load opens the model file held in b without copying its tables.
+func Load(b []byte, opts LoadOptions) (*Model, error) {
+	f, err := format.Parse(b)
+	if err != nil {
+		return nil, err
+	}
+	if opts.VerifyAll {
+		if err := f.VerifyAll(); err != nil {
+			return nil, err
+		}
+	}
+	m := &Model{File: f, Size: len(b)}
+	mb, ok := f.Section(format.KindMeta)
+	if !ok {
+		return nil, fmt.Errorf("%w: metadata", ErrMissingSection)
+	}
+	if err := f.Verify(format.KindMeta); err != nil {
+		return nil, err
+	}
+	if err := json.Unmarshal(mb, &m.Meta); err != nil {
+		return nil, fmt.Errorf("%w: metadata: %v", format.ErrCorrupt, err)
+	}
+	lb, ok := f.Section(format.KindLexicon)
+	if !ok {
+		return nil, fmt.Errorf("%w: lexicon", ErrMissingSection)
+	}
+	if err := f.Verify(format.KindLexicon); err != nil {
+		return nil, err
+	}
+	if m.Lex, err = trie.LoadSection(lb); err != nil {
+		return nil, err
+	}
+	gb, ok := f.Section(format.KindNgrams)
+	if !ok {
+		return nil, fmt.Errorf("%w: n-grams", ErrMissingSection)
+	}
+	if m.LM, err = lm.LoadSection(gb); err != nil {
+		return nil, err
+	}
+	if m.LM.VocabSize() != m.Lex.Len() {
+		return nil, fmt.Errorf("%w: lexicon has %d words, n-gram tables %d", ErrMismatch, m.Lex.Len(), m.LM.VocabSize())
+	}
+	if ob, ok := f.Section(format.KindOverlay); ok {
+		if err := f.Verify(format.KindOverlay); err != nil {
+			return nil, err
+		}
+		m.Overlay = ob
+	}
+	return m, nil
+}
+
+// Source is one input of a build.
+type Source struct {
+	Name string
+	R    io.Reader
+	Kind SourceKind
+	// Weight is the pseudo-count of each word of a word list.
+	Weight float64
+}
+
+// SourceKind tells how a build reads a source.
+type SourceKind int
+
+// Kinds of build input.
+const (
+	SourceText        SourceKind = iota // running text
+	SourceTokenized                     // one sentence per line, tokens separated by spaces
+	SourceWordCounts                    // word<TAB>count lines
+	SourceWordList                      // one word per line
+)
+
+// BuildOptions controls Build.
+type BuildOptions struct {
+	Order     int    // default 3
+	QuantBits int    // default 8; -1 means lossless
+	Corpus    string // description stored in the metadata
+	// Progress, if not nil, reports bytes read from the current source.
+	Progress func(source string, bytes int64)
+}
+
+// Build counts the sources, estimates a modified Kneser-Ney model and returns
+// the exact model and the bytes of its model file.
+func Build(ctx context.Context, sources []Source, opts BuildOptions) (*lm.Backoff, []byte, error) {
+	order := opts.Order
+	if order == 0 {
+		order = 3
+	}
+	q := opts.QuantBits
+	switch {
+	case q == 0:
+		q = 8
+	case q < 0:
+		q = 0
+	}
+	c, err := lm.NewCounter(order)
+	if err != nil {
+		return nil, nil, err
+	}
+	var names []string
+	for _, s := range sources {
+		names = append(names, s.Name)
+		var err error
+		switch s.Kind {
+		case SourceText, SourceTokenized:
+			var prog func(int64)
+			if opts.Progress != nil {
+				name := s.Name
+				prog = func(n int64) { opts.Progress(name, n) }
+			}
+			err = c.AddText(ctx, s.R, lm.ScanOptions{Pretokenized: s.Kind == SourceTokenized}, prog)
+		case SourceWordCounts:
+			err = c.AddWordCounts(s.R)
+		case SourceWordList:
+			err = c.AddWordList(s.R, s.Weight)
+		}
+		if err != nil {
+			return nil, nil, fmt.Errorf("%s: %w", s.Name, err)
+		}
+	}
+	b, err := lm.Estimate(ctx, c, lm.EstimateOptions{})
+	if err != nil {
+		return nil, nil, err
+	}
+	data, err := Encode(b, Meta{Corpus: opts.Corpus, Sources: names}, q, nil)
+	return b, data, err
+}

@@ -1,0 +1,116 @@
+package lm
+
+import (
+	"bytes"
+	"context"
+	"fmt"
+	"path/filepath"
+	"runtime"
+	"sort"
+	"strings"
+	"testing"
+)
+
+// BenchmarkBuild counts and estimates an order-3 model from the Opticks
+// training text repeated to the given number of tokens, on one goroutine.
+func BenchmarkBuild(b *testing.B) {
+	text := readFile(b, filepath.Join("testdata", "opticks-train.txt"))
+	perCopy := len(strings.Fields(text))
+	for _, tokens := range []int{1_000_000, 10_000_000} {
+		reps := max(1, tokens/perCopy)
+		corpus := strings.Repeat(text, reps)
+		b.Run(fmt.Sprintf("tokens=%dM", tokens/1_000_000), func(b *testing.B) {
+			b.SetBytes(int64(len(corpus)))
+			b.ReportAllocs()
+			var ms runtime.MemStats
+			var peak uint64
+			for b.Loop() {
+				c, _ := NewCounter(3)
+				if err := c.AddText(context.Background(), strings.NewReader(corpus), ScanOptions{Pretokenized: true}, nil); err != nil {
+					b.Fatal(err)
+				}
+				m, err := Estimate(context.Background(), c, EstimateOptions{})
+				if err != nil {
+					b.Fatal(err)
+				}
+				runtime.ReadMemStats(&ms)
+				peak = max(peak, ms.HeapInuse)
+				_ = m
+			}
+			b.ReportMetric(float64(perCopy*reps)*float64(b.N)/b.Elapsed().Seconds()/1e6, "Mtokens/s")
+			b.ReportMetric(float64(peak)/(1<<20), "heapMB")
+		})
+	}
+}
+
+func benchModel(b *testing.B, qbits int) built {
+	return buildText(b, readFile(b, filepath.Join("testdata", "opticks-train.txt")), 3, ScanOptions{Pretokenized: true}, qbits)
+}
+
+// BenchmarkTopK measures next-word prediction for 2-word contexts taken
+// from the test text, with and without a typed-prefix restriction.
+func BenchmarkTopK(b *testing.B) {
+	x := benchModel(b, 8)
+	test := strings.Fields(readFile(b, filepath.Join("testdata", "opticks-test.txt")))
+	var ctxs [][]uint32
+	var prefixes [][2]uint32
+	for i := 2; i < len(test) && len(ctxs) < 512; i++ {
+		ctxs = append(ctxs, x.ids(b, test[i-2:i]))
+		p := test[i][:min(2, len(test[i]))]
+		lo := sort.SearchStrings(x.b.Vocab, p)
+		hi := sort.Search(len(x.b.Vocab), func(j int) bool {
+			return x.b.Vocab[j] >= p && !strings.HasPrefix(x.b.Vocab[j], p)
+		})
+		prefixes = append(prefixes, [2]uint32{uint32(lo), uint32(hi)})
+	}
+	V := uint32(x.m.VocabSize())
+	dst := make([]Scored, 0, MaxK)
+	b.Run("next-word/k=3", func(b *testing.B) {
+		b.ReportAllocs()
+		i := 0
+		for b.Loop() {
+			dst = x.m.TopK(ctxs[i%len(ctxs)], 0, V, 3, dst[:0])
+			i++
+		}
+	})
+	b.Run("prefix2/k=3", func(b *testing.B) {
+		b.ReportAllocs()
+		i := 0
+		for b.Loop() {
+			r := prefixes[i%len(prefixes)]
+			dst = x.m.TopK(ctxs[i%len(ctxs)], r[0], r[1], 3, dst[:0])
+			i++
+		}
+	})
+	b.Run("logprob", func(b *testing.B) {
+		b.ReportAllocs()
+		i := 0
+		for b.Loop() {
+			c := ctxs[i%len(ctxs)]
+			x.m.LogProb(c[:1], c[1])
+			i++
+		}
+	})
+}
+
+// BenchmarkLayout reports the size of the n-gram section per stored n-gram.
+func BenchmarkLayout(b *testing.B) {
+	x := benchModel(b, 0)
+	for _, q := range []int{8, 0} {
+		b.Run(fmt.Sprintf("qbits=%d", q), func(b *testing.B) {
+			var sec []byte
+			for b.Loop() {
+				var err error
+				if sec, err = AppendSection(sec[:0], x.b, LayoutOptions{QuantBits: q}); err != nil {
+					b.Fatal(err)
+				}
+			}
+			total := 0
+			for _, n := range x.b.NGrams() {
+				total += n
+			}
+			b.ReportMetric(float64(len(sec))/float64(total), "bytes/ngram")
+			_ = bytes.MinRead
+		})
+	}
+}

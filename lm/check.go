@@ -1,0 +1,187 @@
+package lm
+
+import (
+	"math"
+	"math/bits"
+)
+
+// Check verifies every value of a loaded section, which LoadSection does
+// not read (loading stays O(1) in the model size and touches no table page):
+//
+//   - every word ID is below the vocabulary size;
+//   - every probability and back-off code is below its codebook's length
+//     (lossless values are not NaN or +Inf);
+//   - the successor bits agree with their rank directory, and their count
+//     with the start array; the start array begins at 0, rises strictly (a
+//     context has at least one successor) and ends at the next order's size;
+//   - each successor group is sorted strictly by word;
+//   - a context has a top list exactly when its group is longer than
+//     TopListLen, the top-list bits agree with their rank directory and the
+//     lists fill the top array; each list holds distinct offsets inside its
+//     group, in non-increasing probability, and no successor outside it is
+//     more probable than its last entry;
+//   - each node of the unigram maximum tree holds the largest value below it.
+//
+// Check returns nil or a *SectionError (matching ErrCorrupt) naming the
+// first fault. It never panics on a model that LoadSection accepted. Cost:
+// O(n-grams); it reads every page of the section.
+func (m *Model) Check() error {
+	V := m.vocab
+	for i := range m.lv {
+		l := &m.lv[i]
+		n := l.n
+		if err := checkCodes(l.probs, l.probBook, n, "probability"); err != nil {
+			return err
+		}
+		if n > 1 {
+			for p := range l.size {
+				if w := l.words.at(p); w >= uint64(V) {
+					return corrupt(0, "order %d entry %d: word id %d of %d", n, p, w, V)
+				}
+			}
+		}
+		if n == m.order {
+			continue
+		}
+		if err := m.checkSuccessors(l); err != nil {
+			return err
+		}
+	}
+	return m.checkTree()
+}
+
+// checkCodes checks the codes (or lossless values) of a vector.
+func checkCodes(v vec, cb codebook, n int, what string) error {
+	for i := range v.n {
+		c := v.at(i)
+		if cb == nil {
+			if x := math.Float64frombits(c); math.IsNaN(x) || math.IsInf(x, 1) {
+				return corrupt(0, "order %d %s %d: value %v", n, what, i, x)
+			}
+		} else if c >= uint64(len(cb)) {
+			return corrupt(0, "order %d %s %d: code %d, codebook has %d", n, what, i, c, len(cb))
+		}
+	}
+	return nil
+}
+
+// checkRank checks a bit vector's rank directory and returns its count of set bits.
+func checkRank(r rankBits, n int, what string) (int, error) {
+	c := 0
+	for blk := 0; blk*512 <= r.n; blk++ {
+		if s := r.samples.at(blk); s != uint64(c) {
+			return 0, corrupt(0, "order %d %s rank sample %d is %d, want %d", n, what, blk, s, c)
+		}
+		for wi := blk * 8; wi < blk*8+8 && wi*64 < r.n; wi++ {
+			x := r.w[wi]
+			if rest := r.n - wi*64; rest < 64 {
+				x &= 1<<uint(rest) - 1
+			}
+			c += bits.OnesCount64(x)
+		}
+	}
+	return c, nil
+}
+
+// checkSuccessors checks the successor tables of level l (order < model order).
+func (m *Model) checkSuccessors(l *level) error {
+	n := l.n
+	next := &m.lv[n]
+	C := l.start.n - 1
+	nc, err := checkRank(l.has, n, "successor")
+	if err != nil {
+		return err
+	}
+	if nc != C {
+		return corrupt(0, "order %d: %d entries have successors, the start array has %d contexts", n, nc, C)
+	}
+	if err := checkCodes(l.bow, l.bowBook, n, "back-off weight"); err != nil {
+		return err
+	}
+	if s := l.start.at(0); s != 0 {
+		return corrupt(0, "order %d: start array begins at %d", n, s)
+	}
+	if e := l.start.at(C); e != uint64(next.size) {
+		return corrupt(0, "order %d: start array ends at %d, order %d has %d entries", n, e, n+1, next.size)
+	}
+	nb, err := checkRank(l.big, n, "top-list")
+	if err != nil {
+		return err
+	}
+	if want := uint64(nb) * TopListLen; uint64(l.top.n) != want {
+		return corrupt(0, "order %d: top array holds %d offsets, want %d", n, l.top.n, want)
+	}
+	b := 0 // top lists seen
+	for c := range C {
+		lo64, hi64 := l.start.at(c), l.start.at(c+1)
+		if hi64 <= lo64 || hi64 > uint64(next.size) {
+			return corrupt(0, "order %d context %d: successor group [%d, %d)", n, c, lo64, hi64)
+		}
+		lo, hi := int(lo64), int(hi64)
+		for p := lo + 1; p < hi; p++ {
+			if next.words.at(p-1) >= next.words.at(p) {
+				return corrupt(0, "order %d entry %d: successors not sorted strictly by word", n+1, p)
+			}
+		}
+		isBig := l.big.get(c)
+		if isBig != (hi-lo > TopListLen) {
+			return corrupt(0, "order %d context %d: top-list bit %v for a group of %d", n, c, isBig, hi-lo)
+		}
+		if !isBig {
+			continue
+		}
+		var listed [TopListLen]int
+		for i := range TopListLen {
+			off := l.top.at(b*TopListLen + i)
+			if off >= uint64(hi-lo) {
+				return corrupt(0, "order %d context %d: top-list offset %d outside a group of %d", n, c, off, hi-lo)
+			}
+			listed[i] = lo + int(off)
+			for _, q := range listed[:i] {
+				if q == listed[i] {
+					return corrupt(0, "order %d context %d: top-list offset %d repeated", n, c, off)
+				}
+			}
+			if i > 0 && next.prob(listed[i]) > next.prob(listed[i-1]) {
+				return corrupt(0, "order %d context %d: top list not in probability order", n, c)
+			}
+		}
+		last := next.prob(listed[TopListLen-1])
+	scan:
+		for p := lo; p < hi; p++ {
+			for _, q := range listed {
+				if q == p {
+					continue scan
+				}
+			}
+			if next.prob(p) > last {
+				return corrupt(0, "order %d context %d: entry %d is more probable than the top list's last", n, c, p)
+			}
+		}
+		b++
+	}
+	return nil
+}
+
+// checkTree checks the unigram maximum tree.
+func (m *Model) checkTree() error {
+	u := &m.lv[0]
+	below := m.vocab
+	for lvl := 1; lvl <= len(m.tree); lvl++ {
+		t := m.tree[lvl-1]
+		if err := checkCodes(t, u.probBook, 1, "maximum-tree node"); err != nil {
+			return err
+		}
+		for i := range t.n {
+			best := math.Inf(-1)
+			for c := i * treeFanout; c < min((i+1)*treeFanout, below); c++ {
+				best = max(best, m.treeVal(lvl-1, uint32(c)))
+			}
+			if got := m.treeVal(lvl, uint32(i)); got != best {
+				return corrupt(0, "maximum tree level %d node %d holds %v, the largest below is %v", lvl, i, got, best)
+			}
+		}
+		below = t.n
+	}
+	return nil
+}

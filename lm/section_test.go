@@ -1,0 +1,388 @@
+package lm
+
+import (
+	"encoding/binary"
+	"errors"
+	"fmt"
+	"math"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+// smallText is a corpus small enough to damage a section byte by byte, with
+// a context ("the") that has more than TopListLen successors, so top lists
+// and the maximum tree (more than 32 words) are present.
+func smallText(t testing.TB) string {
+	t.Helper()
+	lines := strings.SplitN(readFile(t, filepath.Join("testdata", "opticks-train.txt")), "\n", 13)
+	return readFile(t, filepath.Join("testdata", "reference", "toy-train.txt")) + strings.Join(lines[:12], "\n")
+}
+
+// smallSection returns a section built from smallText and its vocabulary.
+func smallSection(t testing.TB, order, qbits int) ([]byte, *Backoff) {
+	t.Helper()
+	x := buildText(t, smallText(t), order, ScanOptions{Pretokenized: true}, qbits)
+	sec, err := AppendSection(nil, x.b, LayoutOptions{QuantBits: qbits})
+	if err != nil {
+		t.Fatal(err)
+	}
+	return sec, x.b
+}
+
+// dirEntry is a directory entry of a section, as FORMAT.md lays it out.
+type dirEntry struct {
+	pos           int // byte offset of the entry
+	width         uint
+	n, off, words uint64
+}
+
+func directory(t testing.TB, sec []byte) map[uint32]dirEntry {
+	t.Helper()
+	le := binary.LittleEndian
+	nd := int(le.Uint32(sec[32:]))
+	out := make(map[uint32]dirEntry, nd)
+	for i := range nd {
+		p := headerSize + i*dirEntrySize
+		out[le.Uint32(sec[p:])] = dirEntry{pos: p, width: uint(le.Uint32(sec[p+4:])),
+			n: le.Uint64(sec[p+8:]), off: le.Uint64(sec[p+16:]), words: le.Uint64(sec[p+24:])}
+	}
+	return out
+}
+
+// getVal and setVal read and write value i of the packed array with tag tg, in place.
+func getVal(t testing.TB, sec []byte, tg uint32, i int) uint64 {
+	t.Helper()
+	d, ok := directory(t, sec)[tg]
+	if !ok || uint64(i) >= d.n {
+		t.Fatalf("array %#x has no value %d", tg, i)
+	}
+	w := make([]uint64, d.words)
+	for j := range w {
+		w[j] = binary.LittleEndian.Uint64(sec[int(d.off)+8*j:])
+	}
+	v := newVec(w, int(d.n), d.width)
+	return v.at(i)
+}
+
+func setVal(t testing.TB, sec []byte, tg uint32, i int, x uint64) {
+	t.Helper()
+	d, ok := directory(t, sec)[tg]
+	if !ok || uint64(i) >= d.n {
+		t.Fatalf("array %#x has no value %d", tg, i)
+	}
+	mask := ^uint64(0)
+	if d.width < 64 {
+		mask = 1<<d.width - 1
+	}
+	x &= mask
+	b := uint(i) * d.width
+	wi, off := int(b>>6), b&63
+	le := binary.LittleEndian
+	p := int(d.off) + 8*wi
+	le.PutUint64(sec[p:], le.Uint64(sec[p:])&^(mask<<off)|x<<off)
+	if off+d.width > 64 {
+		le.PutUint64(sec[p+8:], le.Uint64(sec[p+8:])&^(mask>>(64-off))|x>>(64-off))
+	}
+}
+
+// exercise runs every query on a loaded model; it must not panic, whatever
+// the bytes. It returns the error of Check.
+func exercise(t testing.TB, m *Model) error {
+	t.Helper()
+	V := uint32(m.VocabSize())
+	probe := []uint32{0, 2, V / 2, V - 1, V, math.MaxUint32}
+	var dst [MaxK]Scored
+	for _, a := range probe {
+		for _, b := range probe {
+			for _, w := range probe {
+				m.LogProb([]uint32{a, b}, w)
+			}
+			m.TopK([]uint32{a, b}, 0, V, 5, dst[:0])
+		}
+		m.LogProb(nil, a)
+		m.TopK([]uint32{a}, 0, V, MaxK, dst[:0])
+		m.TopK([]uint32{a}, min(a, V), min(a+9, V), 3, dst[:0])
+	}
+	m.Backoff(make([]string, m.VocabSize()))
+	return m.Check()
+}
+
+// isLoadError reports whether err is one of the errors LoadSection documents.
+func isLoadError(err error) bool {
+	return errors.Is(err, ErrCorrupt) || errors.Is(err, ErrSectionVersion)
+}
+
+func TestCheckValidSections(t *testing.T) {
+	text := strings.Join(strings.SplitN(readFile(t, filepath.Join("testdata", "opticks-train.txt")), "\n", 801)[:800], "\n")
+	for _, order := range []int{1, 2, 3, 5} {
+		for _, q := range []int{0, 4, 8, 16} {
+			t.Run(fmt.Sprintf("order%d/q%d", order, q), func(t *testing.T) {
+				x := buildText(t, text, order, ScanOptions{Pretokenized: true}, q)
+				if err := x.m.Check(); err != nil {
+					t.Errorf("Check() = %v on a section AppendSection wrote", err)
+				}
+			})
+		}
+	}
+}
+
+// TestLoadSectionTruncated cuts a valid section at every length (as
+// compress/flate's TestTruncatedStreams does for streams): each prefix must
+// be refused with ErrCorrupt, since the last array reaches the last byte.
+func TestLoadSectionTruncated(t *testing.T) {
+	for _, q := range []int{0, 8} {
+		sec, _ := smallSection(t, 3, q)
+		for i := range len(sec) {
+			m, err := LoadSection(sec[:i])
+			if !errors.Is(err, ErrCorrupt) {
+				t.Fatalf("q%d: LoadSection(first %d of %d bytes) = %v, %v; want ErrCorrupt", q, i, len(sec), m != nil, err)
+			}
+			var se *SectionError
+			if !errors.As(err, &se) {
+				t.Fatalf("q%d: error %v is not a *SectionError", q, err)
+			}
+		}
+	}
+}
+
+// TestLoadSectionFlipped damages every byte of small sections in two ways:
+// all bits, and one bit (a different one from byte to byte).
+// Loading must fail with a documented error or give a model that answers
+// every query without panicking.
+func TestLoadSectionFlipped(t *testing.T) {
+	for _, c := range []struct{ order, q int }{{3, 8}, {2, 0}, {2, 4}} {
+		t.Run(fmt.Sprintf("order%d/q%d", c.order, c.q), func(t *testing.T) {
+			sec, _ := smallSection(t, c.order, c.q)
+			var refused, loaded, caught int
+			buf := make([]byte, len(sec))
+			for i := range sec {
+				for _, mask := range []byte{0xff, 1 << (i % 8)} {
+					copy(buf, sec)
+					buf[i] ^= mask
+					m, err := LoadSection(buf)
+					if err != nil {
+						if !isLoadError(err) {
+							t.Fatalf("byte %d ^ %#x: LoadSection error %v is not ErrCorrupt or ErrSectionVersion", i, mask, err)
+						}
+						refused++
+						continue
+					}
+					loaded++
+					if err := exercise(t, m); err != nil {
+						if !errors.Is(err, ErrCorrupt) {
+							t.Fatalf("byte %d ^ %#x: Check error %v is not ErrCorrupt", i, mask, err)
+						}
+						caught++
+					}
+				}
+			}
+			t.Logf("%d bytes × 2 flips: %d refused at load, %d loaded (%d of them failed Check)", len(sec), refused, loaded, caught)
+		})
+	}
+}
+
+// TestLoadSectionHeader overwrites one header or directory field at a time;
+// each case expects its own sentinel.
+func TestLoadSectionHeader(t *testing.T) {
+	le := binary.LittleEndian
+	base, _ := smallSection(t, 3, 8)
+	dir := directory(t, base)
+	words2 := dir[tag(tagWords, 2)]
+	set32 := func(off int, v uint32) func([]byte) { return func(b []byte) { le.PutUint32(b[off:], v) } }
+	set64 := func(off int, v uint64) func([]byte) { return func(b []byte) { le.PutUint64(b[off:], v) } }
+	cases := []struct {
+		name  string
+		spoil func([]byte)
+		want  error
+	}{
+		{"version 2", set32(0, 2), ErrSectionVersion},
+		{"version 0", set32(0, 0), ErrSectionVersion},
+		{"order 0", set32(4, 0), ErrCorrupt},
+		{"order 6", set32(4, 6), ErrCorrupt},
+		{"order 2 of 3", set32(4, 2), nil}, // a lower order is readable: the extra arrays are ignored
+		{"order 4 of 3", set32(4, 4), ErrCorrupt},
+		{"vocabulary 2", set32(8, 2), ErrCorrupt},
+		{"vocabulary huge", set32(8, 1<<30), ErrCorrupt},
+		{"vocabulary one more", func(b []byte) { le.PutUint32(b[8:], le.Uint32(b[8:])+1) }, ErrCorrupt},
+		{"qbits 3", set32(12, 3), ErrCorrupt},
+		{"qbits 17", set32(12, 17), ErrCorrupt},
+		{"qbits 0 for 8", set32(12, 0), ErrCorrupt},
+		{"top list 7", set32(16, 7), ErrCorrupt},
+		{"bos out of range", set32(20, 1<<20), ErrCorrupt},
+		{"eos out of range", set32(24, math.MaxUint32), ErrCorrupt},
+		{"unk out of range", set32(28, 1<<25), ErrCorrupt},
+		{"directory too long", set32(32, 1<<20), ErrCorrupt},
+		{"directory empty", set32(32, 0), ErrCorrupt},
+		{"array missing", set32(words2.pos, 0x7777), ErrCorrupt},
+		{"array repeated", func(b []byte) { copy(b[words2.pos:words2.pos+4], b[words2.pos+dirEntrySize:]) }, ErrCorrupt},
+		{"width 0", set32(words2.pos+4, 0), ErrCorrupt},
+		{"width 65", set32(words2.pos+4, 65), ErrCorrupt},
+		{"count huge", set64(words2.pos+8, 1<<62), ErrCorrupt},
+		{"count one less", set64(words2.pos+8, words2.n-1), ErrCorrupt},
+		{"offset misaligned", set64(words2.pos+16, words2.off+4), ErrCorrupt},
+		{"offset inside directory", set64(words2.pos+16, headerSize), ErrCorrupt},
+		{"offset past end", set64(words2.pos+16, uint64(len(base))+8), ErrCorrupt},
+		{"offset huge", set64(words2.pos+16, math.MaxUint64-7), ErrCorrupt},
+		{"words huge", set64(words2.pos+24, math.MaxUint64/8), ErrCorrupt},
+		{"words too few", set64(words2.pos+24, 1), ErrCorrupt},
+		{"start ends short", func(b []byte) {
+			d := directory(t, b)[tag(tagStart, 1)]
+			setVal(t, b, tag(tagStart, 1), int(d.n)-1, 1)
+		}, ErrCorrupt},
+		{"codebook unsorted", func(b []byte) {
+			setVal(t, b, tag(tagProbBook, 2), 0, math.Float64bits(0))
+		}, ErrCorrupt},
+		{"codebook NaN", func(b []byte) {
+			setVal(t, b, tag(tagProbBook, 1), 1, math.Float64bits(math.NaN()))
+		}, ErrCorrupt},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			b := append([]byte(nil), base...)
+			c.spoil(b)
+			m, err := LoadSection(b)
+			if c.want == nil {
+				if err != nil {
+					t.Fatalf("LoadSection = %v, want success", err)
+				}
+				exercise(t, m)
+				return
+			}
+			if !errors.Is(err, c.want) {
+				t.Fatalf("LoadSection = %v, %v; want %v", m != nil, err, c.want)
+			}
+		})
+	}
+}
+
+// TestCheckFindsDamage changes values inside the arrays, which loading does
+// not read; Check must report each one as ErrCorrupt.
+func TestCheckFindsDamage(t *testing.T) {
+	base, b := smallSection(t, 3, 8)
+	V := len(b.Vocab)
+	the, ok := b.ID("the")
+	if !ok {
+		t.Fatal(`no "the" in the small text`)
+	}
+	// "the" as a context: its index among order-1 contexts and its group.
+	c := 0
+	for e := range int(the) {
+		if hasChildren(b, 1, e) {
+			c++
+		}
+	}
+	lo := int(getVal(t, base, tag(tagStart, 1), c))
+	hi := int(getVal(t, base, tag(tagStart, 1), c+1))
+	if hi-lo <= TopListLen {
+		t.Fatalf(`"the" has %d successors, want more than %d`, hi-lo, TopListLen)
+	}
+	big := 0 // top lists before "the"'s
+	for i := range c {
+		if getVal(t, base, tag(tagBig, 1), i) == 1 {
+			big++
+		}
+	}
+	top0 := getVal(t, base, tag(tagTop, 1), big*TopListLen)
+	top1 := getVal(t, base, tag(tagTop, 1), big*TopListLen+1)
+	cases := []struct {
+		name  string
+		spoil func([]byte)
+	}{
+		{"word id out of range", func(s []byte) { setVal(t, s, tag(tagWords, 2), 0, uint64(V)) }},
+		{"group unsorted", func(s []byte) {
+			a, z := getVal(t, s, tag(tagWords, 2), lo), getVal(t, s, tag(tagWords, 2), lo+1)
+			setVal(t, s, tag(tagWords, 2), lo, z)
+			setVal(t, s, tag(tagWords, 2), lo+1, a)
+		}},
+		{"group repeats a word", func(s []byte) {
+			setVal(t, s, tag(tagWords, 2), lo+1, getVal(t, s, tag(tagWords, 2), lo))
+		}},
+		{"start not rising", func(s []byte) { setVal(t, s, tag(tagStart, 1), c+1, uint64(lo)) }},
+		{"start not from 0", func(s []byte) { setVal(t, s, tag(tagStart, 1), 0, 1) }},
+		{"successor bit cleared", func(s []byte) { setVal(t, s, tag(tagHas, 1), int(the), 0) }},
+		{"rank sample wrong", func(s []byte) {
+			d := directory(t, s)[tag(tagHasRank, 1)]
+			setVal(t, s, tag(tagHasRank, 1), int(d.n)-1, getVal(t, s, tag(tagHasRank, 1), int(d.n)-1)+1)
+		}},
+		{"top-list bit cleared", func(s []byte) { setVal(t, s, tag(tagBig, 1), c, 0) }},
+		{"top-list offset outside group", func(s []byte) { setVal(t, s, tag(tagTop, 1), big*TopListLen, uint64(hi-lo)) }},
+		{"top list out of order", func(s []byte) {
+			setVal(t, s, tag(tagTop, 1), big*TopListLen, top1)
+			setVal(t, s, tag(tagTop, 1), big*TopListLen+1, top0)
+		}},
+		{"top list repeats", func(s []byte) { setVal(t, s, tag(tagTop, 1), big*TopListLen+1, top0) }},
+		{"probability code past codebook", func(s []byte) {
+			d := directory(t, s)[tag(tagProbBook, 2)]
+			setVal(t, s, tag(tagProbs, 2), 0, d.n)
+		}},
+		{"weight code past codebook", func(s []byte) {
+			d := directory(t, s)[tag(tagBowBook, 1)]
+			setVal(t, s, tag(tagBow, 1), 0, d.n)
+		}},
+		{"tree maximum wrong", func(s []byte) { setVal(t, s, tag(tagTree+1, 1), 0, 0) }},
+		{"tree code past codebook", func(s []byte) {
+			d := directory(t, s)[tag(tagProbBook, 1)]
+			setVal(t, s, tag(tagTree+1, 1), 0, d.n)
+		}},
+		{"top list's best lowered", func(s []byte) {
+			// The most probable successor of "the" gets the lowest code.
+			setVal(t, s, tag(tagProbs, 2), lo+int(top0), 0)
+		}},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			s := append([]byte(nil), base...)
+			tc.spoil(s)
+			m, err := LoadSection(s)
+			if err != nil {
+				t.Fatalf("LoadSection = %v; the damage is meant to pass loading", err)
+			}
+			if err := exercise(t, m); !errors.Is(err, ErrCorrupt) {
+				t.Errorf("Check() = %v, want ErrCorrupt", err)
+			}
+		})
+	}
+}
+
+// FuzzLoadSection loads arbitrary bytes as a section, seeded with real
+// sections. Anything that loads must answer every query and Check without
+// panicking; a model that passes Check must dequantize to n-grams whose
+// count matches NGrams.
+func FuzzLoadSection(f *testing.F) {
+	for _, c := range []struct{ order, q int }{{1, 0}, {2, 8}, {3, 8}, {3, 0}, {3, 4}} {
+		sec, _ := smallSection(f, c.order, c.q)
+		f.Add(sec)
+	}
+	x := buildText(f, "a b\na b\na c\n", 2, ScanOptions{Pretokenized: true}, 8)
+	sec, err := AppendSection(nil, x.b, LayoutOptions{QuantBits: 8})
+	if err != nil {
+		f.Fatal(err)
+	}
+	f.Add(sec)
+	f.Fuzz(func(t *testing.T, b []byte) {
+		// A fresh heap copy starts on an 8-byte boundary, as a section in a model file does.
+		m, err := LoadSection(append(make([]byte, 0, len(b)+8), b...))
+		if err != nil {
+			if !isLoadError(err) {
+				t.Fatalf("LoadSection error %v is not ErrCorrupt or ErrSectionVersion", err)
+			}
+			return
+		}
+		if m.VocabSize() > 1<<12 {
+			// Large claimed vocabularies make exercise slow, not different.
+			m.LogProb([]uint32{0, 1}, 2)
+			return
+		}
+		if err := exercise(t, m); err != nil {
+			if !errors.Is(err, ErrCorrupt) {
+				t.Fatalf("Check error %v is not ErrCorrupt", err)
+			}
+			return
+		}
+		bo := m.Backoff(make([]string, m.VocabSize()))
+		if got, want := fmt.Sprint(bo.NGrams()), fmt.Sprint(m.NGrams()); got != want {
+			t.Fatalf("a model that passes Check dequantizes to %s n-grams, NGrams says %s", got, want)
+		}
+	})
+}

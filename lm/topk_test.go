@@ -1,0 +1,76 @@
+package lm
+
+import (
+	"fmt"
+	"math/rand/v2"
+	"path/filepath"
+	"slices"
+	"testing"
+)
+
+// bruteTopK is the obvious reference: score every word, sort, cut.
+func bruteTopK(m *Model, ctx []uint32, lo, hi uint32, k int) []Scored {
+	bos, eos, unk := m.Specials()
+	var all []Scored
+	for w := lo; w < hi; w++ {
+		if w == bos || w == eos || w == unk {
+			continue
+		}
+		all = append(all, Scored{w, m.LogProb(ctx, w)})
+	}
+	slices.SortFunc(all, func(a, b Scored) int {
+		if better(a, b) {
+			return -1
+		}
+		if better(b, a) {
+			return 1
+		}
+		return 0
+	})
+	return all[:min(k, len(all))]
+}
+
+func TestTopKMatchesBruteForce(t *testing.T) {
+	text := readFile(t, filepath.Join("testdata", "opticks-train.txt"))
+	seed := uint64(7)
+	t.Logf("seed %d", seed)
+	for _, order := range []int{1, 3, 4} {
+		x := buildText(t, text, order, ScanOptions{Pretokenized: true}, 0)
+		rng := rand.New(rand.NewPCG(seed, uint64(order)))
+		V := uint32(len(x.b.Vocab))
+		for i := range 60 {
+			var ctx []uint32
+			if i%3 != 2 && order > 1 { // mostly seen contexts
+				lv := &x.b.Levels[min(order-2, rng.IntN(order-1))]
+				ctx = slices.Clone(lv.Key(rng.IntN(lv.Len())))
+			} else {
+				for range rng.IntN(3) {
+					ctx = append(ctx, rng.Uint32N(V))
+				}
+			}
+			lo, hi := uint32(0), V
+			if i%2 == 1 { // a prefix-like range
+				lo = rng.Uint32N(V)
+				hi = min(V, lo+1+rng.Uint32N(400))
+			}
+			k := 1 + rng.IntN(8)
+			t.Run(fmt.Sprintf("order%d/%v/%d-%d/k%d", order, ctx, lo, hi, k), func(t *testing.T) {
+				got := x.m.TopK(ctx, lo, hi, k, nil)
+				want := bruteTopK(x.m, ctx, lo, hi, k)
+				if !slices.Equal(got, want) {
+					t.Errorf("TopK = %v, want %v", got, want)
+				}
+			})
+		}
+	}
+}
+
+func TestTopKZeroAlloc(t *testing.T) {
+	x := buildText(t, readFile(t, filepath.Join("testdata", "opticks-train.txt")), 3, ScanOptions{Pretokenized: true}, 8)
+	ctx := x.ids(t, []string{"of", "the"})
+	dst := make([]Scored, 0, 8)
+	allocs := testing.AllocsPerRun(100, func() { dst = x.m.TopK(ctx, 0, uint32(x.m.VocabSize()), 3, dst[:0]) })
+	if allocs != 0 {
+		t.Errorf("TopK allocates %v times per call, want 0", allocs)
+	}
+}

@@ -1,0 +1,150 @@
+package keyloom
+
+import (
+	"math"
+	"strings"
+	"unicode"
+	"unicode/utf8"
+
+	"github.com/keyloom/keyloom/lm"
+)
+
+// Suggestion is one word offered to the user.
+type Suggestion struct {
+	Word string  `json:"word"` // in its display casing
+	Prob float64 `json:"prob"` // probability in context
+}
+
+// Result is the answer to one keystroke.
+type Result struct {
+	// Prefix is the partial word before the cursor ("" right after a space).
+	Prefix string `json:"prefix"`
+	// Completions are words that complete Prefix, most probable first
+	// (empty when Prefix is "").
+	Completions []Suggestion `json:"completions"`
+	// Predictions are the most probable next words when the cursor follows a
+	// space (empty while a word is being typed).
+	Predictions []Suggestion `json:"predictions"`
+}
+
+// maxContextBytes bounds how much of the text before the cursor is read.
+const maxContextBytes = 256
+
+// cursor is the parsed text before the cursor.
+type cursor struct {
+	words  []string // folded context words of the current sentence, oldest first
+	prefix string   // partial word being typed (as typed)
+	start  bool     // the next word starts a sentence
+}
+
+func parseCursor(before string) cursor {
+	if len(before) > maxContextBytes {
+		cut := len(before) - maxContextBytes
+		for cut < len(before) && !utf8.RuneStart(before[cut]) {
+			cut++
+		}
+		before = before[cut:]
+	}
+	var c cursor
+	// The partial word: trailing word characters.
+	end := len(before)
+	i := end
+	for i > 0 {
+		r, w := utf8.DecodeLastRuneInString(before[:i])
+		if !(unicode.IsLetter(r) || unicode.IsDigit(r) || unicode.IsMark(r) || ((r == '\'' || r == '’' || r == '-') && i < end)) {
+			break
+		}
+		i -= w
+	}
+	c.prefix = strings.TrimLeft(before[i:end], "'’-")
+	rest := before[:end-len(c.prefix)]
+	// The current sentence: text after the last sentence end.
+	if j := strings.LastIndexAny(rest, ".!?…\n"); j >= 0 {
+		_, w := utf8.DecodeRuneInString(rest[j:])
+		rest = rest[j+w:]
+	}
+	sc := lm.NewScanner(strings.NewReader(rest), lm.ScanOptions{})
+	for sc.Scan() {
+		for _, t := range sc.Tokens() {
+			c.words = append(c.words, string(t))
+		}
+	}
+	c.start = len(c.words) == 0
+	return c
+}
+
+// Suggest answers one keystroke: given the text before the cursor it returns
+// completions of the word being typed or, after a space, predictions of the
+// next word. Cost: a few microseconds; it allocates only the result.
+func (e *Engine) Suggest(beforeCursor string) (Result, error) {
+	if e.closed.Load() {
+		return Result{}, ErrClosed
+	}
+	c := parseCursor(beforeCursor)
+	m := e.model
+	_, _, unk := m.LM.Specials()
+	// The sentence so far, after <s>; the model reads only the last order−1 IDs.
+	words := c.words
+	if k := m.LM.Order() - 1; len(words) > k {
+		words = words[len(words)-k:]
+	}
+	ctx := make([]uint32, 0, len(words)+1)
+	if bos, ok := m.Lex.ID(lm.BOS); ok {
+		ctx = append(ctx, bos)
+	}
+	for _, w := range words {
+		id, ok := m.Lex.ID(w)
+		if !ok {
+			id = unk
+		}
+		ctx = append(ctx, id)
+	}
+	res := Result{Prefix: c.prefix}
+	var buf [lm.MaxK]lm.Scored
+	k := e.opts.Suggestions
+	if c.prefix == "" {
+		top := m.LM.TopK(ctx, 0, uint32(m.LM.VocabSize()), k, buf[:0])
+		res.Predictions = e.display(top, "", c.start)
+		return res, nil
+	}
+	lo, hi := m.Lex.PrefixRange(lm.Fold(c.prefix))
+	top := m.LM.TopK(ctx, lo, hi, k, buf[:0])
+	res.Completions = e.display(top, c.prefix, c.start && len(c.words) == 0)
+	return res, nil
+}
+
+// display turns scored IDs into suggestions in display casing: the word's
+// usual surface form, raised to the casing of what was typed.
+func (e *Engine) display(top []lm.Scored, typed string, sentenceStart bool) []Suggestion {
+	out := make([]Suggestion, 0, len(top))
+	for _, s := range top {
+		w := e.model.Lex.Surface(s.ID)
+		w = matchCase(w, typed, sentenceStart)
+		out = append(out, Suggestion{Word: w, Prob: math.Exp(s.LogP)})
+	}
+	return out
+}
+
+// matchCase applies the casing pattern of typed (ALL CAPS or Capitalised) to
+// w, and capitalises w at the start of a sentence.
+func matchCase(w, typed string, sentenceStart bool) string {
+	upper, letters := 0, 0
+	for _, r := range typed {
+		if unicode.IsLetter(r) {
+			letters++
+			if unicode.IsUpper(r) {
+				upper++
+			}
+		}
+	}
+	switch {
+	case letters >= 2 && upper == letters:
+		return strings.ToUpper(w)
+	case upper > 0 || (sentenceStart && typed == ""):
+		r, n := utf8.DecodeRuneInString(w)
+		if unicode.IsLower(r) {
+			return string(unicode.ToUpper(r)) + w[n:]
+		}
+	}
+	return w
+}
