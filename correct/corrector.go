@@ -77,7 +77,7 @@ type Options struct {
 	// ErrorModel is the spelling-error model; nil means BuiltinErrorModel.
 	ErrorModel *ErrorModel
 	// MaxCost is the channel cost budget of the search in nats; words
-	// dearer to reach are not found. Default 11 (about two ordinary edits).
+	// dearer to reach are not found. Default 13 (about two ordinary edits).
 	MaxCost float64
 	// LMWeight scales the language-model log-probability against the
 	// channel cost. Default 1.
@@ -117,7 +117,7 @@ func (o *Options) defaults() error {
 			*v = d
 		}
 	}
-	def(&o.MaxCost, 11)
+	def(&o.MaxCost, 13)
 	def(&o.LMWeight, 1)
 	def(&o.ApplyThreshold, 0.5)
 	def(&o.KnownMargin, 10)

@@ -1,6 +1,8 @@
 package lm
 
 import (
+	"os"
+	"time"
 	"encoding/binary"
 	"errors"
 	"fmt"
@@ -361,6 +363,12 @@ func FuzzLoadSection(f *testing.F) {
 	}
 	f.Add(sec)
 	f.Fuzz(func(t *testing.T, b []byte) {
+		t0 := time.Now()
+		defer func() {
+			if time.Since(t0) > time.Second {
+				os.WriteFile(fmt.Sprintf("/tmp/slow-%d.bin", time.Now().UnixNano()), b, 0o644)
+			}
+		}()
 		// A fresh heap copy starts on an 8-byte boundary, as a section in a model file does.
 		m, err := LoadSection(append(make([]byte, 0, len(b)+8), b...))
 		if err != nil {

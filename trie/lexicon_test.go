@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"sort"
 	"strings"
+	"sync"
 	"testing"
 )
 
@@ -225,5 +226,42 @@ func TestBlockSizes(t *testing.T) {
 				}
 			}
 		})
+	}
+}
+
+// TestConcurrentReads runs queries from several goroutines at once on one
+// lexicon; under -race it shows that queries share no mutable state.
+func TestConcurrentReads(t *testing.T) {
+	c := loadCorpus(t, subtlexPath)
+	var wg sync.WaitGroup
+	errs := make(chan string, 8)
+	for g := 0; g < 8; g++ {
+		wg.Add(1)
+		go func(g int) {
+			defer wg.Done()
+			buf := make([]byte, 0, 2*MaxWordLen)
+			for i := g; i < len(c.words); i += 8 * 13 {
+				w := c.words[i]
+				id, ok := c.lex.ID(w)
+				if !ok || int(id) != i {
+					errs <- fmt.Sprintf("ID(%q) = %d, %v, want %d", w, id, ok, i)
+					return
+				}
+				if got := c.lex.AppendWord(buf[:0], id); string(got) != w {
+					errs <- fmt.Sprintf("AppendWord(%d) = %q, want %q", id, got, w)
+					return
+				}
+				c.lex.AppendSurface(buf[:0], id)
+				if lo, hi := c.lex.PrefixRange(w); int(lo) != i || hi <= lo {
+					errs <- fmt.Sprintf("PrefixRange(%q) = [%d,%d), want to start at %d", w, lo, hi, i)
+					return
+				}
+			}
+		}(g)
+	}
+	wg.Wait()
+	close(errs)
+	for e := range errs {
+		t.Error(e)
 	}
 }
