@@ -81,35 +81,15 @@ func (e *Engine) Suggest(beforeCursor string) (Result, error) {
 		return Result{}, ErrClosed
 	}
 	c := parseCursor(beforeCursor)
-	m := e.model
-	_, _, unk := m.LM.Specials()
-	// The sentence so far, after <s>; the model reads only the last order−1 IDs.
-	words := c.words
-	if k := m.LM.Order() - 1; len(words) > k {
-		words = words[len(words)-k:]
-	}
-	ctx := make([]uint32, 0, len(words)+1)
-	if bos, ok := m.Lex.ID(lm.BOS); ok {
-		ctx = append(ctx, bos)
-	}
-	for _, w := range words {
-		id, ok := m.Lex.ID(w)
-		if !ok {
-			id = unk
-		}
-		ctx = append(ctx, id)
-	}
+	ctx := e.contextIDs(c.words, make([]uint32, 0, lm.MaxOrder+1))
 	res := Result{Prefix: c.prefix}
 	var buf [lm.MaxK]lm.Scored
 	k := e.opts.Suggestions
 	if c.prefix == "" {
-		top := m.LM.TopK(ctx, 0, uint32(m.LM.VocabSize()), k, buf[:0])
-		res.Predictions = e.display(top, "", c.start)
+		res.Predictions = e.display(e.topK(ctx, "", k, buf[:0]), "", c.start)
 		return res, nil
 	}
-	lo, hi := m.Lex.PrefixRange(lm.Fold(c.prefix))
-	top := m.LM.TopK(ctx, lo, hi, k, buf[:0])
-	res.Completions = e.display(top, c.prefix, c.start && len(c.words) == 0)
+	res.Completions = e.display(e.topK(ctx, lm.Fold(c.prefix), k, buf[:0]), c.prefix, c.start)
 	return res, nil
 }
 

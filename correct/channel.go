@@ -14,13 +14,13 @@ const inf = float32(1e9)
 // and Zhai (2012): about 8 % of letters wrong, substitutions of nearby keys
 // the largest share; the split between kinds is common practice, no source.
 const (
-	slipSubRate   = 0.04  // a nearby key hit instead
-	slipDropRate  = 0.012 // a letter left out
-	slipDoubleDrop = 0.03 // the second of a doubled letter left out
-	slipInsRate   = 0.012 // an extra key hit next to the intended one
-	slipRepeat    = 0.008 // a key hit twice
-	slipSwapRate  = 0.005 // two letters swapped
-	slipSigma     = 0.5   // spread of touches around a key centre, key widths
+	slipSubRate    = 0.04  // a nearby key hit instead
+	slipDropRate   = 0.012 // a letter left out
+	slipDoubleDrop = 0.03  // the second of a doubled letter left out
+	slipInsRate    = 0.012 // an extra key hit next to the intended one
+	slipRepeat     = 0.008 // a key hit twice
+	slipSwapRate   = 0.005 // two letters swapped
+	slipSigma      = 0.5   // spread of touches around a key centre, key widths
 )
 
 // accentCost is the cost of typing a plain letter for its accented form or
@@ -52,7 +52,7 @@ type channel struct {
 	trans    float32
 	rules    []chRule
 	byBeta   map[string][]int32
-	betaLens []int // distinct β lengths, ascending
+	betaLens []int          // distinct β lengths, ascending
 	cheapSub [256][]costOpt // per typed byte: intended bytes by sub cost
 	cheapDel []costOpt      // intended bytes by deletion cost
 	minEdit  float32        // cheapest non-match edit cost

@@ -172,7 +172,7 @@ func New(lex Lexicon, lm Scorer, opts Options) (*Corrector, error) {
 			return nil, err
 		}
 	}
-	c := &Corrector{lex: lex, lm: lm, opts: opts, ch: newChannel(kb, em), passMargin: 0}
+	c := &Corrector{lex: lex, lm: lm, opts: opts, ch: newChannel(kb, em), passMargin: 3}
 	c.pool.New = func() any { return &scratch{} }
 	return c, nil
 }

@@ -128,7 +128,7 @@ func (l *flatLex) Step(s int, b byte) (int, uint64, bool) {
 	return 0, 0, false
 }
 func (l *flatLex) Final(s int) (bool, uint64) { return l.final[s], 0 }
-func (l *flatLex) CanMatch(s int) bool     { return s >= 0 && s < len(l.final) }
+func (l *flatLex) CanMatch(s int) bool        { return s >= 0 && s < len(l.final) }
 
 // vellumLex adapts a vellum FST mapping each word to its rank.
 type vellumLex struct {
@@ -176,13 +176,13 @@ func (l *vellumLex) Step(s int, b byte) (int, uint64, bool) {
 	return n, out, l.fst.CanMatch(n)
 }
 func (l *vellumLex) Final(s int) (bool, uint64) { return l.fst.IsMatchWithVal(s) }
-func (l *vellumLex) CanMatch(s int) bool     { return l.fst.CanMatch(s) }
+func (l *vellumLex) CanMatch(s int) bool        { return l.fst.CanMatch(s) }
 
 // corpusData is the development lexicon: SUBTLEX-US words with their counts
 // (Brysbaert & New 2009) plus SCOWL large (Atkinson) with a pseudo-count.
 type corpusData struct {
-	words      []string          // sorted, lower-case, unique: SUBTLEX ∪ SCOWL
-	subtlex    []string          // SUBTLEX words by falling count
+	words      []string // sorted, lower-case, unique: SUBTLEX ∪ SCOWL
+	subtlex    []string // SUBTLEX words by falling count
 	count      map[string]float64
 	total      float64
 	subtlexLex []string // sorted SUBTLEX-only word list (about 74k words)

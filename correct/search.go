@@ -54,27 +54,27 @@ type partial struct {
 
 // search is the scratch of one candidate search; it lives in a sync.Pool.
 type search struct {
-	ch       *channel
-	lex      Lexicon
-	t        []byte
-	n, w     int
-	budget   float32
-	maxDepth int
-	rows     []float32
-	mins     []float32
-	extra    []float32
-	path     []byte
-	ins      []float32
-	subQ     []float32 // subQ[j<<8|c]: intended c typed as t[j]; 0 when equal
-	rules    []appRule // sorted by cost
-	first    [256][]int32
+	ch        *channel
+	lex       Lexicon
+	t         []byte
+	n, w      int
+	budget    float32
+	maxDepth  int
+	rows      []float32
+	mins      []float32
+	extra     []float32
+	path      []byte
+	ins       []float32
+	subQ      []float32 // subQ[j<<8|c]: intended c typed as t[j]; 0 when equal
+	rules     []appRule // sorted by cost
+	first     [256][]int32
 	usedFirst []byte
-	act      []partial // partial rule matches, stacked by depth
-	actStart []int     // act[actStart[d]:actEnd[d]] belongs to depth d
-	actEnd   []int
-	done     []partial // rules completed by the row being computed
-	hits     []hit
-	visited  int
+	act       []partial // partial rule matches, stacked by depth
+	actStart  []int     // act[actStart[d]:actEnd[d]] belongs to depth d
+	actEnd    []int
+	done      []partial // rules completed by the row being computed
+	hits      []hit
+	visited   int
 }
 
 // reset prepares a search of typed (already lower-cased) within budget.

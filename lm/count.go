@@ -34,9 +34,11 @@ const (
 )
 
 type caseTally struct {
-	n         [4]uint32
-	other     string
-	otherSeen uint32
+	n [4]uint32
+	// others counts each mixed-case form ("iPhone") separately, so the form
+	// shown is the most frequent one (ties: smallest in byte order) whatever
+	// order the text was counted or merged in. nil until one is seen.
+	others map[string]uint32
 }
 
 type key2 [2]uint64
@@ -49,10 +51,10 @@ type Counter struct {
 	index  map[string]uint32
 	words  []string
 	casing []caseTally
-	uni    []uint64             // raw unigram counts by temporary id
-	short  []map[uint64]uint32  // orders 2..3, index n-2
-	long   []map[key2]uint32    // orders 4..5, index n-4
-	list   []float64            // word-count list counts by temporary id
+	uni    []uint64            // raw unigram counts by temporary id
+	short  []map[uint64]uint32 // orders 2..3, index n-2
+	long   []map[key2]uint32   // orders 4..5, index n-4
+	list   []float64           // word-count list counts by temporary id
 	tokens int64
 	sents  int64
 	ids    []uint32
@@ -175,14 +177,40 @@ func (c *Counter) noteCase(id uint32, surface, folded []byte, initial bool) {
 	if initial && cls == caseTitle {
 		return // a capital at the start of a sentence says nothing
 	}
-	t := &c.casing[id]
-	t.n[cls]++
+	c.casing[id].add(cls, surface, 1)
+}
+
+// add tallies n occurrences of a surface form of class cls.
+func (t *caseTally) add(cls int, surface []byte, n uint32) {
+	t.n[cls] += n
 	if cls == caseOther {
-		if t.other == "" || string(surface) == t.other {
-			t.other = string(surface)
-			t.otherSeen++
+		if t.others == nil {
+			t.others = make(map[string]uint32, 1)
+		}
+		t.others[string(surface)] += n
+	}
+}
+
+// merge adds the tallies of o.
+func (t *caseTally) merge(o *caseTally) {
+	for k := range 4 {
+		t.n[k] += o.n[k]
+	}
+	for f, n := range o.others {
+		t.add(caseOther, []byte(f), 0)
+		t.others[f] += n
+	}
+}
+
+// other returns the most frequent mixed-case form (ties: smallest in byte order).
+func (t *caseTally) other() string {
+	best, bn := "", uint32(0)
+	for f, n := range t.others {
+		if n > bn || n == bn && f < best {
+			best, bn = f, n
 		}
 	}
+	return best
 }
 
 func classifyCase(s []byte) int {
@@ -235,7 +263,7 @@ func (c *Counter) surfaceOf(id uint32) string {
 	case caseUpper:
 		return toUpper(w)
 	case caseOther:
-		return t.other
+		return t.other()
 	}
 	return ""
 }
@@ -387,12 +415,7 @@ func (c *Counter) Merge(o *Counter) error {
 	for id, w := range o.words {
 		remap[id] = c.intern([]byte(w))
 		nid := remap[id]
-		for k := range 4 {
-			c.casing[nid].n[k] += o.casing[id].n[k]
-		}
-		if c.casing[nid].other == "" {
-			c.casing[nid].other = o.casing[id].other
-		}
+		c.casing[nid].merge(&o.casing[id])
 		c.uni[nid] += o.uni[id]
 	}
 	if o.list != nil {
@@ -474,24 +497,9 @@ func (t *table) find(k []uint32) int {
 // snapshot converts the counts to final IDs (lexicographic ranks of the
 // words) and returns the sorted vocabulary and per-order tables.
 func (c *Counter) snapshot() (vocab []string, rank []uint32, tabs []table) {
-	order := make([]uint32, len(c.words))
-	for i := range order {
-		order[i] = uint32(i)
-	}
-	slices.SortFunc(order, func(a, b uint32) int { return cmpString(c.words[a], c.words[b]) })
-	rank = make([]uint32, len(c.words))
-	vocab = make([]string, len(c.words))
-	for r, id := range order {
-		rank[id] = uint32(r)
-		vocab[r] = c.words[id]
-	}
+	vocab, rank, order := c.ranks()
 	tabs = make([]table, c.order)
-	uni := table{n: 1, ids: make([]uint32, len(vocab)), cnt: make([]uint64, len(vocab))}
-	for id, n := range c.uni {
-		uni.ids[rank[id]] = rank[id]
-		uni.cnt[rank[id]] = n
-	}
-	tabs[0] = uni
+	tabs[0] = c.uniTable(rank)
 	const m21 = 1<<21 - 1
 	for i, m := range c.short {
 		n := i + 2
@@ -545,6 +553,56 @@ func (c *Counter) snapshot() (vocab []string, rank []uint32, tabs []table) {
 		tabs[n-1] = t
 	}
 	return vocab, rank, tabs
+}
+
+// ranks sorts the vocabulary: vocab[r] is the word of final ID r, rank maps
+// temporary to final IDs and order is its inverse.
+func (c *Counter) ranks() (vocab []string, rank, order []uint32) {
+	order = make([]uint32, len(c.words))
+	for i := range order {
+		order[i] = uint32(i)
+	}
+	slices.SortFunc(order, func(a, b uint32) int { return cmpString(c.words[a], c.words[b]) })
+	rank = make([]uint32, len(c.words))
+	vocab = make([]string, len(c.words))
+	for r, id := range order {
+		rank[id] = uint32(r)
+		vocab[r] = c.words[id]
+	}
+	return vocab, rank, order
+}
+
+// uniTable returns the unigram table in final IDs.
+func (c *Counter) uniTable(rank []uint32) table {
+	uni := table{n: 1, ids: make([]uint32, len(rank)), cnt: make([]uint64, len(rank))}
+	for id, n := range c.uni {
+		uni.ids[rank[id]] = rank[id]
+		uni.cnt[rank[id]] = n
+	}
+	return uni
+}
+
+// counts returns the counts in final-ID form (see Counts).
+func (c *Counter) counts() *Counts {
+	vocab, rank, tabs := c.snapshot()
+	return c.finalCounts(vocab, rank, tabs)
+}
+
+// finalCounts wraps the vocabulary-sized parts of c (casing, word lists,
+// totals) and the given tables as Counts.
+func (c *Counter) finalCounts(vocab []string, rank []uint32, tabs []table) *Counts {
+	cs := &Counts{order: c.order, vocab: vocab, tabs: tabs, tokens: c.tokens, bos: rank[tmpBOS]}
+	cs.surface = make([]string, len(vocab))
+	for old := range c.words {
+		cs.surface[rank[old]] = c.surfaceOf(uint32(old))
+	}
+	if c.list != nil {
+		cs.list = make([]float64, len(vocab))
+		for old, v := range c.list {
+			cs.list[rank[old]] = v
+		}
+	}
+	return cs
 }
 
 func cmpU64(a, b uint64) int {

@@ -44,14 +44,51 @@ func Estimate(ctx context.Context, c *Counter, opts EstimateOptions) (*Backoff, 
 	if c.tokens == 0 && c.list == nil {
 		return nil, ErrEmptyCorpus
 	}
+	return EstimateCounts(ctx, c.counts(), opts)
+}
+
+// Counts is a finished set of n-gram counts with final word IDs (lexicographic
+// ranks): what Estimate works from. A Counter, a Tally (bounded memory,
+// parallel, count shards) and their merges all produce one; equal counts give
+// an equal Counts whatever path produced them.
+type Counts struct {
+	order   int
+	vocab   []string  // sorted in byte order
+	surface []string  // display form per final ID ("" = the folded word)
+	list    []float64 // word-list counts per final ID; nil without lists
+	tabs    []table   // per order, sorted by final IDs
+	tokens  int64
+	bos     uint32
+}
+
+// Order returns the highest order counted.
+func (cs *Counts) Order() int { return cs.order }
+
+// Tokens returns the number of word tokens counted.
+func (cs *Counts) Tokens() int64 { return cs.tokens }
+
+// NGrams returns the number of distinct n-grams per order (index n-1).
+func (cs *Counts) NGrams() []int {
+	out := make([]int, len(cs.tabs))
+	for i := range cs.tabs {
+		out[i] = cs.tabs[i].len()
+	}
+	return out
+}
+
+// EstimateCounts is Estimate over counts produced by any path (see Counts).
+func EstimateCounts(ctx context.Context, cs *Counts, opts EstimateOptions) (*Backoff, error) {
+	if cs.tokens == 0 && cs.list == nil {
+		return nil, ErrEmptyCorpus
+	}
 	alpha := opts.ListSmoothing
 	if alpha <= 0 {
 		alpha = DefaultListSmoothing
 	}
-	vocab, rank, tabs := c.snapshot()
-	N := c.order
+	vocab, tabs := cs.vocab, cs.tabs
+	N := cs.order
 	V := len(vocab)
-	bos := rank[tmpBOS]
+	bos := cs.bos
 
 	// Adjusted counts: continuation counts for orders < N, raw counts for
 	// n-grams starting with <s> and for the highest order.
@@ -82,10 +119,7 @@ func Estimate(ctx context.Context, c *Counter, opts EstimateOptions) (*Backoff, 
 		}
 	}
 
-	b := &Backoff{Vocab: vocab, Surface: make([]string, V), Tokens: c.tokens}
-	for old := range c.words {
-		b.Surface[rank[old]] = c.surfaceOf(uint32(old))
-	}
+	b := &Backoff{Vocab: vocab, Surface: cs.surface, Tokens: cs.tokens}
 	b.Levels = make([]Level, N)
 	b.Discounts = make([][3]float64, N)
 
@@ -106,14 +140,10 @@ func Estimate(ctx context.Context, c *Counter, opts EstimateOptions) (*Backoff, 
 	// Unigrams.
 	uni := Level{N: 1, IDs: make([]uint32, V), LogP: make([]float64, V), Bow: make([]float64, V)}
 	var listSum float64
-	for old, v := range c.list {
-		if uint32(old) != tmpBOS {
+	for id, v := range cs.list {
+		if uint32(id) != bos {
 			listSum += v
 		}
-	}
-	inv := make([]uint32, V)
-	for old, r := range rank {
-		inv[r] = uint32(old)
 	}
 	var S uint64
 	var N123 [3]uint64
@@ -136,8 +166,8 @@ func Estimate(ctx context.Context, c *Counter, opts EstimateOptions) (*Backoff, 
 			continue
 		}
 		l := 0.0
-		if c.list != nil {
-			l = c.list[inv[id]]
+		if cs.list != nil {
+			l = cs.list[id]
 		}
 		q := (l + alpha) / (listSum + alpha*float64(V-1))
 		p := gamma * q

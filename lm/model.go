@@ -11,7 +11,7 @@ type Model struct {
 	bos, eos     uint32
 	unk          uint32
 	lv           []level
-	tree         []vec // unigram maximum tree, finest level first
+	tree         []vec    // unigram maximum tree, finest level first
 	uniTop       []uint32 // the most probable words, best first (computed at load)
 }
 
@@ -62,7 +62,7 @@ func (m *Model) children(l *level, e int) (lo, hi, c int, ok bool) {
 		return 0, 0, 0, false
 	}
 	lo, hi = int(l.start.at(c)), int(l.start.at(c+1))
-	if hi > m.lv[l.n].size || lo > hi {
+	if lo < 0 || hi > m.lv[l.n].size || lo > hi { // start values past 2^63 read as negative ints
 		return 0, 0, 0, false
 	}
 	return lo, hi, c, true

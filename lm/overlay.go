@@ -1,6 +1,7 @@
 package lm
 
 import (
+	"bufio"
 	"cmp"
 	"errors"
 	"fmt"
@@ -174,6 +175,8 @@ type Overlay struct {
 	cscratch []cacheEnt
 	words    []string
 	surfs    []string
+	br       *bufio.Reader // reused by the tokenizer (NewScanner keeps a large enough bufio.Reader)
+	sr       strings.Reader
 }
 
 // OverlayView is an immutable snapshot of an overlay: the state after some
@@ -367,7 +370,13 @@ func (o *Overlay) learnPiece(w *writer, piece string, openStart, openEnd bool) {
 	if strings.TrimSpace(piece) == "" {
 		return
 	}
-	sc := NewScanner(strings.NewReader(piece), ScanOptions{})
+	o.sr.Reset(piece)
+	if o.br == nil {
+		o.br = bufio.NewReaderSize(&o.sr, 1<<16)
+	} else {
+		o.br.Reset(&o.sr)
+	}
+	sc := NewScanner(o.br, ScanOptions{})
 	first := true
 	pending := false
 	for sc.Scan() {

@@ -17,6 +17,26 @@ type ovCache struct {
 	bi   []cacheEnt // sorted by (prev, tok)
 	sum  float64    // Σ uni weights, stored units
 	grow float64    // stored units per effective unit
+	best [cacheBest]cacheEnt // heaviest unigrams, heaviest first
+	nbest int
+}
+
+// cacheBest is the number of heaviest cache unigrams kept in order.
+const cacheBest = 16
+
+func (c *ovCache) rank() {
+	var tb topBuf
+	tb.k = cacheBest
+	for i, e := range c.uni {
+		if tb.n == tb.k && e.w <= tb.buf[tb.n-1].LogP {
+			continue
+		}
+		tb.push(Scored{ID: uint32(i), LogP: e.w})
+	}
+	c.nbest = tb.n
+	for i, s := range tb.buf[:tb.n] {
+		c.best[i] = c.uni[s.ID]
+	}
 }
 
 type cacheEnt struct {
@@ -85,6 +105,7 @@ func (c ovCache) add(toks []uint32, bos uint32, tau float64, scratch []cacheEnt)
 	out.grow = g
 	out.uni, out.sum = mergeCache(c.uni, ups[len(ups)-n:], floor)
 	out.bi, _ = mergeCache(c.bi, ups[:len(ups)-n], floor)
+	out.rank()
 	return out, ups
 }
 
@@ -179,6 +200,7 @@ func (c ovCache) without(drop func(prev, tok uint32) bool) ovCache {
 			out.bi = append(out.bi, e)
 		}
 	}
+	out.rank()
 	return out
 }
 
@@ -202,5 +224,6 @@ func (c ovCache) remap(V uint32, m func(uint32) uint32) ovCache {
 	}
 	slices.SortFunc(dropped.uni, cmpCache)
 	slices.SortFunc(dropped.bi, cmpCache)
+	dropped.rank()
 	return dropped
 }

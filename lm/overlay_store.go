@@ -41,6 +41,27 @@ type ovNode struct {
 	key   uint64
 	total float64 // Σ cnt over list
 	list  []ovEntry
+	best  [ovNodeBest]uint32 // positions in list of the highest counts, best first
+	nbest int
+}
+
+// ovNodeBest is the number of best successors a node keeps in order.
+const ovNodeBest = 8
+
+// rank fills the node's best list (O(len(list))).
+func (n *ovNode) rank() {
+	var tb topBuf
+	tb.k = ovNodeBest
+	for i, e := range n.list {
+		if tb.n == tb.k && e.cnt <= tb.buf[tb.n-1].LogP {
+			continue
+		}
+		tb.push(Scored{ID: uint32(i), LogP: e.cnt})
+	}
+	n.nbest = tb.n
+	for i, s := range tb.buf[:tb.n] {
+		n.best[i] = s.ID
+	}
 }
 
 func (n *ovNode) find(tok uint32) int {
@@ -201,6 +222,7 @@ func (w *writer) apply(ups []ovUpdate) {
 			}
 		}
 		nn.list = append(nn.list, ol[i:]...)
+		nn.rank()
 		if found {
 			sh.nodes[pos] = nn
 		} else {
@@ -371,6 +393,9 @@ func (v *OverlayView) rebuild(grams []gram) *OverlayView {
 	}
 	for _, sh := range nv.shards {
 		if sh != nil {
+			for _, nd := range sh.nodes {
+				nd.rank()
+			}
 			slices.SortFunc(sh.nodes, func(a, b *ovNode) int { return cmp.Compare(a.key, b.key) })
 		}
 	}

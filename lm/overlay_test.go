@@ -480,3 +480,112 @@ func TestOverlayOptionsInvalid(t *testing.T) {
 		t.Errorf("NewOverlay(nil model) error = %v, want ErrOverlayOptions", err)
 	}
 }
+
+// Save → load → save gives the same bytes, and the loaded overlay scores
+// like the original (cache off: the cache is not saved).
+func TestOverlaySectionRoundTrip(t *testing.T) {
+	opts := OverlayOptions{DisableCache: true, MinTyped: 1}
+	ov, x := newTestOverlay(t, opts)
+	ov.Learn("Quillonby bends the light. The light is Quillonby's!", 3)
+	ov.Learn("Send the prism to Ms Zorblat on Tuesday.", 4)
+	ov.Reject("teh", "the", 4)
+	ov.SetLearning(false)
+	b1 := ov.AppendSection(nil)
+	ov2, err := LoadOverlay(b1, x.m, bvocab{x.b}, opts)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if b2 := ov2.AppendSection(nil); !bytes.Equal(b1, b2) {
+		t.Errorf("save → load → save differs:\n%x\n%x", b1, b2)
+	}
+	if ov2.Learning() || !ov2.Rejected("teh", "the") || !ov2.Known("quillonby") {
+		t.Error("loaded overlay lost the learning flag, a rejected pair or a known word")
+	}
+	v1, v2 := ov.View(), ov2.View()
+	for _, ctx := range [][]string{{"the"}, {"bends", "the"}, {"ms"}} {
+		c1, c2 := []uint32{v1.bos}, []uint32{v2.bos}
+		for _, w := range ctx {
+			c1, c2 = append(c1, mustID(t, v1, w)), append(c2, mustID(t, v2, w))
+		}
+		for _, w := range []string{"light", "prism", "zorblat", "quillonby"} {
+			p1, p2 := v1.LogProb(c1, mustID(t, v1, w)), v2.LogProb(c2, mustID(t, v2, w))
+			if math.Abs(p1-p2) > 1e-12 {
+				t.Errorf("LogProb(%s | %v): saved %v, loaded %v", w, ctx, p1, p2)
+			}
+		}
+	}
+}
+
+// Every truncation and a set of damaged headers give ErrOverlayCorrupt or
+// ErrOverlayVersion, never a panic (the truncation check follows the
+// standard library's compress/flate TestTruncatedStreams).
+func TestLoadOverlayCorrupt(t *testing.T) {
+	ov, x := newTestOverlay(t, OverlayOptions{})
+	ov.Learn("Quillonby bends the light. Send the prism to Zorblat.", 3)
+	ov.Reject("teh", "the", 4)
+	good := ov.AppendSection(nil)
+	for n := range len(good) {
+		if _, err := LoadOverlay(good[:n], x.m, bvocab{x.b}, OverlayOptions{}); !errors.Is(err, ErrOverlayCorrupt) {
+			t.Fatalf("LoadOverlay(first %d of %d bytes) error = %v, want ErrOverlayCorrupt", n, len(good), err)
+		}
+	}
+	damage := []struct {
+		name string
+		at   int
+		b    byte
+		want error
+	}{
+		{"magic", 0, 'X', ErrOverlayCorrupt},
+		{"version", 4, 9, ErrOverlayVersion},
+		{"flags", 6, 0x80, ErrOverlayCorrupt},
+		{"string count", 19, 0x7f, ErrOverlayCorrupt},
+		{"reserved", 36, 1, ErrOverlayCorrupt},
+		{"rejected pair index", len(good) - 9, 0x7f, ErrOverlayCorrupt},
+	}
+	for _, d := range damage {
+		t.Run(d.name, func(t *testing.T) {
+			b := bytes.Clone(good)
+			b[d.at] = d.b
+			if _, err := LoadOverlay(b, x.m, bvocab{x.b}, OverlayOptions{}); !errors.Is(err, d.want) {
+				t.Errorf("LoadOverlay(%s damaged) error = %v, want %v", d.name, err, d.want)
+			}
+		})
+	}
+	if _, err := LoadOverlay(append(bytes.Clone(good), 0), x.m, bvocab{x.b}, OverlayOptions{}); !errors.Is(err, ErrOverlayCorrupt) {
+		t.Errorf("LoadOverlay(trailing byte) error = %v, want ErrOverlayCorrupt", err)
+	}
+}
+
+func FuzzLoadOverlay(f *testing.F) {
+	x := opticksBase(f)
+	ov, err := NewOverlay(x.m, bvocab{x.b}, OverlayOptions{})
+	if err != nil {
+		f.Fatal(err)
+	}
+	f.Add(ov.AppendSection(nil))
+	ov.Learn("Quillonby bends the light. Send the prism to Zorblat on Tuesday!", 3)
+	ov.Reject("teh", "the", 4)
+	f.Add(ov.AppendSection(nil))
+	f.Add([]byte("kovl"))
+	f.Fuzz(func(t *testing.T, b []byte) {
+		o, err := LoadOverlay(b, x.m, bvocab{x.b}, OverlayOptions{})
+		if err != nil {
+			if !errors.Is(err, ErrOverlayCorrupt) && !errors.Is(err, ErrOverlayVersion) {
+				t.Fatalf("LoadOverlay error %v matches no sentinel", err)
+			}
+			return
+		}
+		v := o.View()
+		lo, hi := prefixRange(x.b.Vocab, "l")
+		v.TopK([]uint32{v.bos}, "l", lo, hi, 3, nil)
+		v.TopK([]uint32{v.bos, uint32(v.VocabSize() - 1)}, "", 0, v.V, 3, nil)
+		b2 := o.AppendSection(nil)
+		o2, err := LoadOverlay(b2, x.m, bvocab{x.b}, OverlayOptions{})
+		if err != nil {
+			t.Fatalf("reloading saved overlay: %v", err)
+		}
+		if b3 := o2.AppendSection(nil); !bytes.Equal(b2, b3) {
+			t.Fatal("write → read → write differs")
+		}
+	})
+}

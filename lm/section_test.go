@@ -1,8 +1,6 @@
 package lm
 
 import (
-	"os"
-	"time"
 	"encoding/binary"
 	"errors"
 	"fmt"
@@ -258,35 +256,40 @@ func TestLoadSectionHeader(t *testing.T) {
 	}
 }
 
-// TestCheckFindsDamage changes values inside the arrays, which loading does
-// not read; Check must report each one as ErrCorrupt.
-func TestCheckFindsDamage(t *testing.T) {
-	base, b := smallSection(t, 3, 8)
-	V := len(b.Vocab)
+// theGroup returns the successor group [lo, hi) of "the" at order 2, its
+// context index c among order-1 contexts and the number of top lists before it.
+func theGroup(t testing.TB, sec []byte, b *Backoff) (lo, hi, c, big int) {
+	t.Helper()
 	the, ok := b.ID("the")
 	if !ok {
 		t.Fatal(`no "the" in the small text`)
 	}
-	// "the" as a context: its index among order-1 contexts and its group.
-	c := 0
 	for e := range int(the) {
 		if hasChildren(b, 1, e) {
 			c++
 		}
 	}
-	lo := int(getVal(t, base, tag(tagStart, 1), c))
-	hi := int(getVal(t, base, tag(tagStart, 1), c+1))
+	lo = int(getVal(t, sec, tag(tagStart, 1), c))
+	hi = int(getVal(t, sec, tag(tagStart, 1), c+1))
 	if hi-lo <= TopListLen {
 		t.Fatalf(`"the" has %d successors, want more than %d`, hi-lo, TopListLen)
 	}
-	big := 0 // top lists before "the"'s
 	for i := range c {
-		if getVal(t, base, tag(tagBig, 1), i) == 1 {
+		if getVal(t, sec, tag(tagBig, 1), i) == 1 {
 			big++
 		}
 	}
+	return lo, hi, c, big
+}
+
+// TestCheckFindsDamage changes values inside the arrays, which loading does
+// not read; Check must report each one as ErrCorrupt.
+func TestCheckFindsDamage(t *testing.T) {
+	base, b := smallSection(t, 3, 8)
+	V := len(b.Vocab)
+	the, _ := b.ID("the")
+	lo, hi, c, big := theGroup(t, base, b)
 	top0 := getVal(t, base, tag(tagTop, 1), big*TopListLen)
-	top1 := getVal(t, base, tag(tagTop, 1), big*TopListLen+1)
 	cases := []struct {
 		name  string
 		spoil func([]byte)
@@ -310,8 +313,16 @@ func TestCheckFindsDamage(t *testing.T) {
 		{"top-list bit cleared", func(s []byte) { setVal(t, s, tag(tagBig, 1), c, 0) }},
 		{"top-list offset outside group", func(s []byte) { setVal(t, s, tag(tagTop, 1), big*TopListLen, uint64(hi-lo)) }},
 		{"top list out of order", func(s []byte) {
-			setVal(t, s, tag(tagTop, 1), big*TopListLen, top1)
-			setVal(t, s, tag(tagTop, 1), big*TopListLen+1, top0)
+			// Swap the first two neighbours of the list whose probabilities differ.
+			for i := big * TopListLen; i < (big+1)*TopListLen-1; i++ {
+				a, z := getVal(t, s, tag(tagTop, 1), i), getVal(t, s, tag(tagTop, 1), i+1)
+				if getVal(t, s, tag(tagProbs, 2), lo+int(a)) != getVal(t, s, tag(tagProbs, 2), lo+int(z)) {
+					setVal(t, s, tag(tagTop, 1), i, z)
+					setVal(t, s, tag(tagTop, 1), i+1, a)
+					return
+				}
+			}
+			t.Fatal("the top list of \"the\" has equal probabilities throughout")
 		}},
 		{"top list repeats", func(s []byte) { setVal(t, s, tag(tagTop, 1), big*TopListLen+1, top0) }},
 		{"probability code past codebook", func(s []byte) {
@@ -340,6 +351,11 @@ func TestCheckFindsDamage(t *testing.T) {
 			if err != nil {
 				t.Fatalf("LoadSection = %v; the damage is meant to pass loading", err)
 			}
+			var dst [MaxK]Scored
+			for w := range uint32(m.VocabSize()) { // every one-word context
+				m.TopK([]uint32{w}, 0, uint32(m.VocabSize()), 3, dst[:0])
+				m.LogProb([]uint32{w}, w)
+			}
 			if err := exercise(t, m); !errors.Is(err, ErrCorrupt) {
 				t.Errorf("Check() = %v, want ErrCorrupt", err)
 			}
@@ -352,23 +368,21 @@ func TestCheckFindsDamage(t *testing.T) {
 // panicking; a model that passes Check must dequantize to n-grams whose
 // count matches NGrams.
 func FuzzLoadSection(f *testing.F) {
-	for _, c := range []struct{ order, q int }{{1, 0}, {2, 8}, {3, 8}, {3, 0}, {3, 4}} {
-		sec, _ := smallSection(f, c.order, c.q)
+	// Small seeds keep each execution cheap: two toy models and one with a
+	// top list and a maximum tree.
+	toy := readFile(f, filepath.Join("testdata", "reference", "toy-train.txt"))
+	for _, c := range []struct {
+		text     string
+		order, q int
+	}{{"a b\na b\na c\n", 2, 8}, {toy, 3, 0}, {toy, 3, 8}, {smallText(f), 2, 4}} {
+		x := buildText(f, c.text, c.order, ScanOptions{Pretokenized: true}, c.q)
+		sec, err := AppendSection(nil, x.b, LayoutOptions{QuantBits: c.q})
+		if err != nil {
+			f.Fatal(err)
+		}
 		f.Add(sec)
 	}
-	x := buildText(f, "a b\na b\na c\n", 2, ScanOptions{Pretokenized: true}, 8)
-	sec, err := AppendSection(nil, x.b, LayoutOptions{QuantBits: 8})
-	if err != nil {
-		f.Fatal(err)
-	}
-	f.Add(sec)
 	f.Fuzz(func(t *testing.T, b []byte) {
-		t0 := time.Now()
-		defer func() {
-			if time.Since(t0) > time.Second {
-				os.WriteFile(fmt.Sprintf("/tmp/slow-%d.bin", time.Now().UnixNano()), b, 0o644)
-			}
-		}()
 		// A fresh heap copy starts on an 8-byte boundary, as a section in a model file does.
 		m, err := LoadSection(append(make([]byte, 0, len(b)+8), b...))
 		if err != nil {
@@ -393,4 +407,112 @@ func FuzzLoadSection(f *testing.F) {
 			t.Fatalf("a model that passes Check dequantizes to %s n-grams, NGrams says %s", got, want)
 		}
 	})
+}
+
+// rawArray is an array of a section, unpacked for rewriting.
+type rawArray struct {
+	tag   uint32
+	width uint
+	vals  []uint64
+}
+
+// splitSection returns the header and the arrays of a valid section.
+func splitSection(t testing.TB, sec []byte) ([]byte, []rawArray) {
+	t.Helper()
+	var out []rawArray
+	le := binary.LittleEndian
+	nd := int(le.Uint32(sec[32:]))
+	for i := range nd {
+		p := headerSize + i*dirEntrySize
+		tg := le.Uint32(sec[p:])
+		d := directory(t, sec)[tg]
+		a := rawArray{tag: tg, width: d.width, vals: make([]uint64, d.n)}
+		for j := range a.vals {
+			a.vals[j] = getVal(t, sec, tg, j)
+		}
+		out = append(out, a)
+	}
+	return append([]byte(nil), sec[:headerSize]...), out
+}
+
+// joinSection lays a header and arrays out as AppendSection does.
+func joinSection(hdr []byte, arrs []rawArray) []byte {
+	le := binary.LittleEndian
+	out := append([]byte(nil), hdr...)
+	le.PutUint32(out[32:], uint32(len(arrs)))
+	off := headerSize + dirEntrySize*len(arrs)
+	var body []byte
+	for _, a := range arrs {
+		w := packVec(a.vals, a.width)
+		var d [dirEntrySize]byte
+		le.PutUint32(d[0:], a.tag)
+		le.PutUint32(d[4:], uint32(a.width))
+		le.PutUint64(d[8:], uint64(len(a.vals)))
+		le.PutUint64(d[16:], uint64(off+len(body)))
+		le.PutUint64(d[24:], uint64(len(w)))
+		out = append(out, d[:]...)
+		for _, x := range w {
+			body = le.AppendUint64(body, x)
+		}
+	}
+	return append(out, body...)
+}
+
+// TestLoadSectionWideArrays rewrites arrays whose width the loader does not
+// fix (words, start, top lists) at 64 bits, holding values that do not fit an
+// int or a uint32. Loading may refuse them; if it does not, every query must
+// run without panicking and Check must report the damage.
+func TestLoadSectionWideArrays(t *testing.T) {
+	base, b := smallSection(t, 3, 8)
+	V := uint64(len(b.Vocab))
+	lo, _, _, big := theGroup(t, base, b)
+	best := lo + int(getVal(t, base, tag(tagTop, 1), big*TopListLen)) // most probable successor of "the"
+	hdr, arrs := splitSection(t, base)
+	if got := joinSection(hdr, arrs); string(got) != string(base) {
+		t.Fatal("splitSection and joinSection do not reproduce the section")
+	}
+	cases := []struct {
+		name string
+		tag  uint32
+		i    int
+		val  uint64
+	}{
+		{"start above 2^63", tag(tagStart, 1), 1, 1<<63 + 5},
+		{"start first above 2^63", tag(tagStart, 1), 0, 1 << 63},
+		{"start first -2^40 as int", tag(tagStart, 1), 0, ^uint64(1<<40 - 1)},
+		{"top offset above 2^63", tag(tagTop, 1), 0, 1<<63 + 1},
+		{"top offset -2^40 as int", tag(tagTop, 1), 0, ^uint64(1<<40 - 1)},
+		{"top offset 2^32", tag(tagTop, 1), 0, 1 << 32},
+		{"word above 2^32", tag(tagWords, 2), 0, 1<<32 + 1},
+		{"word above 2^63", tag(tagWords, 3), 0, 1 << 63},
+		{"word 2^32 + 2^20", tag(tagWords, 2), 5, 1<<32 + 1<<20},
+		{"best word 2^32 + V + 100", tag(tagWords, 2), best, 1<<32 + V + 100},
+		{"best word V + 100", tag(tagWords, 2), best, V + 100},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			h, as := splitSection(t, base)
+			for k := range as {
+				if as[k].tag == c.tag {
+					as[k].width = 64
+					as[k].vals[c.i] = c.val
+				}
+			}
+			m, err := LoadSection(joinSection(h, as))
+			if err != nil {
+				if !errors.Is(err, ErrCorrupt) {
+					t.Fatalf("LoadSection = %v, want ErrCorrupt", err)
+				}
+				return
+			}
+			var dst [MaxK]Scored
+			for w := range uint32(m.VocabSize()) { // every one-word context
+				m.TopK([]uint32{w}, 0, uint32(m.VocabSize()), 3, dst[:0])
+				m.LogProb([]uint32{w}, w)
+			}
+			if err := exercise(t, m); !errors.Is(err, ErrCorrupt) {
+				t.Errorf("Check() = %v, want ErrCorrupt", err)
+			}
+		})
+	}
 }

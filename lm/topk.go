@@ -1,6 +1,5 @@
 package lm
 
-
 // MaxK is the largest number of results TopK returns.
 const MaxK = 32
 
@@ -86,7 +85,7 @@ func (m *Model) TopK(ctx []uint32, lo, hi uint32, k int, dst []Scored) []Scored 
 	var seen [MaxK * (MaxOrder + 1)]uint32
 	ns := 0
 	addCand := func(id uint32) bool {
-		if id == m.bos || id == m.eos || id == m.unk {
+		if id >= uint32(m.vocab) || id == m.bos || id == m.eos || id == m.unk { // only a corrupt section stores an id ≥ vocab
 			return false
 		}
 		for _, x := range seen[:ns] {
@@ -138,8 +137,8 @@ func (m *Model) groupTop(l *level, nd node, lo, hi uint32, k int, add func(uint3
 			b := parent.big.rank1(c)
 			got := 0
 			for i := 0; got < k && i < TopListLen && (b*TopListLen+i) < parent.top.n; i++ {
-				off := int(parent.top.at(b*TopListLen + i))
-				if glo+off < ghi && add(uint32(l.words.at(glo+off))) {
+				off := parent.top.at(b*TopListLen + i) // unsigned: a 64-bit value may not fit an int
+				if off < uint64(ghi-glo) && add(uint32(l.words.at(glo+int(off)))) {
 					got++
 				}
 			}

@@ -1,6 +1,10 @@
 package trie
 
-import "github.com/blevesearch/vellum"
+import (
+	"sync"
+
+	"github.com/blevesearch/vellum"
+)
 
 // Lexicon is a loaded lexicon section: a read-only view of the bytes given
 // to [LoadSection]. It is immutable and safe for use by any number of
@@ -14,6 +18,14 @@ type Lexicon struct {
 	words      wordTable
 	casing     casingTable
 	vfst       *vellum.FST
+	lazy       *lazyFST // set when loaded with SkipWalk
+}
+
+// lazyFST checks and loads the vellum FST on first use.
+type lazyFST struct {
+	once sync.Once
+	base int
+	f    *vellum.FST
 }
 
 // Len returns the number of words.
@@ -162,7 +174,22 @@ func (l *Lexicon) AppendTransitions(dst []Transition, state int) []Transition {
 // in place, for cross-checks with vellum's own search (its Levenshtein
 // automaton, say). It is valid as long as the section bytes are. Do not
 // call its Close method.
-func (l *Lexicon) FST() *vellum.FST { return l.vfst }
+//
+// For a lexicon loaded with SkipWalk, the first call runs the checks and
+// walks that LoadSection would have, and returns nil if they fail.
+func (l *Lexicon) FST() *vellum.FST {
+	if l.lazy == nil {
+		return l.vfst
+	}
+	l.lazy.once.Do(func() {
+		states, err := checkFST(l.fst, &l.codes, l.n, l.lazy.base)
+		if err != nil {
+			return
+		}
+		l.lazy.f, _ = loadVellum(l.fst, &l.codes, states, l.lazy.base)
+	})
+	return l.lazy.f
+}
 
 // SizeBreakdown returns the bytes taken by the FST, by the front-coded word
 // table (block offsets and words) and by the casing codes and exceptions.

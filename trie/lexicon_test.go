@@ -203,32 +203,6 @@ func TestSizeBreakdown(t *testing.T) {
 		c.lex.Len(), f, float64(f)/n, tb, float64(tb)/n, cs, float64(cs)/n, len(c.section), float64(len(c.section))/n)
 }
 
-// TestBlockSizes builds the SUBTLEX-US lexicon with word-table blocks of
-// other sizes than the writer's (the loader accepts 1 to 256) and checks
-// that every word comes back by id; blocks past 32 words take the
-// forward-decoding path of AppendWord.
-func TestBlockSizes(t *testing.T) {
-	c := loadCorpus(t, subtlexPath)
-	for _, bs := range []int{1, 7, 33, 256} {
-		t.Run(fmt.Sprint(bs), func(t *testing.T) {
-			sec, err := appendSection(nil, c.entries, bs)
-			if err != nil {
-				t.Fatal(err)
-			}
-			lex, err := LoadSection(sec)
-			if err != nil {
-				t.Fatal(err)
-			}
-			buf := make([]byte, 0, MaxWordLen)
-			for i, w := range c.words { // words[i] has id i: sort.Strings order
-				if got := lex.AppendWord(buf[:0], uint32(i)); string(got) != w {
-					t.Fatalf("block size %d: AppendWord(%d) = %q, want %q", bs, i, got, w)
-				}
-			}
-		})
-	}
-}
-
 // TestConcurrentReads runs queries from several goroutines at once on one
 // lexicon; under -race it shows that queries share no mutable state.
 func TestConcurrentReads(t *testing.T) {

@@ -29,6 +29,23 @@ import (
 // cause a panic. It costs O(len(b)) time; it allocates O(states) temporary
 // memory, most of it one small object per FST state in vellum's walk.
 func LoadSection(b []byte) (*Lexicon, error) {
+	return LoadSectionWith(b, LoadOptions{})
+}
+
+// LoadOptions controls LoadSectionWith. The zero value checks everything.
+type LoadOptions struct {
+	// SkipWalk skips the O(len(b)) checks of the word table and the FST walks,
+	// keeping only the header and layout checks, so that opening costs
+	// microseconds and touches only the header's page. Queries stay safe on
+	// damaged bytes — every state decoding and table read is bounds-checked —
+	// but may give wrong answers, including IDs ≥ Len() that callers must
+	// range-check. Use it for files whose checksum was verified or that the
+	// application wrote itself. Lexicon.FST then checks the FST on first call.
+	SkipWalk bool
+}
+
+// LoadSectionWith is LoadSection with options.
+func LoadSectionWith(b []byte, opts LoadOptions) (*Lexicon, error) {
 	h, err := parseHeader(b)
 	if err != nil {
 		return nil, err
@@ -55,6 +72,15 @@ func LoadSection(b []byte) (*Lexicon, error) {
 			excEnds: b[h.excEndOff:h.excDataOff],
 			excData: b[h.excDataOff : h.excDataOff+h.excDataLen],
 		},
+	}
+	if opts.SkipWalk {
+		root, err := fstRoot(l.fst)
+		if err != nil {
+			return nil, corrupt("fst", int(h.fstOff), "%v", err)
+		}
+		l.root = root
+		l.lazy = &lazyFST{base: int(h.fstOff)}
+		return l, nil
 	}
 	if err := l.words.validate(l.maxWordLen, int(h.blocksOff), int(h.wordsOff)); err != nil {
 		return nil, err

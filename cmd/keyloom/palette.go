@@ -1,0 +1,11 @@
+package main
+
+import "image/color"
+
+// plotPalette holds the project's chart colours (dark teal, amber, plum, slate).
+var plotPalette = []color.Color{
+	color.RGBA{0x1b, 0x6f, 0x6a, 0xff},
+	color.RGBA{0xd0, 0x8a, 0x1e, 0xff},
+	color.RGBA{0x7a, 0x3b, 0x6e, 0xff},
+	color.RGBA{0x4a, 0x55, 0x68, 0xff},
+}

@@ -1,0 +1,78 @@
+// Package correct proposes corrections of typed words: a noisy-channel
+// corrector that walks the lexicon transducer state by state with a
+// weighted Damerau-Levenshtein row, keyboard-aware and trained on real
+// spelling errors.
+//
+//	c, err := correct.New(lexicon, model.LogProb, correct.Options{})
+//	cands, dec := c.Correct("Teh,", contextIDs, 3, nil)
+//	// cands[0].Word == "The,"; dec.Apply says whether to replace on space.
+//
+// # Channel
+//
+// P(typed | intended) mixes two error sources by taking, for each edit, the
+// cheaper explanation:
+//
+//   - keyboard slips: a neighbouring key (probability falling with the
+//     distance between key centres of a [Keyboard], see LAYOUT.md), a key hit
+//     twice, a letter dropped or two swapped;
+//   - spelling errors: rules α→β of up to four bytes a side with learned
+//     costs, in the manner of Brill and Moore (2000), trained by
+//     [TrainErrorModel] on corpora/misspellings-dev.tsv and shipped as
+//     errmodel.tsv (regenerate with `go generate`). Rules seen in fewer than
+//     two pairs are dropped and single-letter edits back off to class costs.
+//
+// A multi-letter rule counts as one step of the search. With unit costs
+// the recurrence is plain optimal-string-alignment distance (tested against
+// github.com/agnivade/levenshtein and vellum's Levenshtein automaton).
+//
+// # Search and ranking
+//
+// The lexicon is walked depth first carrying one DP row per depth; a
+// branch is cut when its row minimum exceeds the cost budget and no
+// multi-letter rule in progress could bring it back. Only bytes whose
+// substitution, deletion or rule cost fits the budget are tried. The walk
+// runs in widening passes (6, 9, then Options.MaxCost nats) and stops
+// after a pass whose best candidate beats leaving the word alone. Words
+// found are ranked by Score = -Cost + LMWeight × ln P(word | context).
+// Missing spaces ("aboutthe" → "about the") are [KindSplit] candidates;
+// stray spaces ("ab out") are handled by [Corrector.Merge], which needs the
+// previous token.
+//
+// # Auto-apply
+//
+// Decision.Confidence is the softmax of the scores over the candidates and
+// the typed word itself (scored with its language-model probability when
+// the lexicon has it, else with Options.UnknownLogProb). Apply needs
+// Confidence ≥ Options.ApplyThreshold. A word the lexicon or the user's
+// Known callback knows is replaced only when an alternative out-scores it
+// by Options.KnownMargin (10 nats by default): false corrections are worse
+// than misses. A rare listed word one edit from a frequent one (about 3 %
+// of the development misspellings are themselves list words, mostly
+// SCOWL-only) is therefore offered as a suggestion, and applied only
+// when the language model makes the frequent word e^10 times likelier.
+// Undone corrections reported by Options.Rejected are not offered again.
+// Candidates never include the typed word itself.
+//
+// # Casing, punctuation, bad input
+//
+// Leading and trailing punctuation are kept and the casing pattern
+// (lower, Capitalised, ALL CAPS) is applied to the candidate. Input that
+// is empty, longer than 48 bytes, invalid UTF-8 or in a non-Latin script
+// gets no candidates. Words are lower-cased with [strings.ToLower], which
+// must match how the lexicon was folded.
+//
+// # Concurrency and cost
+//
+// A Corrector is immutable and safe for concurrent use; per-call scratch
+// comes from a sync.Pool. Correct allocates the candidates' Word strings.
+// Its cost grows with the number of lexicon states within budget: see
+// BenchmarkCorrect8 and the figures in the package's report.
+//
+// # Caveats
+//
+// The search works on bytes: an accented letter typed for another costs two
+// byte edits unless an accent rule covers it; words whose letters lie
+// outside a–z, apostrophe, hyphen and the typed bytes are reached only
+// through rules. The widening passes stop early on a heuristic, so a
+// costlier but much more probable word can occasionally be missed.
+package correct
