@@ -6,19 +6,51 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"runtime"
 
 	"github.com/keyloom/keyloom"
+	"github.com/keyloom/keyloom/internal/evaluate"
 	"github.com/keyloom/keyloom/lm"
 )
 
+// evalReport is the JSON of `keyloom eval`.
+type evalReport struct {
+	KSR                float64   `json:"ksr"`
+	KSRCeiling         float64   `json:"ksr_ceiling"`
+	KSRByK             []float64 `json:"ksr_by_k"`
+	K                  int       `json:"k"`
+	Top1               float64   `json:"top1"`
+	Top3               float64   `json:"top3"`
+	HitByPrefix        []float64 `json:"hit_by_prefix"`
+	Perplexity         float64   `json:"perplexity"`
+	PerplexityWithOOV  float64   `json:"perplexity_with_oov"`
+	OOVRate            float64   `json:"oov_rate"`
+	OOV                int64     `json:"oov"`
+	Tokens             int64     `json:"tokens"`
+	Sentences          int       `json:"sentences"`
+	Words              int64     `json:"words"`
+	Keystrokes         int64     `json:"keystrokes"`
+	KeystrokesBaseline int64     `json:"keystrokes_baseline"`
+	LatencyP50us       float64   `json:"latency_p50_us"`
+	LatencyP99us       float64   `json:"latency_p99_us"`
+	ModelBytes         int       `json:"model_bytes"`
+	Partial            bool      `json:"partial,omitempty"`
+}
+
 func runEval(ctx context.Context, e *env, args []string) error {
 	fs := newFlags(e, "eval", "TEST...",
-		"Measures a model on test text. --ppl reports perplexity and the out-of-vocabulary rate:\n"+
-			"every word and each sentence end is an event; perplexity leaves out-of-vocabulary words\n"+
-			"out, perplexity_with_oov scores them as <unk>.")
+		"Measures a model on test text the way a user would feel it. A simulated typist types\n"+
+			"each word letter by letter and picks a suggestion as soon as the word is among the k\n"+
+			"shown (1 keystroke, space included); keystroke savings KSR = 1 − used/(letters+spaces).\n"+
+			"Also reports next-word top-1/top-3, completion hit rate by typed-prefix length,\n"+
+			"perplexity (every word and sentence end is an event; out-of-vocabulary words are left\n"+
+			"out, and scored as <unk> in perplexity_with_oov), latency per keystroke and model size.")
 	model := fs.String("model", "", "model file (default: the bundled default model)")
-	ppl := fs.Bool("ppl", false, "report perplexity and OOV")
+	k := fs.Int("k", 3, "suggestions shown per keystroke (1-5)")
+	ppl := fs.Bool("ppl", false, "report perplexity and OOV only (fast)")
 	tokenized := fs.Bool("tokenized", false, "TEST is one sentence per line, tokens separated by spaces, no normalization")
+	workers := fs.Int("workers", runtime.NumCPU(), "parallel typists")
+	plotPath := fs.String("plot", "", "draw KSR against k and hit rate against prefix length into this .svg or .png")
 	asJSON := fs.Bool("json", false, "print JSON")
 	pos, err := parse(fs, args)
 	if err != nil {
@@ -27,45 +59,150 @@ func runEval(ctx context.Context, e *env, args []string) error {
 	if len(pos) == 0 {
 		return fmt.Errorf("%w: give at least one TEST file (- for standard input)", errUsage)
 	}
-	if !*ppl {
-		return fmt.Errorf("%w: choose a measurement: --ppl", errUsage)
+	if *k < 1 || *k > evaluate.MaxK {
+		return fmt.Errorf("%w: --k %d: want 1..%d", errUsage, *k, evaluate.MaxK)
 	}
 	eng, err := openModel(ctx, e, *model, keyloom.Options{})
 	if err != nil {
 		return err
 	}
 	defer eng.Close()
-	var readers []io.Reader
-	for _, p := range pos {
-		if p == "-" {
-			readers = append(readers, e.stdin)
-			continue
-		}
-		f, err := os.Open(p)
-		if err != nil {
-			return err
-		}
-		defer f.Close()
-		readers = append(readers, f)
-	}
-	lex := eng.Lexicon()
-	bos, eos, unk := eng.LM().Specials()
-	lookup := func(w []byte) (uint32, bool) { return lex.ID(string(w)) }
-	res, err := lm.Perplexity(ctx, eng.LM(), lookup, bos, eos, unk, io.MultiReader(readers...), lm.ScanOptions{Pretokenized: *tokenized})
+	text, err := readAll(e, pos)
 	if err != nil {
 		return err
 	}
-	if res.Tokens == 0 {
+	opts := lm.ScanOptions{Pretokenized: *tokenized}
+	lex := eng.Lexicon()
+	bos, eos, unk := eng.LM().Specials()
+	lookup := func(w []byte) (uint32, bool) { return lex.ID(string(w)) }
+	pr, err := lm.Perplexity(ctx, eng.LM(), lookup, bos, eos, unk, newBytesReader(text), opts)
+	if err != nil {
+		return err
+	}
+	if pr.Tokens == 0 {
 		return fmt.Errorf("the test text holds no words")
 	}
-	if *asJSON {
-		enc := json.NewEncoder(e.stdout)
-		enc.SetIndent("", "  ")
-		return enc.Encode(res)
+	rep := evalReport{
+		Perplexity: pr.Perplexity, PerplexityWithOOV: pr.PerplexityWithOOV, OOV: pr.OOV, Tokens: pr.Tokens,
+		OOVRate: float64(pr.OOV) / float64(pr.Tokens), ModelBytes: eng.Info().Bytes, K: *k,
 	}
-	fmt.Fprintf(e.stdout, "events              %d (%d sentences)\n", res.Tokens, res.Sentences)
-	fmt.Fprintf(e.stdout, "out of vocabulary   %d (%.2f%%)\n", res.OOV, 100*float64(res.OOV)/float64(res.Tokens))
-	fmt.Fprintf(e.stdout, "perplexity          %.3f\n", res.Perplexity)
-	fmt.Fprintf(e.stdout, "perplexity with OOV %.3f\n", res.PerplexityWithOOV)
+	if *ppl {
+		if *asJSON {
+			return writeJSON(e.stdout, map[string]any{"perplexity": pr.Perplexity, "perplexity_with_oov": pr.PerplexityWithOOV, "oov": pr.OOV, "tokens": pr.Tokens, "oov_rate": rep.OOVRate})
+		}
+		printPPL(e.stdout, &rep)
+		return nil
+	}
+	sents := splitSentences(text, opts)
+	bar := newProgress(e.stderr, "typing", int64(len(sents)))
+	r, err := evaluate.Run(ctx, eng, sents, evaluate.Options{K: *k, Workers: *workers, Progress: func(d, _ int) { bar.set(int64(d)) }})
+	bar.done()
+	if err != nil {
+		return err
+	}
+	fill(&rep, r)
+	if *plotPath != "" {
+		if err := plotEval(*plotPath, []namedReport{{"", r}}); err != nil {
+			return err
+		}
+	}
+	if *asJSON {
+		return writeJSON(e.stdout, rep)
+	}
+	printEval(e.stdout, &rep)
+	if r.Partial {
+		fmt.Fprintln(e.stdout, "(interrupted: partial results)")
+	}
 	return nil
+}
+
+func fill(rep *evalReport, r evaluate.Report) {
+	rep.KSR, rep.KSRCeiling, rep.KSRByK = r.KSR, r.Ceiling, r.KSRByK
+	rep.Top1, rep.Top3, rep.HitByPrefix = r.Top1, r.Top3, r.HitByPrefix
+	rep.Sentences, rep.Words, rep.Keystrokes, rep.KeystrokesBaseline = r.Sentences, r.Words, r.Keystrokes, r.KeystrokesBaseline
+	rep.LatencyP50us, rep.LatencyP99us, rep.Partial = r.LatencyP50us, r.LatencyP99us, r.Partial
+}
+
+type namedReport struct {
+	name string
+	r    evaluate.Report
+}
+
+func plotEval(path string, reps []namedReport) error {
+	var byK, byP panel
+	byK = panel{title: "Keystroke savings by suggestions shown", xlabel: "suggestions shown (k)", ylabel: "KSR"}
+	byP = panel{title: "Completion hit rate by letters typed", xlabel: "letters typed (3 = 3 or more)", ylabel: "hit rate"}
+	for _, nr := range reps {
+		var xs []float64
+		for i := range nr.r.KSRByK {
+			xs = append(xs, float64(i+1))
+		}
+		byK.lines = append(byK.lines, series{nr.name, xs, nr.r.KSRByK})
+		byP.lines = append(byP.lines, series{nr.name, []float64{0, 1, 2, 3}, nr.r.HitByPrefix})
+	}
+	return writeFigure(path, []panel{byK, byP})
+}
+
+func printPPL(w io.Writer, r *evalReport) {
+	fmt.Fprintf(w, "events              %d\n", r.Tokens)
+	fmt.Fprintf(w, "out of vocabulary   %d (%.2f%%)\n", r.OOV, 100*r.OOVRate)
+	fmt.Fprintf(w, "perplexity          %.3f\n", r.Perplexity)
+	fmt.Fprintf(w, "perplexity with OOV %.3f\n", r.PerplexityWithOOV)
+}
+
+func printEval(w io.Writer, r *evalReport) {
+	fmt.Fprintf(w, "%d sentences, %d words, %d letters+spaces\n\n", r.Sentences, r.Words, r.KeystrokesBaseline)
+	fmt.Fprintf(w, "keystroke savings (k=%d)  %6.2f%%   (ceiling %.2f%%; %d of %d keystrokes)\n", r.K, 100*r.KSR, 100*r.KSRCeiling, r.Keystrokes, r.KeystrokesBaseline)
+	fmt.Fprintf(w, "  by k                  ")
+	for i, v := range r.KSRByK {
+		fmt.Fprintf(w, " k=%d %.2f%%", i+1, 100*v)
+	}
+	fmt.Fprintf(w, "\nnext word top-1 / top-3  %6.2f%% / %.2f%%\n", 100*r.Top1, 100*r.Top3)
+	fmt.Fprintf(w, "completion hit rate       0 letters %.2f%%, 1: %.2f%%, 2: %.2f%%, 3+: %.2f%%\n", 100*r.HitByPrefix[0], 100*r.HitByPrefix[1], 100*r.HitByPrefix[2], 100*r.HitByPrefix[3])
+	fmt.Fprintf(w, "perplexity               %7.2f   (with OOV %.2f; OOV rate %.2f%%)\n", r.Perplexity, r.PerplexityWithOOV, 100*r.OOVRate)
+	fmt.Fprintf(w, "latency per keystroke    p50 %.1f µs, p99 %.1f µs\n", r.LatencyP50us, r.LatencyP99us)
+	fmt.Fprintf(w, "model size               %d bytes\n", r.ModelBytes)
+}
+
+func writeJSON(w io.Writer, v any) error {
+	enc := json.NewEncoder(w)
+	enc.SetIndent("", "  ")
+	return enc.Encode(v)
+}
+
+// readAll reads the named files (- = standard input) into memory.
+func readAll(e *env, paths []string) ([]byte, error) {
+	var all []byte
+	for _, p := range paths {
+		var b []byte
+		var err error
+		if p == "-" {
+			b, err = io.ReadAll(e.stdin)
+		} else {
+			b, err = os.ReadFile(p)
+		}
+		if err != nil {
+			return nil, err
+		}
+		all = append(all, b...)
+		if len(b) > 0 && b[len(b)-1] != '\n' {
+			all = append(all, '\n')
+		}
+		all = append(all, '\n') // files never run into each other's sentences
+	}
+	return all, nil
+}
+
+// splitSentences returns the folded tokens of every sentence of text.
+func splitSentences(text []byte, opts lm.ScanOptions) [][]string {
+	var out [][]string
+	sc := lm.NewScanner(newBytesReader(text), opts)
+	for sc.Scan() {
+		s := make([]string, len(sc.Tokens()))
+		for i, t := range sc.Tokens() {
+			s[i] = string(t)
+		}
+		out = append(out, s)
+	}
+	return out
 }

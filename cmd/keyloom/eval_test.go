@@ -1,0 +1,87 @@
+package main
+
+import (
+	"encoding/json"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+func buildOpticks(t *testing.T, dir string) string {
+	t.Helper()
+	model := filepath.Join(dir, "o3.klm")
+	if code, _, errs := runCmd(t, dir, "build", "--tokenized", "--out", model, filepath.Join(refDir, "opticks-train.txt")); code != 0 {
+		t.Fatal(errs)
+	}
+	return model
+}
+
+func TestEvalJSONKeys(t *testing.T) {
+	dir := t.TempDir()
+	model := buildOpticks(t, dir)
+	test := filepath.Join(dir, "t.txt")
+	lines := strings.SplitN(readTestFile(t, filepath.Join(refDir, "opticks-test.txt")), "\n", 31)
+	os.WriteFile(test, []byte(strings.Join(lines[:30], "\n")), 0o644)
+	code, out, errs := runCmd(t, dir, "eval", "--json", "--tokenized", "--plot", filepath.Join(dir, "p.svg"), "--model", model, test)
+	if code != 0 {
+		t.Fatalf("eval: %d %s", code, errs)
+	}
+	var rep map[string]any
+	if err := json.Unmarshal([]byte(out), &rep); err != nil {
+		t.Fatal(err)
+	}
+	for _, k := range []string{"ksr", "top1", "top3", "perplexity", "oov_rate", "words", "keystrokes", "keystrokes_baseline", "latency_p50_us", "latency_p99_us", "model_bytes"} {
+		if _, ok := rep[k]; !ok {
+			t.Errorf("eval --json lacks %q", k)
+		}
+	}
+	// The ceiling (DESIGN.md "Measurements"): KSR ≤ 1 − words/(letters+spaces).
+	if ksr, w, base := rep["ksr"].(float64), rep["words"].(float64), rep["keystrokes_baseline"].(float64); ksr > 1-w/base || ksr <= 0 {
+		t.Errorf("ksr %v outside (0, %v]", ksr, 1-w/base)
+	}
+	if st, err := os.Stat(filepath.Join(dir, "p.svg")); err != nil || st.Size() < 1000 {
+		t.Errorf("plot not written: %v", err)
+	}
+}
+
+func TestEvalBadInput(t *testing.T) {
+	dir := t.TempDir()
+	model := buildOpticks(t, dir)
+	write := func(name, s string) string {
+		p := filepath.Join(dir, name)
+		os.WriteFile(p, []byte(s), 0o644)
+		return p
+	}
+	cases := []struct {
+		name, text string
+		ok         bool
+	}{
+		{"empty", "", false},
+		{"one-word", "light", true},
+		{"other-script", "свет и цвет. 光と色。", true},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			code, out, errs := runCmd(t, dir, "eval", "--json", "--model", model, write(c.name, c.text))
+			if (code == 0) != c.ok {
+				t.Errorf("eval %s: code %d (%s %s)", c.name, code, out, errs)
+			}
+			if strings.Contains(errs, "panic") {
+				t.Error(errs)
+			}
+		})
+	}
+	if code, _, _ := runCmd(t, dir, "eval", "--k", "9", "--model", model, write("x", "a b")); code != 2 {
+		t.Errorf("--k 9: code %d, want 2", code)
+	}
+}
+
+func readTestFile(t *testing.T, p string) string {
+	t.Helper()
+	b, err := os.ReadFile(p)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return string(b)
+}
