@@ -3,6 +3,7 @@ package keyloom
 import (
 	"fmt"
 	"sync/atomic"
+	"time"
 
 	"github.com/keyloom/keyloom/internal/bundle"
 	"github.com/keyloom/keyloom/internal/mmap"
@@ -23,6 +24,20 @@ type Options struct {
 	// reads the whole file. By default only the small metadata and lexicon
 	// sections are checked, so that opening costs about a millisecond.
 	VerifyChecksums bool
+
+	// MinTyped is how many times a word outside the model's vocabulary must
+	// be typed before it is suggested (default 2).
+	MinTyped int
+	// HalfLifeDays is the number of days of use after which what was learned
+	// counts half as much (default 90).
+	HalfLifeDays float64
+	// MaxUserEntries caps the user overlay's n-grams; the weakest are evicted
+	// first (default 50000).
+	MaxUserEntries int
+	// NoLearning starts with learning off (see SetLearning).
+	NoLearning bool
+	// Clock, if not nil, replaces time.Now for the day count used by decay.
+	Clock func() time.Time
 }
 
 func (o Options) withDefaults() (Options, error) {
@@ -42,6 +57,7 @@ type Engine struct {
 	region *mmap.Region // nil for OpenBytes
 	model  *bundle.Model
 	closed atomic.Bool
+	user   userState
 }
 
 // Open maps the model file at path read-only and returns an Engine for it.
@@ -84,7 +100,11 @@ func newEngine(b []byte, opts Options) (*Engine, error) {
 	if err != nil {
 		return nil, err
 	}
-	return &Engine{opts: opts, model: m}, nil
+	e := &Engine{opts: opts, model: m}
+	if err := e.initUser(); err != nil {
+		return nil, err
+	}
+	return e, nil
 }
 
 // Close releases the mapping. Calls made after Close return ErrClosed.

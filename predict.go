@@ -6,25 +6,67 @@ import "github.com/keyloom/keyloom/lm"
 // appends to dst up to k words (folded, without display casing) that may come
 // next after history (the current sentence's folded words, oldest first)
 // and start with prefix (folded; "" for a next-word prediction), most
-// probable first. It returns dst unchanged after Close.
+// probable first, under the base model blended with the user overlay. It
+// returns dst unchanged after Close.
 func (e *Engine) Predict(history []string, prefix string, k int, dst []string) []string {
 	if e.closed.Load() {
 		return dst
 	}
 	var ib [lm.MaxOrder + 1]uint32
-	ctx := e.contextIDs(history, ib[:0])
 	var buf [lm.MaxK]lm.Scored
-	top := e.topK(ctx, prefix, k, buf[:0])
+	q := e.query()
+	top := q.topK(q.contextIDs(history, ib[:0]), prefix, k, buf[:0])
 	for _, s := range top {
-		dst = append(dst, e.model.Lex.Word(s.ID))
+		dst = append(dst, q.word(s.ID))
 	}
 	return dst
 }
 
+// query is one keystroke's consistent view: the base model and, when the
+// user has taught it anything, an overlay snapshot (whose IDs extend the
+// base IDs and are valid only with that snapshot).
+type query struct {
+	e    *Engine
+	view *lm.OverlayView // nil when the overlay is empty
+}
+
+func (e *Engine) query() query {
+	q := query{e: e}
+	if v := e.user.ov.Load().View(); !v.Empty() {
+		q.view = v
+	}
+	return q
+}
+
+func (q query) id(w string) (uint32, bool) {
+	if q.view != nil {
+		return q.view.ID(w)
+	}
+	return q.e.model.Lex.ID(w)
+}
+
+func (q query) word(id uint32) string {
+	if q.view != nil {
+		return q.view.Word(id)
+	}
+	return q.e.model.Lex.Word(id)
+}
+
+// surface returns the display form of id.
+func (q query) surface(id uint32) string {
+	if q.view != nil && id >= uint32(q.e.model.LM.VocabSize()) {
+		if s := q.view.Surface(id); s != "" {
+			return s
+		}
+		return q.view.Word(id)
+	}
+	return q.e.model.Lex.Surface(id)
+}
+
 // contextIDs maps the sentence so far to IDs: <s>, then the last order−1
 // words (unknown words become <unk>). It appends to dst.
-func (e *Engine) contextIDs(words []string, dst []uint32) []uint32 {
-	m := e.model
+func (q query) contextIDs(words []string, dst []uint32) []uint32 {
+	m := q.e.model
 	if k := m.LM.Order() - 1; len(words) > k {
 		words = words[len(words)-k:]
 	}
@@ -33,7 +75,7 @@ func (e *Engine) contextIDs(words []string, dst []uint32) []uint32 {
 	}
 	_, _, unk := m.LM.Specials()
 	for _, w := range words {
-		id, ok := m.Lex.ID(w)
+		id, ok := q.id(w)
 		if !ok {
 			id = unk
 		}
@@ -43,11 +85,22 @@ func (e *Engine) contextIDs(words []string, dst []uint32) []uint32 {
 }
 
 // topK returns the k best words after ctx that start with the folded prefix.
-func (e *Engine) topK(ctx []uint32, prefix string, k int, dst []lm.Scored) []lm.Scored {
-	m := e.model
+func (q query) topK(ctx []uint32, prefix string, k int, dst []lm.Scored) []lm.Scored {
+	m := q.e.model
 	lo, hi := uint32(0), uint32(m.LM.VocabSize())
 	if prefix != "" {
 		lo, hi = m.Lex.PrefixRange(prefix)
 	}
+	if q.view != nil {
+		return q.view.TopK(ctx, prefix, lo, hi, k, dst)
+	}
 	return m.LM.TopK(ctx, lo, hi, k, dst)
+}
+
+// logProb scores w after ctx.
+func (q query) logProb(ctx []uint32, w uint32) float64 {
+	if q.view != nil {
+		return q.view.LogProb(ctx, w)
+	}
+	return q.e.model.LM.LogProb(ctx, w)
 }

@@ -7,6 +7,7 @@ import (
 	"unicode/utf8"
 
 	"github.com/keyloom/keyloom/lm"
+	"golang.org/x/text/unicode/norm"
 )
 
 // Suggestion is one word offered to the user.
@@ -34,10 +35,17 @@ const maxContextBytes = 256
 type cursor struct {
 	words  []string // folded context words of the current sentence, oldest first
 	prefix string   // partial word being typed (as typed)
-	start  bool     // the next word starts a sentence
+	start  bool     // the next word starts a sentence (no words before it)
 }
 
-func parseCursor(before string) cursor {
+func isWordRune(r rune) bool {
+	return unicode.IsLetter(r) || unicode.IsDigit(r) || unicode.IsMark(r)
+}
+
+// parseCursor reads the text before the cursor backwards: the partial word
+// at the end, then at most maxWords words of the current sentence. It reads
+// no further back than maxContextBytes.
+func parseCursor(before string, maxWords int) cursor {
 	if len(before) > maxContextBytes {
 		cut := len(before) - maxContextBytes
 		for cut < len(before) && !utf8.RuneStart(before[cut]) {
@@ -46,30 +54,62 @@ func parseCursor(before string) cursor {
 		before = before[cut:]
 	}
 	var c cursor
-	// The partial word: trailing word characters.
-	end := len(before)
-	i := end
-	for i > 0 {
-		r, w := utf8.DecodeLastRuneInString(before[:i])
-		if !(unicode.IsLetter(r) || unicode.IsDigit(r) || unicode.IsMark(r) || ((r == '\'' || r == '’' || r == '-') && i < end)) {
+	i := len(before)
+	// word returns the start of the word ending at end (end excluded).
+	word := func(end int) int {
+		j := end
+		for j > 0 {
+			r, w := utf8.DecodeLastRuneInString(before[:j])
+			if isWordRune(r) {
+				j -= w
+				continue
+			}
+			// inner joiners: ' ’ - between word runes, . , between digits
+			if j < end && j-w > 0 {
+				p, _ := utf8.DecodeLastRuneInString(before[:j-w])
+				n, _ := utf8.DecodeRuneInString(before[j:])
+				if ((r == '\'' || r == '’' || r == '-') && isWordRune(p) && isWordRune(n)) ||
+					((r == '.' || r == ',') && unicode.IsDigit(p) && unicode.IsDigit(n)) {
+					j -= w
+					continue
+				}
+			}
 			break
 		}
-		i -= w
+		return j
 	}
-	c.prefix = strings.TrimLeft(before[i:end], "'’-")
-	rest := before[:end-len(c.prefix)]
-	// The current sentence: text after the last sentence end.
-	if j := strings.LastIndexAny(rest, ".!?…\n"); j >= 0 {
-		_, w := utf8.DecodeRuneInString(rest[j:])
-		rest = rest[j+w:]
+	if j := word(i); j < i {
+		c.prefix = before[j:i]
+		i = j
 	}
-	sc := lm.NewScanner(strings.NewReader(rest), lm.ScanOptions{})
-	for sc.Scan() {
-		for _, t := range sc.Tokens() {
-			c.words = append(c.words, string(t))
+	var rev []string
+	for len(rev) < maxWords {
+		// skip separators; a sentence end stops the walk
+		for i > 0 {
+			r, w := utf8.DecodeLastRuneInString(before[:i])
+			if isWordRune(r) {
+				break
+			}
+			if r == '.' || r == '!' || r == '?' || r == '…' || r == '\n' {
+				c.start = len(rev) == 0
+				goto done
+			}
+			i -= w
 		}
+		if i == 0 {
+			c.start = len(rev) == 0
+			break
+		}
+		j := word(i)
+		if i-j <= lm.DefaultMaxTokenBytes {
+			rev = append(rev, lm.Fold(norm.NFC.String(before[j:i])))
+		}
+		i = j
 	}
-	c.start = len(c.words) == 0
+done:
+	for k := len(rev) - 1; k >= 0; k-- {
+		c.words = append(c.words, rev[k])
+	}
 	return c
 }
 
@@ -80,25 +120,26 @@ func (e *Engine) Suggest(beforeCursor string) (Result, error) {
 	if e.closed.Load() {
 		return Result{}, ErrClosed
 	}
-	c := parseCursor(beforeCursor)
-	ctx := e.contextIDs(c.words, make([]uint32, 0, lm.MaxOrder+1))
+	c := parseCursor(beforeCursor, e.model.LM.Order()-1)
+	q := e.query()
+	ctx := q.contextIDs(c.words, make([]uint32, 0, lm.MaxOrder+1))
 	res := Result{Prefix: c.prefix}
 	var buf [lm.MaxK]lm.Scored
 	k := e.opts.Suggestions
 	if c.prefix == "" {
-		res.Predictions = e.display(e.topK(ctx, "", k, buf[:0]), "", c.start)
+		res.Predictions = q.display(q.topK(ctx, "", k, buf[:0]), "", c.start)
 		return res, nil
 	}
-	res.Completions = e.display(e.topK(ctx, lm.Fold(c.prefix), k, buf[:0]), c.prefix, c.start)
+	res.Completions = q.display(q.topK(ctx, lm.Fold(c.prefix), k, buf[:0]), c.prefix, c.start)
 	return res, nil
 }
 
 // display turns scored IDs into suggestions in display casing: the word's
 // usual surface form, raised to the casing of what was typed.
-func (e *Engine) display(top []lm.Scored, typed string, sentenceStart bool) []Suggestion {
+func (q query) display(top []lm.Scored, typed string, sentenceStart bool) []Suggestion {
 	out := make([]Suggestion, 0, len(top))
 	for _, s := range top {
-		w := e.model.Lex.Surface(s.ID)
+		w := q.surface(s.ID)
 		w = matchCase(w, typed, sentenceStart)
 		out = append(out, Suggestion{Word: w, Prob: math.Exp(s.LogP)})
 	}

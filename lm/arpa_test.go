@@ -6,7 +6,6 @@ import (
 	"errors"
 	"fmt"
 	"math"
-	"os"
 	"path/filepath"
 	"strings"
 	"testing"
@@ -461,44 +460,4 @@ func bookBound(cb codebook, vals []float64) float64 {
 		worst = max(worst, d)
 	}
 	return worst
-}
-
-// FuzzReadARPA feeds arbitrary text to ReadARPA. Whatever it accepts must
-// write, read back and write again to the same bytes, and lay out as a
-// section that passes Check.
-func FuzzReadARPA(f *testing.F) {
-	for _, text := range []string{"a b\na b\na c\n", "the cat sat\nthe dog sat on the cat\n"} {
-		for _, order := range []int{1, 2, 3} {
-			x := buildText(f, text, order, ScanOptions{Pretokenized: true}, 0)
-			f.Add(writeARPA(f, x.b))
-		}
-	}
-	files, _ := filepath.Glob(filepath.Join("testdata", "arpa", "*.arpa"))
-	for _, p := range files {
-		b, err := os.ReadFile(p)
-		if err != nil {
-			f.Fatal(err)
-		}
-		f.Add(b)
-	}
-	f.Fuzz(func(t *testing.T, text []byte) {
-		b, err := ReadARPA(context.Background(), bytes.NewReader(text))
-		if err != nil {
-			if !errors.Is(err, ErrARPA) {
-				t.Fatalf("ReadARPA error %v does not match ErrARPA", err)
-			}
-			return
-		}
-		first := writeARPA(t, b)
-		b2, err := ReadARPA(context.Background(), bytes.NewReader(first))
-		if err != nil {
-			t.Fatalf("reading what WriteARPA wrote: %v\n%s", err, first)
-		}
-		if second := writeARPA(t, b2); !bytes.Equal(first, second) {
-			t.Fatalf("write → read → write differs:\n%s\n----\n%s", first, second)
-		}
-		if len(b.Vocab) <= 64 {
-			layout(t, b, 0)
-		}
-	})
 }

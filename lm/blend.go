@@ -423,3 +423,8 @@ func cacheLower(s []cacheEnt, tok uint32) int {
 	}
 	return lo
 }
+
+// Empty reports whether the view holds nothing learned (no n-grams and an
+// empty recency cache), so that it scores exactly as the base model and
+// callers may query the base model directly.
+func (v *OverlayView) Empty() bool { return v.entries == 0 && len(v.cache.uni) == 0 }

@@ -245,9 +245,6 @@ func newEngine(t testing.TB, d ksrData, opts OverlayOptions, train [][]string, o
 // count merging with the user's counts weighted ×2). The bar of ≥ 5 points
 // over the base model is the project's requirement (issue text), no outside source.
 func TestPersonalizationKSR(t *testing.T) {
-	if testing.Short() {
-		t.Skip("builds two models and types 5k words; run without -short")
-	}
 	d := ksrSetup(t)
 	n := len(d.sentences)
 	cut := n * 8 / 10

@@ -13,11 +13,11 @@ import (
 // be rewritten; entries whose weight fell below cacheFloor are dropped when
 // the cache is next merged. It is immutable once published.
 type ovCache struct {
-	uni  []cacheEnt // sorted by tok
-	bi   []cacheEnt // sorted by (prev, tok)
-	sum  float64    // Σ uni weights, stored units
-	grow float64    // stored units per effective unit
-	best [cacheBest]cacheEnt // heaviest unigrams, heaviest first
+	uni   []cacheEnt          // sorted by tok
+	bi    []cacheEnt          // sorted by (prev, tok)
+	sum   float64             // Σ uni weights, stored units
+	grow  float64             // stored units per effective unit
+	best  [cacheBest]cacheEnt // heaviest unigrams, heaviest first
 	nbest int
 }
 

@@ -136,9 +136,6 @@ func TestOverlayLearnCounts(t *testing.T) {
 			t.Errorf("count(%q) = %v, want %v", c.gram, got, c.want)
 		}
 	}
-	if got, want := ov.Entries(), 4+1+6+5; got != want { // unigrams the light is red </s>; ...
-		_ = want
-	}
 }
 
 func TestOverlaySecretsNotLearned(t *testing.T) {

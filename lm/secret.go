@@ -195,7 +195,7 @@ func chunkKind(c string) secretKind {
 
 // mixedAllowed reports whether a chunk mixing letters and digits is an
 // ordinary word form rather than a password-like string. Separators
-// ('-', '\'', '.', ',', '_' and the like) are ignored once some part mixes
+// ('-', '\”, '.', ',', '_' and the like) are ignored once some part mixes
 // letters and digits, so "pa55-word" is judged as "pa55word" (a chunk whose
 // parts are each all letters or all digits, like "covid-19", is never mixed). Allowed shapes (project choice, no source):
 // digits then at most three letters ("2nd", "10am", "100mg"); at most three

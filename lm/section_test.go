@@ -113,20 +113,6 @@ func isLoadError(err error) bool {
 	return errors.Is(err, ErrCorrupt) || errors.Is(err, ErrSectionVersion)
 }
 
-func TestCheckValidSections(t *testing.T) {
-	text := strings.Join(strings.SplitN(readFile(t, filepath.Join("testdata", "opticks-train.txt")), "\n", 801)[:800], "\n")
-	for _, order := range []int{1, 2, 3, 5} {
-		for _, q := range []int{0, 4, 8, 16} {
-			t.Run(fmt.Sprintf("order%d/q%d", order, q), func(t *testing.T) {
-				x := buildText(t, text, order, ScanOptions{Pretokenized: true}, q)
-				if err := x.m.Check(); err != nil {
-					t.Errorf("Check() = %v on a section AppendSection wrote", err)
-				}
-			})
-		}
-	}
-}
-
 // TestLoadSectionTruncated cuts a valid section at every length (as
 // compress/flate's TestTruncatedStreams does for streams): each prefix must
 // be refused with ErrCorrupt, since the last array reaches the last byte.
@@ -282,133 +268,6 @@ func theGroup(t testing.TB, sec []byte, b *Backoff) (lo, hi, c, big int) {
 	return lo, hi, c, big
 }
 
-// TestCheckFindsDamage changes values inside the arrays, which loading does
-// not read; Check must report each one as ErrCorrupt.
-func TestCheckFindsDamage(t *testing.T) {
-	base, b := smallSection(t, 3, 8)
-	V := len(b.Vocab)
-	the, _ := b.ID("the")
-	lo, hi, c, big := theGroup(t, base, b)
-	top0 := getVal(t, base, tag(tagTop, 1), big*TopListLen)
-	cases := []struct {
-		name  string
-		spoil func([]byte)
-	}{
-		{"word id out of range", func(s []byte) { setVal(t, s, tag(tagWords, 2), 0, uint64(V)) }},
-		{"group unsorted", func(s []byte) {
-			a, z := getVal(t, s, tag(tagWords, 2), lo), getVal(t, s, tag(tagWords, 2), lo+1)
-			setVal(t, s, tag(tagWords, 2), lo, z)
-			setVal(t, s, tag(tagWords, 2), lo+1, a)
-		}},
-		{"group repeats a word", func(s []byte) {
-			setVal(t, s, tag(tagWords, 2), lo+1, getVal(t, s, tag(tagWords, 2), lo))
-		}},
-		{"start not rising", func(s []byte) { setVal(t, s, tag(tagStart, 1), c+1, uint64(lo)) }},
-		{"start not from 0", func(s []byte) { setVal(t, s, tag(tagStart, 1), 0, 1) }},
-		{"successor bit cleared", func(s []byte) { setVal(t, s, tag(tagHas, 1), int(the), 0) }},
-		{"rank sample wrong", func(s []byte) {
-			d := directory(t, s)[tag(tagHasRank, 1)]
-			setVal(t, s, tag(tagHasRank, 1), int(d.n)-1, getVal(t, s, tag(tagHasRank, 1), int(d.n)-1)+1)
-		}},
-		{"top-list bit cleared", func(s []byte) { setVal(t, s, tag(tagBig, 1), c, 0) }},
-		{"top-list offset outside group", func(s []byte) { setVal(t, s, tag(tagTop, 1), big*TopListLen, uint64(hi-lo)) }},
-		{"top list out of order", func(s []byte) {
-			// Swap the first two neighbours of the list whose probabilities differ.
-			for i := big * TopListLen; i < (big+1)*TopListLen-1; i++ {
-				a, z := getVal(t, s, tag(tagTop, 1), i), getVal(t, s, tag(tagTop, 1), i+1)
-				if getVal(t, s, tag(tagProbs, 2), lo+int(a)) != getVal(t, s, tag(tagProbs, 2), lo+int(z)) {
-					setVal(t, s, tag(tagTop, 1), i, z)
-					setVal(t, s, tag(tagTop, 1), i+1, a)
-					return
-				}
-			}
-			t.Fatal("the top list of \"the\" has equal probabilities throughout")
-		}},
-		{"top list repeats", func(s []byte) { setVal(t, s, tag(tagTop, 1), big*TopListLen+1, top0) }},
-		{"probability code past codebook", func(s []byte) {
-			d := directory(t, s)[tag(tagProbBook, 2)]
-			setVal(t, s, tag(tagProbs, 2), 0, d.n)
-		}},
-		{"weight code past codebook", func(s []byte) {
-			d := directory(t, s)[tag(tagBowBook, 1)]
-			setVal(t, s, tag(tagBow, 1), 0, d.n)
-		}},
-		{"tree maximum wrong", func(s []byte) { setVal(t, s, tag(tagTree+1, 1), 0, 0) }},
-		{"tree code past codebook", func(s []byte) {
-			d := directory(t, s)[tag(tagProbBook, 1)]
-			setVal(t, s, tag(tagTree+1, 1), 0, d.n)
-		}},
-		{"top list's best lowered", func(s []byte) {
-			// The most probable successor of "the" gets the lowest code.
-			setVal(t, s, tag(tagProbs, 2), lo+int(top0), 0)
-		}},
-	}
-	for _, tc := range cases {
-		t.Run(tc.name, func(t *testing.T) {
-			s := append([]byte(nil), base...)
-			tc.spoil(s)
-			m, err := LoadSection(s)
-			if err != nil {
-				t.Fatalf("LoadSection = %v; the damage is meant to pass loading", err)
-			}
-			var dst [MaxK]Scored
-			for w := range uint32(m.VocabSize()) { // every one-word context
-				m.TopK([]uint32{w}, 0, uint32(m.VocabSize()), 3, dst[:0])
-				m.LogProb([]uint32{w}, w)
-			}
-			if err := exercise(t, m); !errors.Is(err, ErrCorrupt) {
-				t.Errorf("Check() = %v, want ErrCorrupt", err)
-			}
-		})
-	}
-}
-
-// FuzzLoadSection loads arbitrary bytes as a section, seeded with real
-// sections. Anything that loads must answer every query and Check without
-// panicking; a model that passes Check must dequantize to n-grams whose
-// count matches NGrams.
-func FuzzLoadSection(f *testing.F) {
-	// Small seeds keep each execution cheap: two toy models and one with a
-	// top list and a maximum tree.
-	toy := readFile(f, filepath.Join("testdata", "reference", "toy-train.txt"))
-	for _, c := range []struct {
-		text     string
-		order, q int
-	}{{"a b\na b\na c\n", 2, 8}, {toy, 3, 0}, {toy, 3, 8}, {smallText(f), 2, 4}} {
-		x := buildText(f, c.text, c.order, ScanOptions{Pretokenized: true}, c.q)
-		sec, err := AppendSection(nil, x.b, LayoutOptions{QuantBits: c.q})
-		if err != nil {
-			f.Fatal(err)
-		}
-		f.Add(sec)
-	}
-	f.Fuzz(func(t *testing.T, b []byte) {
-		// A fresh heap copy starts on an 8-byte boundary, as a section in a model file does.
-		m, err := LoadSection(append(make([]byte, 0, len(b)+8), b...))
-		if err != nil {
-			if !isLoadError(err) {
-				t.Fatalf("LoadSection error %v is not ErrCorrupt or ErrSectionVersion", err)
-			}
-			return
-		}
-		if m.VocabSize() > 1<<12 {
-			// Large claimed vocabularies make exercise slow, not different.
-			m.LogProb([]uint32{0, 1}, 2)
-			return
-		}
-		if err := exercise(t, m); err != nil {
-			if !errors.Is(err, ErrCorrupt) {
-				t.Fatalf("Check error %v is not ErrCorrupt", err)
-			}
-			return
-		}
-		bo := m.Backoff(make([]string, m.VocabSize()))
-		if got, want := fmt.Sprint(bo.NGrams()), fmt.Sprint(m.NGrams()); got != want {
-			t.Fatalf("a model that passes Check dequantizes to %s n-grams, NGrams says %s", got, want)
-		}
-	})
-}
-
 // rawArray is an array of a section, unpacked for rewriting.
 type rawArray struct {
 	tag   uint32
@@ -458,6 +317,19 @@ func joinSection(hdr []byte, arrs []rawArray) []byte {
 	return append(out, body...)
 }
 
+// widen rewrites the array with tag tg of a valid section at 64 bits, with value i set to val.
+func widen(t testing.TB, sec []byte, tg uint32, i int, val uint64) []byte {
+	t.Helper()
+	h, as := splitSection(t, sec)
+	for k := range as {
+		if as[k].tag == tg {
+			as[k].width = 64
+			as[k].vals[i] = val
+		}
+	}
+	return joinSection(h, as)
+}
+
 // TestLoadSectionWideArrays rewrites arrays whose width the loader does not
 // fix (words, start, top lists) at 64 bits, holding values that do not fit an
 // int or a uint32. Loading may refuse them; if it does not, every query must
@@ -491,14 +363,7 @@ func TestLoadSectionWideArrays(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
-			h, as := splitSection(t, base)
-			for k := range as {
-				if as[k].tag == c.tag {
-					as[k].width = 64
-					as[k].vals[c.i] = c.val
-				}
-			}
-			m, err := LoadSection(joinSection(h, as))
+			m, err := LoadSection(widen(t, base, c.tag, c.i, c.val))
 			if err != nil {
 				if !errors.Is(err, ErrCorrupt) {
 					t.Fatalf("LoadSection = %v, want ErrCorrupt", err)

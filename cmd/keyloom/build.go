@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"runtime"
 	"time"
 
 	"github.com/keyloom/keyloom/internal/bundle"
@@ -23,6 +24,10 @@ func runBuild(ctx context.Context, e *env, args []string) error {
 	fs.Var(&counts, "counts", "word-count list (word<TAB>count per line); repeatable")
 	fs.Var(&words, "words", "word list (one word per line), added with a small pseudo-count; repeatable")
 	corpus := fs.String("describe", "", "description of the training data stored in the file")
+	mem := fs.String("mem", "", "bound the memory of the n-gram counts (e.g. 512MB); past it sorted runs spill to a temporary directory")
+	workers := fs.Int("workers", runtime.NumCPU(), "goroutines counting text (the model is the same for any number)")
+	fromCounts := fs.String("from-counts", "", "directory of merged count shards (n-gram<TAB>count lines, see lm/SHARDS.md) to estimate from")
+	tmpDir := fs.String("tmp", "", "directory for spilled runs (default: the system temporary directory)")
 	pos, err := parse(fs, args)
 	if err != nil {
 		return err
@@ -30,8 +35,17 @@ func runBuild(ctx context.Context, e *env, args []string) error {
 	if *out == "" {
 		return fmt.Errorf("%w: --out is required", errUsage)
 	}
-	if len(pos) == 0 && len(counts) == 0 && len(words) == 0 {
-		return fmt.Errorf("%w: give TEXT files, --counts or --words", errUsage)
+	if len(pos) == 0 && len(counts) == 0 && len(words) == 0 && *fromCounts == "" {
+		return fmt.Errorf("%w: give TEXT files, --from-counts, --counts or --words", errUsage)
+	}
+	var memBytes int64
+	if *mem != "" {
+		if memBytes, err = parseSize(*mem); err != nil || memBytes == 0 {
+			return fmt.Errorf("%w: --mem %q: want a size such as 512MB", errUsage, *mem)
+		}
+	}
+	if *workers < 1 {
+		return fmt.Errorf("%w: --workers %d: want at least 1", errUsage, *workers)
 	}
 	if *qbits != 0 && (*qbits < 4 || *qbits > 16) {
 		return fmt.Errorf("%w: --qbits %d: want 0 or 4..16", errUsage, *qbits)
@@ -73,6 +87,14 @@ func runBuild(ctx context.Context, e *env, args []string) error {
 			return err
 		}
 	}
+	if *fromCounts != "" {
+		r, files, err := openShardDir(*fromCounts)
+		closers = append(closers, files...)
+		if err != nil {
+			return err
+		}
+		sources = append(sources, bundle.Source{Name: *fromCounts, R: r, Kind: bundle.SourceShards})
+	}
 	for _, p := range counts {
 		if err := add(p, bundle.SourceWordCounts, 0); err != nil {
 			return err
@@ -90,6 +112,8 @@ func runBuild(ctx context.Context, e *env, args []string) error {
 	start := time.Now()
 	b, data, err := bundle.Build(ctx, sources, bundle.BuildOptions{
 		Order: *order, QuantBits: q, Corpus: *corpus,
+		Mem: memBytes, Workers: *workers, TempDir: *tmpDir,
+		Tokens: func(n int64) { bar.setRate("counting", n) },
 		Progress: func(name string, n int64) {
 			if name != last {
 				doneBefore += lastN

@@ -32,6 +32,7 @@ func commands() []command {
 	return []command{
 		{"demo", "build a model from the bundled invented corpus and show what it does", runDemo},
 		{"build", "count text and word lists and write a model file", runBuild},
+		{"count", "count n-grams as shard lines: mapper and reducer of a map/reduce build", runCount},
 		{"suggest", "complete the word being typed or predict the next one", runSuggest},
 		{"eval", "measure a model on test text (perplexity)", runEval},
 		{"inspect", "print a model file's sections, sizes and checksums", runInspect},

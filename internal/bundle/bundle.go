@@ -171,6 +171,7 @@ const (
 	SourceTokenized                    // one sentence per line, tokens separated by spaces
 	SourceWordCounts                   // word<TAB>count lines
 	SourceWordList                     // one word per line
+	SourceShards                       // count shard lines, n-gram<TAB>count (lm/SHARDS.md)
 )
 
 // BuildOptions controls Build.
@@ -180,6 +181,18 @@ type BuildOptions struct {
 	Corpus    string // description stored in the metadata
 	// Progress, if not nil, reports bytes read from the current source.
 	Progress func(source string, bytes int64)
+
+	// Mem bounds the memory of the n-gram counts in bytes; past it sorted
+	// runs spill to TempDir and are merged at the end (0 = no bound).
+	Mem int64
+	// Workers is the number of goroutines counting text (0 = 1). The model
+	// is the same for any value.
+	Workers int
+	// TempDir is where spilled runs go ("" = the system default).
+	TempDir string
+	// Tokens, if not nil, is called with the tokens counted so far whenever
+	// Progress is (bounded or parallel builds only).
+	Tokens func(tokens int64)
 }
 
 // Build counts the sources, estimates a modified Kneser-Ney model and returns
@@ -195,6 +208,13 @@ func Build(ctx context.Context, sources []Source, opts BuildOptions) (*lm.Backof
 		q = 8
 	case q < 0:
 		q = 0
+	}
+	tally := opts.Mem > 0 || opts.Workers > 1
+	for _, s := range sources {
+		tally = tally || s.Kind == SourceShards
+	}
+	if tally {
+		return buildTally(ctx, sources, opts, order, q)
 	}
 	c, err := lm.NewCounter(order)
 	if err != nil {
@@ -216,12 +236,65 @@ func Build(ctx context.Context, sources []Source, opts BuildOptions) (*lm.Backof
 			err = c.AddWordCounts(s.R)
 		case SourceWordList:
 			err = c.AddWordList(s.R, s.Weight)
+		case SourceShards:
+			err = fmt.Errorf("bundle: internal error: shards on the in-memory path")
 		}
 		if err != nil {
 			return nil, nil, fmt.Errorf("%s: %w", s.Name, err)
 		}
 	}
 	b, err := lm.Estimate(ctx, c, lm.EstimateOptions{})
+	if err != nil {
+		return nil, nil, err
+	}
+	data, err := Encode(b, Meta{Corpus: opts.Corpus, Sources: names}, q, nil)
+	return b, data, err
+}
+
+// buildTally is Build through lm.Tally: bounded memory, several workers or
+// count shards. It gives the same bytes as the single-Counter path.
+func buildTally(ctx context.Context, sources []Source, opts BuildOptions, order, q int) (*lm.Backoff, []byte, error) {
+	t, err := lm.NewTally(lm.TallyOptions{Order: order, Workers: opts.Workers, MemBudget: opts.Mem, TempDir: opts.TempDir})
+	if err != nil {
+		return nil, nil, err
+	}
+	defer t.Close()
+	var names []string
+	for _, s := range sources {
+		names = append(names, s.Name)
+		var err error
+		switch s.Kind {
+		case SourceText, SourceTokenized:
+			var prog func(int64)
+			if opts.Progress != nil {
+				name := s.Name
+				prog = func(n int64) {
+					if opts.Tokens != nil {
+						opts.Tokens(t.Tokens())
+					}
+					opts.Progress(name, n)
+				}
+			}
+			err = t.AddText(ctx, s.R, lm.ScanOptions{Pretokenized: s.Kind == SourceTokenized}, prog)
+		case SourceWordCounts:
+			err = t.AddWordCounts(s.R)
+		case SourceWordList:
+			err = t.AddWordList(s.R, s.Weight)
+		case SourceShards:
+			err = t.AddShards(ctx, s.R)
+		}
+		if err != nil {
+			return nil, nil, fmt.Errorf("%s: %w", s.Name, err)
+		}
+	}
+	cs, err := t.Counts(ctx)
+	if err != nil {
+		return nil, nil, err
+	}
+	if err := t.Close(); err != nil {
+		return nil, nil, err
+	}
+	b, err := lm.EstimateCounts(ctx, cs, lm.EstimateOptions{})
 	if err != nil {
 		return nil, nil, err
 	}

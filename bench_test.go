@@ -1,0 +1,142 @@
+package keyloom
+
+import (
+	"bufio"
+	"bytes"
+	"context"
+	"math/rand/v2"
+	"os"
+	"path/filepath"
+	"runtime"
+	"strconv"
+	"strings"
+	"testing"
+
+	"github.com/keyloom/keyloom/internal/bundle"
+)
+
+// syntheticModel builds a model file of roughly the given size from random
+// Zipf-distributed word sequences over the Opticks vocabulary, so that
+// n-grams keep growing with the text (fixed seed).
+func syntheticModel(b *testing.B, tokens int) (string, []byte) {
+	b.Helper()
+	raw, err := os.ReadFile("lm/testdata/opticks-train.txt")
+	if err != nil {
+		b.Fatal(err)
+	}
+	vocab := map[string]bool{}
+	var words []string
+	for _, w := range strings.Fields(string(raw)) {
+		if !vocab[w] {
+			vocab[w] = true
+			words = append(words, w)
+		}
+	}
+	rng := rand.New(rand.NewPCG(1, 2))
+	z := rand.NewZipf(rng, 1.1, 2, uint64(len(words)-1))
+	var buf bytes.Buffer
+	for i := 0; i < tokens; i++ {
+		buf.WriteString(words[z.Uint64()])
+		if rng.IntN(15) == 0 {
+			buf.WriteByte('\n')
+		} else {
+			buf.WriteByte(' ')
+		}
+	}
+	_, data, err := bundle.Build(context.Background(), []bundle.Source{{Name: "synthetic", R: &buf, Kind: bundle.SourceTokenized}}, bundle.BuildOptions{Order: 3})
+	if err != nil {
+		b.Fatal(err)
+	}
+	path := filepath.Join(b.TempDir(), "synthetic.klm")
+	if err := os.WriteFile(path, data, 0o644); err != nil {
+		b.Fatal(err)
+	}
+	return path, data
+}
+
+func rssKB() int64 {
+	f, err := os.Open("/proc/self/status")
+	if err != nil {
+		return 0
+	}
+	defer f.Close()
+	sc := bufio.NewScanner(f)
+	for sc.Scan() {
+		if v, ok := strings.CutPrefix(sc.Text(), "VmRSS:"); ok {
+			n, _ := strconv.ParseInt(strings.Fields(v)[0], 10, 64)
+			return n
+		}
+	}
+	return 0
+}
+
+// BenchmarkOpen opens a ~10 MB model file by mapping it and reports the
+// resident memory the open added (Linux only: /proc/self/status).
+func BenchmarkOpen(b *testing.B) {
+	path, data := syntheticModel(b, 1_500_000)
+	b.ReportMetric(float64(len(data))/1e6, "fileMB")
+	runtime.GC()
+	before := rssKB()
+	e, err := Open(path, Options{})
+	if err != nil {
+		b.Fatal(err)
+	}
+	grew := rssKB() - before
+	e.Close()
+	b.ReportAllocs()
+	for b.Loop() {
+		e, err := Open(path, Options{})
+		if err != nil {
+			b.Fatal(err)
+		}
+		e.Close()
+	}
+	b.ReportMetric(float64(grew), "rssKB")
+}
+
+// BenchmarkSuggest types the Opticks test text through the facade and
+// reports the cost per keystroke, from the mapped file and from a heap copy.
+func BenchmarkSuggest(b *testing.B) {
+	path, data := syntheticModel(b, 300_000)
+	raw, err := os.ReadFile("lm/testdata/opticks-test.txt")
+	if err != nil {
+		b.Fatal(err)
+	}
+	// Every keystroke of the first sentences: the text before the cursor.
+	var inputs []string
+	text := ""
+	for _, line := range strings.SplitN(string(raw), "\n", 40)[:39] {
+		for _, w := range strings.Fields(line) {
+			for i := 0; i <= len(w); i++ {
+				inputs = append(inputs, text+w[:i])
+			}
+			text += w + " "
+		}
+		text = ""
+	}
+	mapped, err := Open(path, Options{})
+	if err != nil {
+		b.Fatal(err)
+	}
+	defer mapped.Close()
+	heap, err := OpenBytes(append([]byte(nil), data...), Options{})
+	if err != nil {
+		b.Fatal(err)
+	}
+	for _, c := range []struct {
+		name string
+		e    *Engine
+	}{{"mapped", mapped}, {"heap", heap}} {
+		b.Run(c.name, func(b *testing.B) {
+			b.ReportAllocs()
+			i := 0
+			for b.Loop() {
+				if _, err := c.e.Suggest(inputs[i%len(inputs)]); err != nil {
+					b.Fatal(err)
+				}
+				i++
+			}
+			b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/1e3, "µs/keystroke")
+		})
+	}
+}

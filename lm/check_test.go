@@ -1,0 +1,104 @@
+package lm
+
+import (
+	"errors"
+	"fmt"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+func TestCheckValidSections(t *testing.T) {
+	text := strings.Join(strings.SplitN(readFile(t, filepath.Join("testdata", "opticks-train.txt")), "\n", 801)[:800], "\n")
+	for _, order := range []int{1, 2, 3, 5} {
+		for _, q := range []int{0, 4, 8, 16} {
+			t.Run(fmt.Sprintf("order%d/q%d", order, q), func(t *testing.T) {
+				x := buildText(t, text, order, ScanOptions{Pretokenized: true}, q)
+				if err := x.m.Check(); err != nil {
+					t.Errorf("Check() = %v on a section AppendSection wrote", err)
+				}
+			})
+		}
+	}
+}
+
+// TestCheckFindsDamage changes values inside the arrays, which loading does
+// not read; Check must report each one as ErrCorrupt.
+func TestCheckFindsDamage(t *testing.T) {
+	base, b := smallSection(t, 3, 8)
+	V := len(b.Vocab)
+	the, _ := b.ID("the")
+	lo, hi, c, big := theGroup(t, base, b)
+	top0 := getVal(t, base, tag(tagTop, 1), big*TopListLen)
+	cases := []struct {
+		name  string
+		spoil func([]byte)
+	}{
+		{"word id out of range", func(s []byte) { setVal(t, s, tag(tagWords, 2), 0, uint64(V)) }},
+		{"group unsorted", func(s []byte) {
+			a, z := getVal(t, s, tag(tagWords, 2), lo), getVal(t, s, tag(tagWords, 2), lo+1)
+			setVal(t, s, tag(tagWords, 2), lo, z)
+			setVal(t, s, tag(tagWords, 2), lo+1, a)
+		}},
+		{"group repeats a word", func(s []byte) {
+			setVal(t, s, tag(tagWords, 2), lo+1, getVal(t, s, tag(tagWords, 2), lo))
+		}},
+		{"start not rising", func(s []byte) { setVal(t, s, tag(tagStart, 1), c+1, uint64(lo)) }},
+		{"start not from 0", func(s []byte) { setVal(t, s, tag(tagStart, 1), 0, 1) }},
+		{"successor bit cleared", func(s []byte) { setVal(t, s, tag(tagHas, 1), int(the), 0) }},
+		{"rank sample wrong", func(s []byte) {
+			d := directory(t, s)[tag(tagHasRank, 1)]
+			setVal(t, s, tag(tagHasRank, 1), int(d.n)-1, getVal(t, s, tag(tagHasRank, 1), int(d.n)-1)+1)
+		}},
+		{"top-list bit cleared", func(s []byte) { setVal(t, s, tag(tagBig, 1), c, 0) }},
+		{"top-list offset outside group", func(s []byte) { setVal(t, s, tag(tagTop, 1), big*TopListLen, uint64(hi-lo)) }},
+		{"top list out of order", func(s []byte) {
+			// Swap the first two neighbours of the list whose probabilities differ.
+			for i := big * TopListLen; i < (big+1)*TopListLen-1; i++ {
+				a, z := getVal(t, s, tag(tagTop, 1), i), getVal(t, s, tag(tagTop, 1), i+1)
+				if getVal(t, s, tag(tagProbs, 2), lo+int(a)) != getVal(t, s, tag(tagProbs, 2), lo+int(z)) {
+					setVal(t, s, tag(tagTop, 1), i, z)
+					setVal(t, s, tag(tagTop, 1), i+1, a)
+					return
+				}
+			}
+			t.Fatal("the top list of \"the\" has equal probabilities throughout")
+		}},
+		{"top list repeats", func(s []byte) { setVal(t, s, tag(tagTop, 1), big*TopListLen+1, top0) }},
+		{"probability code past codebook", func(s []byte) {
+			d := directory(t, s)[tag(tagProbBook, 2)]
+			setVal(t, s, tag(tagProbs, 2), 0, d.n)
+		}},
+		{"weight code past codebook", func(s []byte) {
+			d := directory(t, s)[tag(tagBowBook, 1)]
+			setVal(t, s, tag(tagBow, 1), 0, d.n)
+		}},
+		{"tree maximum wrong", func(s []byte) { setVal(t, s, tag(tagTree+1, 1), 0, 0) }},
+		{"tree code past codebook", func(s []byte) {
+			d := directory(t, s)[tag(tagProbBook, 1)]
+			setVal(t, s, tag(tagTree+1, 1), 0, d.n)
+		}},
+		{"top list's best lowered", func(s []byte) {
+			// The most probable successor of "the" gets the lowest code.
+			setVal(t, s, tag(tagProbs, 2), lo+int(top0), 0)
+		}},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			s := append([]byte(nil), base...)
+			tc.spoil(s)
+			m, err := LoadSection(s)
+			if err != nil {
+				t.Fatalf("LoadSection = %v; the damage is meant to pass loading", err)
+			}
+			var dst [MaxK]Scored
+			for w := range uint32(m.VocabSize()) { // every one-word context
+				m.TopK([]uint32{w}, 0, uint32(m.VocabSize()), 3, dst[:0])
+				m.LogProb([]uint32{w}, w)
+			}
+			if err := exercise(t, m); !errors.Is(err, ErrCorrupt) {
+				t.Errorf("Check() = %v, want ErrCorrupt", err)
+			}
+		})
+	}
+}
