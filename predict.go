@@ -1,6 +1,11 @@
 package keyloom
 
-import "github.com/keyloom/keyloom/lm"
+import (
+	"context"
+	"io"
+
+	"github.com/keyloom/keyloom/lm"
+)
 
 // Predict is the core of Suggest for simulators and measurement tools: it
 // appends to dst up to k words (folded, without display casing) that may come
@@ -103,4 +108,19 @@ func (q query) logProb(ctx []uint32, w uint32) float64 {
 		return q.view.LogProb(ctx, w)
 	}
 	return q.e.model.LM.LogProb(ctx, w)
+}
+
+// Perplexity scores every sentence of r under the base model blended with the
+// user overlay (see lm.Perplexity for the conventions).
+func (e *Engine) Perplexity(ctx context.Context, r io.Reader, opts lm.ScanOptions) (lm.PerplexityResult, error) {
+	if e.closed.Load() {
+		return lm.PerplexityResult{}, ErrClosed
+	}
+	q := e.query()
+	bos, eos, unk := e.model.LM.Specials()
+	var sc lm.Scorer = e.model.LM
+	if q.view != nil {
+		sc = q.view
+	}
+	return lm.Perplexity(ctx, sc, func(w []byte) (uint32, bool) { return q.id(string(w)) }, bos, eos, unk, r, opts)
 }

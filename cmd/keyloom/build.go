@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"path/filepath"
 	"runtime"
 	"time"
 
@@ -24,6 +25,7 @@ func runBuild(ctx context.Context, e *env, args []string) error {
 	fs.Var(&counts, "counts", "word-count list (word<TAB>count per line); repeatable")
 	fs.Var(&words, "words", "word list (one word per line), added with a small pseudo-count; repeatable")
 	corpus := fs.String("describe", "", "description of the training data stored in the file")
+	fromARPA := fs.String("from-arpa", "", "read the model from this ARPA file instead of counting text")
 	mem := fs.String("mem", "", "bound the memory of the n-gram counts (e.g. 512MB); past it sorted runs spill to a temporary directory")
 	workers := fs.Int("workers", runtime.NumCPU(), "goroutines counting text (the model is the same for any number)")
 	fromCounts := fs.String("from-counts", "", "directory of merged count shards (n-gram<TAB>count lines, see lm/SHARDS.md) to estimate from")
@@ -34,6 +36,31 @@ func runBuild(ctx context.Context, e *env, args []string) error {
 	}
 	if *out == "" {
 		return fmt.Errorf("%w: --out is required", errUsage)
+	}
+	if *qbits != 0 && (*qbits < 4 || *qbits > 16) {
+		return fmt.Errorf("%w: --qbits %d: want 0 or 4..16", errUsage, *qbits)
+	}
+	if *fromARPA != "" {
+		if len(pos) > 0 || len(counts) > 0 || len(words) > 0 {
+			return fmt.Errorf("%w: --from-arpa takes no TEXT, --counts or --words", errUsage)
+		}
+		b, err := readARPAFile(ctx, *fromARPA)
+		if err != nil {
+			return err
+		}
+		desc := *corpus
+		if desc == "" {
+			desc = "imported from ARPA " + filepath.Base(*fromARPA)
+		}
+		data, err := bundle.Encode(b, bundle.Meta{Corpus: desc, Sources: []string{*fromARPA}}, *qbits, nil)
+		if err != nil {
+			return err
+		}
+		if err := format.WriteFileAtomic(*out, data, 0o644); err != nil {
+			return err
+		}
+		fmt.Fprintf(e.stdout, "wrote %s: %d bytes, order %d, %d words, n-grams per order %v (from ARPA)\n", *out, len(data), b.Order(), len(b.Vocab), b.NGrams())
+		return nil
 	}
 	if len(pos) == 0 && len(counts) == 0 && len(words) == 0 && *fromCounts == "" {
 		return fmt.Errorf("%w: give TEXT files, --from-counts, --counts or --words", errUsage)

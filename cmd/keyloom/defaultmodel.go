@@ -99,3 +99,6 @@ func openModel(ctx context.Context, e *env, path string, opts keyloom.Options) (
 	}
 	return keyloom.Open(path, opts)
 }
+
+// engineOptions returns the engine options every command uses.
+func engineOptions() keyloom.Options { return keyloom.Options{} }

@@ -8,7 +8,6 @@ import (
 	"os"
 	"runtime"
 
-	"github.com/keyloom/keyloom"
 	"github.com/keyloom/keyloom/internal/evaluate"
 	"github.com/keyloom/keyloom/lm"
 )
@@ -52,6 +51,9 @@ func runEval(ctx context.Context, e *env, args []string) error {
 	workers := fs.Int("workers", runtime.NumCPU(), "parallel typists")
 	plotPath := fs.String("plot", "", "draw KSR against k and hit rate against prefix length into this .svg or .png")
 	asJSON := fs.Bool("json", false, "print JSON")
+	user := fs.String("user", "", "user overlay file to blend in")
+	split := fs.Float64("split", 0, "learn a user overlay on this fraction of the text (in reading order) and test on the rest, base vs personalized")
+	noOnline := fs.Bool("no-online", false, "with --split: do not learn test sentences after they are typed")
 	pos, err := parse(fs, args)
 	if err != nil {
 		return err
@@ -62,7 +64,10 @@ func runEval(ctx context.Context, e *env, args []string) error {
 	if *k < 1 || *k > evaluate.MaxK {
 		return fmt.Errorf("%w: --k %d: want 1..%d", errUsage, *k, evaluate.MaxK)
 	}
-	eng, err := openModel(ctx, e, *model, keyloom.Options{})
+	if *split != 0 && (*split <= 0 || *split >= 1) {
+		return fmt.Errorf("%w: --split %v: want a fraction between 0 and 1", errUsage, *split)
+	}
+	eng, err := openUser(ctx, e, *model, *user, true)
 	if err != nil {
 		return err
 	}
@@ -72,10 +77,10 @@ func runEval(ctx context.Context, e *env, args []string) error {
 		return err
 	}
 	opts := lm.ScanOptions{Pretokenized: *tokenized}
-	lex := eng.Lexicon()
-	bos, eos, unk := eng.LM().Specials()
-	lookup := func(w []byte) (uint32, bool) { return lex.ID(string(w)) }
-	pr, err := lm.Perplexity(ctx, eng.LM(), lookup, bos, eos, unk, newBytesReader(text), opts)
+	if *split > 0 {
+		return evalSplit(ctx, e, eng, *model, text, opts, *split, !*noOnline, *k, *workers, *plotPath, *asJSON)
+	}
+	pr, err := eng.Perplexity(ctx, newBytesReader(text), opts)
 	if err != nil {
 		return err
 	}

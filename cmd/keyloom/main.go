@@ -36,6 +36,10 @@ func commands() []command {
 		{"suggest", "complete the word being typed or predict the next one", runSuggest},
 		{"eval", "measure a model on test text (perplexity)", runEval},
 		{"inspect", "print a model file's sections, sizes and checksums", runInspect},
+		{"export", "write a model as ARPA text", runExport},
+		{"learn", "teach a user overlay the user's own text", runLearn},
+		{"forget", "remove words or phrases from a user overlay", runForget},
+		{"merge", "copy a base model with a user overlay baked in", runMerge},
 	}
 }
 

@@ -17,6 +17,7 @@ func runSuggest(ctx context.Context, e *env, args []string) error {
 	k := fs.Int("k", keyloom.DefaultSuggestions, "number of suggestions (1-32)")
 	next := fs.Bool("next", false, "predict the next word even if TEXT does not end with a space")
 	asJSON := fs.Bool("json", false, "print JSON")
+	user := fs.String("user", "", "user overlay file to blend in")
 	pos, err := parse(fs, args)
 	if err != nil {
 		return err
@@ -28,6 +29,12 @@ func runSuggest(ctx context.Context, e *env, args []string) error {
 	eng, err := openModel(ctx, e, *model, keyloom.Options{Suggestions: *k})
 	if err != nil {
 		return err
+	}
+	if *user != "" {
+		if err := eng.OpenOverlay(*user); err != nil {
+			eng.Close()
+			return err
+		}
 	}
 	defer eng.Close()
 	res, err := eng.Suggest(text)
