@@ -3,6 +3,7 @@ package keyloom
 import (
 	"errors"
 	"os"
+	"path/filepath"
 	"strings"
 	"sync"
 	"testing"
@@ -165,4 +166,24 @@ func TestConcurrentSuggest(t *testing.T) {
 		}()
 	}
 	wg.Wait()
+}
+
+// TestOpenReleasedModels opens every model file of a released format
+// version (testdata/models/README.md): a new reader must read them all.
+func TestOpenReleasedModels(t *testing.T) {
+	paths, _ := filepath.Glob("testdata/models/*.klm")
+	if len(paths) == 0 {
+		t.Fatal("no released model fixtures")
+	}
+	for _, p := range paths {
+		e, err := Open(p, Options{VerifyChecksums: true})
+		if err != nil {
+			t.Errorf("Open(%s): %v", p, err)
+			continue
+		}
+		if res, err := e.Suggest("see you at the "); err != nil || len(res.Predictions) == 0 {
+			t.Errorf("%s: Suggest = %v, %v", p, res, err)
+		}
+		e.Close()
+	}
 }

@@ -26,6 +26,19 @@ type Result struct {
 	// Predictions are the most probable next words when the cursor follows a
 	// space (empty while a word is being typed).
 	Predictions []Suggestion `json:"predictions"`
+	// Correction is set when the word being typed cannot be the start of
+	// any known word and the corrector has a likely replacement.
+	Correction *Correction `json:"correction,omitempty"`
+}
+
+// Correction proposes replacing the word before the cursor.
+type Correction struct {
+	Typed       string  `json:"typed"`       // the word as typed, punctuation included
+	Replacement string  `json:"replacement"` // the proposed text, typed casing and punctuation kept
+	Confidence  float64 `json:"confidence"`  // 0..1, calibrated on misspellings
+	// Apply says the replacement is safe to make when the user types a space
+	// or punctuation. When false it should only be offered.
+	Apply bool `json:"apply"`
 }
 
 // maxContextBytes bounds how much of the text before the cursor is read.

@@ -123,7 +123,7 @@ func (e *Engine) Save(path string) error {
 	if e.closed.Load() {
 		return ErrClosed
 	}
-	data, err := format.Append(nil, []format.Section{{Kind: format.KindOverlay, Data: e.user.ov.Load().AppendSection(nil)}})
+	data, err := e.SaveBytes()
 	if err != nil {
 		return err
 	}
@@ -151,6 +151,30 @@ func (e *Engine) OpenOverlay(path string) error {
 	ov.SetLearning(e.user.ov.Load().Learning())
 	e.user.ov.Store(ov)
 	return nil
+}
+
+// LoadOverlayBytes replaces the user overlay with one previously written by
+// Save (the whole file's bytes), for embedders that keep it elsewhere than in
+// a file (browser storage, a database). Errors are as for OpenOverlay.
+func (e *Engine) LoadOverlayBytes(b []byte) error {
+	if e.closed.Load() {
+		return ErrClosed
+	}
+	ov, err := e.loadOverlay(b)
+	if err != nil {
+		return fmt.Errorf("keyloom: %w", err)
+	}
+	ov.SetLearning(e.user.ov.Load().Learning())
+	e.user.ov.Store(ov)
+	return nil
+}
+
+// SaveBytes returns what Save would write.
+func (e *Engine) SaveBytes() ([]byte, error) {
+	if e.closed.Load() {
+		return nil, ErrClosed
+	}
+	return format.Append(nil, []format.Section{{Kind: format.KindOverlay, Data: e.user.ov.Load().AppendSection(nil)}})
 }
 
 func (e *Engine) loadOverlay(b []byte) (*lm.Overlay, error) {

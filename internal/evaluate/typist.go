@@ -36,7 +36,9 @@ type Predictor interface {
 type PredictorFunc func(history []string, prefix string, k int, dst []string) []string
 
 // Predict calls f.
-func (f PredictorFunc) Predict(h []string, p string, k int, dst []string) []string { return f(h, p, k, dst) }
+func (f PredictorFunc) Predict(h []string, p string, k int, dst []string) []string {
+	return f(h, p, k, dst)
+}
 
 // MaxK is the largest suggestion count measured.
 const MaxK = 5
