@@ -240,8 +240,8 @@ func (c *Corrector) Correct(typed string, context []uint32, max int, dst []Candi
 			score := -float64(h.cost) + o.LMWeight*c.lm(context, h.id)
 			sc.top = insertTop(sc.top, Candidate{ID: h.id, Kind: KindWord, Cost: float64(h.cost), Score: score}, keepN)
 		}
-		if len(sc.top) > 0 && sc.top[0].Score-keep >= c.passMargin {
-			break
+		if known || len(sc.top) > 0 && sc.top[0].Score-keep >= c.passMargin {
+			break // a known word only gets the narrow pass of suggestions
 		}
 	}
 	// Missing spaces: two words typed as one.

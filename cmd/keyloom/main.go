@@ -40,6 +40,7 @@ func commands() []command {
 		{"learn", "teach a user overlay the user's own text", runLearn},
 		{"forget", "remove words or phrases from a user overlay", runForget},
 		{"merge", "copy a base model with a user overlay baked in", runMerge},
+		{"type", "try the engine live in a terminal line editor that learns as you type", runType},
 	}
 }
 

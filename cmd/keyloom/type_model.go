@@ -2,6 +2,7 @@ package main
 
 import (
 	"fmt"
+	"slices"
 	"strings"
 	"time"
 	"unicode"
@@ -13,6 +14,11 @@ import (
 
 // maxTypeSlots is the largest --k the key map can reach (Alt+1..Alt+9).
 const maxTypeSlots = 9
+
+// functionKeys returns the keys F1 to F9, which pick suggestions 1 to 9.
+func functionKeys() []tea.KeyType {
+	return []tea.KeyType{tea.KeyF1, tea.KeyF2, tea.KeyF3, tea.KeyF4, tea.KeyF5, tea.KeyF6, tea.KeyF7, tea.KeyF8, tea.KeyF9}
+}
 
 // typeHistory is how many finished lines stay on screen above the line.
 const typeHistory = 4
@@ -105,7 +111,7 @@ func (p *pad) key(k tea.KeyMsg) tea.Cmd {
 	case tea.KeyTab:
 		p.pick(0)
 	case tea.KeyF1, tea.KeyF2, tea.KeyF3, tea.KeyF4, tea.KeyF5, tea.KeyF6, tea.KeyF7, tea.KeyF8, tea.KeyF9:
-		p.pick(int(tea.KeyF1 - k.Type)) // F-key codes count down from F1
+		p.pick(slices.Index(functionKeys(), k.Type))
 	case tea.KeyCtrlR:
 		if c := p.offeredFix(); c != nil {
 			p.replaceWord(c.Typed, c.Replacement)

@@ -17,6 +17,12 @@ func load(f *os.File, size int) ([]byte, bool, error) {
 	if err != nil {
 		return nil, false, err
 	}
+	// Lookups touch a few scattered pages per query. Without these hints the
+	// kernel may map whole 2 MiB page-cache folios or read ahead on every
+	// fault, so that opening a model makes megabytes resident. Hints are
+	// advisory: a kernel that refuses them still serves the mapping.
+	_ = unix.Madvise(b, unix.MADV_RANDOM)
+	_ = madviseNoHuge(b)
 	return b, true, nil
 }
 

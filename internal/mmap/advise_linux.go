@@ -1,0 +1,8 @@
+//go:build linux && !nommap
+
+package mmap
+
+import "golang.org/x/sys/unix"
+
+// madviseNoHuge asks the kernel not to map the region with huge pages.
+func madviseNoHuge(b []byte) error { return unix.Madvise(b, unix.MADV_NOHUGEPAGE) }

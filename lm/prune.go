@@ -1,0 +1,564 @@
+package lm
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"math"
+	"slices"
+)
+
+// Errors returned while pruning. (They belong with the others in errors.go.)
+var (
+	// ErrNoUnknown is returned by PruneVocab when the model has no <unk> word
+	// to take the probability of the words it drops.
+	ErrNoUnknown = errors.New("lm: model has no <unk> word")
+	// ErrCutoff is returned when a count cut-off is negative or more cut-offs
+	// than orders are given.
+	ErrCutoff = errors.New("lm: bad count cut-off")
+	// ErrModel is returned when a Backoff handed to Score, Prune or
+	// PruneVocab is inconsistent (an n-gram whose context is missing, a level
+	// of the wrong shape).
+	ErrModel = errors.New("lm: inconsistent back-off model")
+)
+
+// Scores holds, for every n-gram of order 2 and up of a model, the increase
+// in training-set relative entropy that removing that n-gram alone would
+// cause: the pruning criterion of Stolcke (1998), "Entropy-based pruning of
+// backoff language models". Score computes it; Prune and PruneScored use it.
+type Scores struct {
+	// Delta[n-1][i] is the criterion D of n-gram i of order n (in nats).
+	// Delta[0] is nil: unigrams are never pruned. +Inf marks an n-gram whose
+	// removal cannot be renormalized (see Score).
+	Delta [][]float64
+}
+
+// ScoreOptions controls Score.
+type ScoreOptions struct {
+	// Progress, if not nil, is called now and then with the n-grams scored
+	// and their total.
+	Progress func(done, total int)
+}
+
+// Score computes Stolcke's criterion for every n-gram (h,w) of order ≥ 2 of
+// b, each judged alone against the unpruned model:
+//
+//	α'(h) = (1 − Σ_{v∈S(h),v≠w} p(v|h)) / (1 − Σ_{v∈S(h),v≠w} p(v|h′))
+//	D     = −p(h)·{ p(w|h)·[ln p(w|h′) + ln α'(h) − ln p(w|h)] + [ln α'(h) − ln α(h)]·(1 − Σ_{v∈S(h)} p(v|h)) }
+//
+// where S(h) are the explicit successors of h, h′ is h without its first word,
+// α(h) is h's back-off weight and p(h) is the history's probability under the
+// model by the chain rule, p(h₁…hₖ) = Π p(hᵢ | h₁…hᵢ₋₁), with a leading <s>
+// counted as certain (as a sentence start is). D is the Kullback-Leibler
+// divergence of the model's distribution after the removal from the one
+// before, over histories of h's length weighted by p(h).
+//
+// When a sum reaches 1 so that α'(h) is undefined (only possible for a model
+// read back from a quantized file, or one whose explicit successors of h
+// cover the whole vocabulary), D is +Inf and the n-gram is never pruned.
+// Cost: O(n-grams) time plus one binary search per context and per n-gram
+// whose lower-order n-gram is absent; 8 bytes per n-gram.
+func Score(ctx context.Context, b *Backoff, opts ScoreOptions) (*Scores, error) {
+	if err := checkShape(b); err != nil {
+		return nil, err
+	}
+	N := b.Order()
+	total := 0
+	for n := 2; n <= N; n++ {
+		total += b.Levels[n-1].Len()
+	}
+	hist, err := historyLogProbs(ctx, b)
+	if err != nil {
+		return nil, err
+	}
+	s := &Scores{Delta: make([][]float64, N)}
+	key := make([]uint32, 0, N)
+	var lower []float64
+	done := 0
+	for n := 2; n <= N; n++ {
+		lv, parent := &b.Levels[n-1], &b.Levels[n-2]
+		d := make([]float64, lv.Len())
+		for g, groups := 0, 0; g < lv.Len(); groups++ {
+			h := lv.Key(g)[:n-1]
+			e := groupEnd(lv, g, n-1)
+			j := parent.Find(h)
+			if j < 0 {
+				return nil, fmt.Errorf("%w: %d-gram %v has successors but is not in the model", ErrModel, n-1, h)
+			}
+			lnAlpha := parent.Bow[j]
+			ph := math.Exp(hist[n-2][j])
+			lower = b.lowerLogProbs(n, g, e, key, lower[:0])
+			var sumP, sumQ float64
+			for i := g; i < e; i++ {
+				sumP += math.Exp(lv.LogP[i])
+				sumQ += math.Exp(lower[i-g])
+			}
+			restP, restQ := 1-sumP, 1-sumQ
+			for i := g; i < e; i++ {
+				lp, lq := lv.LogP[i], lower[i-g]
+				p, q := math.Exp(lp), math.Exp(lq)
+				num, den := restP+p, restQ+q
+				if !(num > 0 && den > 0) {
+					d[i] = math.Inf(1)
+					continue
+				}
+				lnAlpha2 := math.Log(num) - math.Log(den)
+				t := (lnAlpha2 - lnAlpha) * restP
+				if p > 0 {
+					t += p * (lq + lnAlpha2 - lp)
+				}
+				d[i] = -ph * t
+			}
+			done += e - g
+			g = e
+			if groups&4095 == 4095 {
+				if err := ctx.Err(); err != nil {
+					return nil, err
+				}
+				if opts.Progress != nil {
+					opts.Progress(done, total)
+				}
+			}
+		}
+		s.Delta[n-1] = d
+	}
+	if opts.Progress != nil {
+		opts.Progress(total, total)
+	}
+	return s, nil
+}
+
+// PruneOptions controls Prune.
+type PruneOptions struct {
+	// Threshold is θ: n-grams whose criterion D (see Score) is below it are
+	// removed. Zero removes only n-grams whose removal changes nothing.
+	Threshold float64
+	// Progress, if not nil, is called while scoring (see ScoreOptions).
+	Progress func(done, total int)
+}
+
+// Prune removes from b every n-gram of order ≥ 2 whose relative-entropy
+// criterion (Score) is below opts.Threshold, as Stolcke (1998) does: every
+// candidate is judged against the original model, then the back-off weights
+// are recomputed so that every context still sums to one. An n-gram that is
+// the context of a kept longer n-gram is kept, and so are all unigrams. b is
+// not changed; the result shares no storage with it.
+func Prune(ctx context.Context, b *Backoff, opts PruneOptions) (*Backoff, error) {
+	s, err := Score(ctx, b, ScoreOptions{Progress: opts.Progress})
+	if err != nil {
+		return nil, err
+	}
+	return PruneScored(ctx, b, s, opts.Threshold)
+}
+
+// PruneScored is Prune with the scores already computed by Score(b), so that
+// one model can be pruned at many thresholds (a search for a size) at the
+// cost of Score once. Use math.Inf(1) to keep the unigrams alone.
+// Cost: O(n-grams) plus one binary search per kept context.
+func PruneScored(ctx context.Context, b *Backoff, s *Scores, threshold float64) (*Backoff, error) {
+	if err := checkShape(b); err != nil {
+		return nil, err
+	}
+	if len(s.Delta) != b.Order() {
+		return nil, fmt.Errorf("%w: scores of an order-%d model for an order-%d one", ErrModel, len(s.Delta), b.Order())
+	}
+	keep := make([][]bool, b.Order())
+	for n := 2; n <= b.Order(); n++ {
+		d := s.Delta[n-1]
+		if len(d) != b.Levels[n-1].Len() {
+			return nil, fmt.Errorf("%w: scores do not match the model's %d-grams", ErrModel, n)
+		}
+		k := make([]bool, len(d))
+		for i, x := range d {
+			k[i] = x >= threshold
+		}
+		keep[n-1] = k
+	}
+	return subset(ctx, b, keep)
+}
+
+// KeptAt returns how many n-grams of each order (unigrams first) PruneScored
+// would keep at threshold θ, before adding the contexts of kept n-grams: a
+// cheap lower bound used to steer a search. Cost: O(n-grams).
+func (s *Scores) KeptAt(threshold float64) []int {
+	out := make([]int, len(s.Delta))
+	for n, d := range s.Delta {
+		for _, x := range d {
+			if x >= threshold {
+				out[n]++
+			}
+		}
+	}
+	return out
+}
+
+// PruneVocab returns a copy of b whose vocabulary keeps only the size words
+// of highest unigram probability (ties: smaller ID first), plus <s>, </s>,
+// <unk> and every word of mustKeep found in the vocabulary (mustKeep words
+// must be folded, as the vocabulary is; unknown ones are ignored), so the
+// result may hold more than size words.
+//
+// Every n-gram that contains a dropped word, in its context or as its last
+// word, is removed. The unigram probabilities of the dropped words are added
+// to <unk>'s, so a dropped word typed later is scored as <unk> with at least
+// the mass it had; the mass of the removed longer n-grams goes to back-off,
+// whose weights are recomputed so every context still sums to one. Word IDs
+// stay lexicographic ranks of the smaller vocabulary. A size at or above the
+// vocabulary size returns b itself.
+func PruneVocab(ctx context.Context, b *Backoff, size int, mustKeep []string) (*Backoff, error) {
+	if err := checkShape(b); err != nil {
+		return nil, err
+	}
+	V := len(b.Vocab)
+	if size >= V {
+		return b, nil
+	}
+	unk, ok := b.ID(UNK)
+	if !ok {
+		return nil, ErrNoUnknown
+	}
+	uni := &b.Levels[0]
+	kept := make([]bool, V)
+	nkept := 0
+	mark := func(id uint32) {
+		if int(id) < V && !kept[id] {
+			kept[id] = true
+			nkept++
+		}
+	}
+	for _, w := range []string{BOS, EOS, UNK} {
+		if id, ok := b.ID(w); ok {
+			mark(id)
+		}
+	}
+	for _, w := range mustKeep {
+		if id, ok := b.ID(w); ok {
+			mark(id)
+		}
+	}
+	byProb := make([]uint32, V)
+	for i := range byProb {
+		byProb[i] = uint32(i)
+	}
+	slices.SortFunc(byProb, func(x, y uint32) int {
+		px, py := uni.LogP[x], uni.LogP[y]
+		switch {
+		case px > py:
+			return -1
+		case px < py:
+			return 1
+		}
+		return cmpU64(uint64(x), uint64(y))
+	})
+	for _, id := range byProb {
+		if nkept >= size {
+			break
+		}
+		mark(id)
+	}
+	// New IDs: ranks among the kept words, so the order is preserved.
+	remap := make([]uint32, V)
+	nv := &Backoff{Discounts: b.Discounts, Tokens: b.Tokens, Levels: make([]Level, b.Order())}
+	dropped := 0.0
+	for id := range V {
+		if !kept[id] {
+			if p := uni.LogP[id]; !math.IsInf(p, -1) {
+				dropped += math.Exp(p)
+			}
+			continue
+		}
+		remap[id] = uint32(len(nv.Vocab))
+		nv.Vocab = append(nv.Vocab, b.Vocab[id])
+		if id < len(b.Surface) {
+			nv.Surface = append(nv.Surface, b.Surface[id])
+		} else {
+			nv.Surface = append(nv.Surface, "")
+		}
+	}
+	nu := Level{N: 1, IDs: make([]uint32, len(nv.Vocab)), LogP: make([]float64, len(nv.Vocab)), Bow: make([]float64, len(nv.Vocab))}
+	for id := range V {
+		if kept[id] {
+			r := remap[id]
+			nu.IDs[r] = r
+			nu.LogP[r] = uni.LogP[id]
+		}
+	}
+	nu.LogP[remap[unk]] = math.Log(math.Exp(uni.LogP[unk]) + dropped)
+	nv.Levels[0] = nu
+	for n := 2; n <= b.Order(); n++ {
+		lv := &b.Levels[n-1]
+		nl := Level{N: n}
+	entries:
+		for i := range lv.Len() {
+			k := lv.Key(i)
+			for _, id := range k {
+				if int(id) >= V || !kept[id] {
+					continue entries
+				}
+			}
+			for _, id := range k {
+				nl.IDs = append(nl.IDs, remap[id])
+			}
+			nl.LogP = append(nl.LogP, lv.LogP[i])
+		}
+		nl.Bow = make([]float64, len(nl.LogP))
+		nv.Levels[n-1] = nl
+		if err := ctx.Err(); err != nil {
+			return nil, err
+		}
+	}
+	if err := renormalize(ctx, nv); err != nil {
+		return nil, err
+	}
+	return nv, nil
+}
+
+// subset returns the model made of b's unigrams, the n-grams marked in keep
+// (keep[n-1][i] for n-gram i of order n; keep[0] is ignored) and every n-gram
+// that is the context of a kept one, with the back-off weights recomputed.
+func subset(ctx context.Context, b *Backoff, keep [][]bool) (*Backoff, error) {
+	N := b.Order()
+	// Close under prefixes, longest order first.
+	for n := N; n >= 3; n-- {
+		lv, parent, k := &b.Levels[n-1], &b.Levels[n-2], keep[n-1]
+		pk := keep[n-2]
+		for g := 0; g < lv.Len(); {
+			e := groupEnd(lv, g, n-1)
+			if slices.Contains(k[g:e], true) {
+				j := parent.Find(lv.Key(g)[:n-1])
+				if j < 0 {
+					return nil, fmt.Errorf("%w: %d-gram %v has successors but is not in the model", ErrModel, n-1, lv.Key(g)[:n-1])
+				}
+				pk[j] = true
+			}
+			g = e
+		}
+	}
+	nb := &Backoff{Vocab: b.Vocab, Surface: b.Surface, Discounts: b.Discounts, Tokens: b.Tokens, Levels: make([]Level, N)}
+	u := &b.Levels[0]
+	nb.Levels[0] = Level{N: 1, IDs: slices.Clone(u.IDs), LogP: slices.Clone(u.LogP), Bow: make([]float64, u.Len())}
+	for n := 2; n <= N; n++ {
+		lv, k := &b.Levels[n-1], keep[n-1]
+		cnt := 0
+		for _, x := range k {
+			if x {
+				cnt++
+			}
+		}
+		nl := Level{N: n, IDs: make([]uint32, 0, cnt*n), LogP: make([]float64, 0, cnt), Bow: make([]float64, cnt)}
+		for i, x := range k {
+			if x {
+				nl.IDs = append(nl.IDs, lv.Key(i)...)
+				nl.LogP = append(nl.LogP, lv.LogP[i])
+			}
+		}
+		nb.Levels[n-1] = nl
+	}
+	if err := renormalize(ctx, nb); err != nil {
+		return nil, err
+	}
+	return nb, nil
+}
+
+// renormalize recomputes every back-off weight of b in place, lowest order
+// first, so that each context's distribution sums to one:
+//
+//	α(h) = (1 − Σ_{v∈S(h)} p(v|h)) / (1 − Σ_{v∈S(h)} p(v|h′))
+//
+// A context without successors gets weight 1 (ln 0). If the explicit
+// successors take all the mass (a model decoded from a quantized file can
+// get there), the numerator is floored at 1e-12; if the lower-order
+// successors do, the weight is 1, as no word is left to back off to.
+func renormalize(ctx context.Context, b *Backoff) error {
+	N := b.Order()
+	for n := 1; n < N; n++ {
+		clear(b.Levels[n-1].Bow)
+	}
+	key := make([]uint32, 0, N)
+	var lower []float64
+	for n := 2; n <= N; n++ {
+		lv, parent := &b.Levels[n-1], &b.Levels[n-2]
+		for g, groups := 0, 0; g < lv.Len(); groups++ {
+			h := lv.Key(g)[:n-1]
+			e := groupEnd(lv, g, n-1)
+			j := parent.Find(h)
+			if j < 0 {
+				return fmt.Errorf("%w: %d-gram %v has successors but is not in the model", ErrModel, n-1, h)
+			}
+			lower = b.lowerLogProbs(n, g, e, key, lower[:0])
+			var sumP, sumQ float64
+			for i := g; i < e; i++ {
+				sumP += math.Exp(lv.LogP[i])
+				sumQ += math.Exp(lower[i-g])
+			}
+			num, den := 1-sumP, 1-sumQ
+			switch {
+			case !(den > 0):
+				parent.Bow[j] = 0
+			default:
+				parent.Bow[j] = math.Log(max(num, 1e-12)) - math.Log(den)
+			}
+			g = e
+			if groups&8191 == 8191 {
+				if err := ctx.Err(); err != nil {
+					return err
+				}
+			}
+		}
+	}
+	return nil
+}
+
+// lowerLogProbs appends to dst ln p(w | h′) for the n-grams g..e−1 of order n,
+// which share the context h; h′ is h without its first word. The n-grams
+// (h′,w) are found by one merge walk over h′'s successor group.
+func (b *Backoff) lowerLogProbs(n, g, e int, key []uint32, dst []float64) []float64 {
+	lv := &b.Levels[n-1]
+	if n == 2 {
+		u := &b.Levels[0]
+		for i := g; i < e; i++ {
+			w := lv.Key(i)[1]
+			if int(w) < u.Len() {
+				dst = append(dst, u.LogP[w])
+			} else {
+				dst = append(dst, math.Inf(-1))
+			}
+		}
+		return dst
+	}
+	hp := lv.Key(g)[1 : n-1] // h′, n−2 words
+	low := &b.Levels[n-2]
+	lo, hi := successorRange(low, hp)
+	bow := 0.0
+	bowDone := false
+	p := lo
+	for i := g; i < e; i++ {
+		w := lv.Key(i)[n-1]
+		for p < hi && low.Key(p)[n-2] < w {
+			p++
+		}
+		if p < hi && low.Key(p)[n-2] == w {
+			dst = append(dst, low.LogP[p])
+			continue
+		}
+		if !bowDone {
+			if j := b.Levels[n-3].Find(hp); j >= 0 {
+				bow = b.Levels[n-3].Bow[j]
+			}
+			bowDone = true
+		}
+		dst = append(dst, bow+b.logProbInto(key, hp[1:], w))
+	}
+	return dst
+}
+
+// logProbInto is LogProb without allocating: key is scratch space.
+func (b *Backoff) logProbInto(key, h []uint32, w uint32) float64 {
+	acc := 0.0
+	for s := 0; s <= len(h); s++ {
+		g := h[s:]
+		key = append(append(key[:0], g...), w)
+		lv := &b.Levels[len(g)]
+		if i := lv.Find(key); i >= 0 {
+			return acc + lv.LogP[i]
+		}
+		if len(g) > 0 {
+			if j := b.Levels[len(g)-1].Find(g); j >= 0 {
+				acc += b.Levels[len(g)-1].Bow[j]
+			}
+		}
+	}
+	return math.Inf(-1)
+}
+
+// historyLogProbs returns, for the n-grams of orders 1..N−1 seen as
+// histories, ln p(h) by the chain rule (a leading <s> counts as certain).
+// The model is prefix-closed, so every factor is an explicit n-gram.
+func historyLogProbs(ctx context.Context, b *Backoff) ([][]float64, error) {
+	N := b.Order()
+	out := make([][]float64, max(N-1, 0))
+	if N < 2 {
+		return out, nil
+	}
+	bos, _, _ := b.specials()
+	u := slices.Clone(b.Levels[0].LogP)
+	if int(bos) < len(u) && b.Vocab[bos] == BOS {
+		u[bos] = 0
+	}
+	out[0] = u
+	for n := 2; n < N; n++ {
+		lv, parent := &b.Levels[n-1], &b.Levels[n-2]
+		h := make([]float64, lv.Len())
+		for g := 0; g < lv.Len(); {
+			e := groupEnd(lv, g, n-1)
+			j := parent.Find(lv.Key(g)[:n-1])
+			if j < 0 {
+				return nil, fmt.Errorf("%w: %d-gram %v has successors but is not in the model", ErrModel, n-1, lv.Key(g)[:n-1])
+			}
+			for i := g; i < e; i++ {
+				h[i] = out[n-2][j] + lv.LogP[i]
+			}
+			g = e
+		}
+		out[n-1] = h
+		if err := ctx.Err(); err != nil {
+			return nil, err
+		}
+	}
+	return out, nil
+}
+
+// groupEnd returns the end of the run of n-grams from g that share their
+// first m words.
+func groupEnd(lv *Level, g, m int) int {
+	h := lv.Key(g)[:m]
+	e := g + 1
+	for e < lv.Len() && equalIDs(lv.Key(e)[:m], h) {
+		e++
+	}
+	return e
+}
+
+// successorRange returns the n-grams of lv that start with prefix, as [lo, hi).
+func successorRange(lv *Level, prefix []uint32) (lo, hi int) {
+	m := len(prefix)
+	cmp := func(i int) int { return slices.Compare(lv.Key(i)[:m], prefix) }
+	lo, hi = 0, lv.Len()
+	for lo < hi {
+		mid := int(uint(lo+hi) >> 1)
+		if cmp(mid) < 0 {
+			lo = mid + 1
+		} else {
+			hi = mid
+		}
+	}
+	end := lo
+	top := lv.Len()
+	for end < top {
+		mid := int(uint(end+top) >> 1)
+		if cmp(mid) <= 0 {
+			end = mid + 1
+		} else {
+			top = mid
+		}
+	}
+	return lo, end
+}
+
+// checkShape checks the lengths of b's levels (not their order or content).
+func checkShape(b *Backoff) error {
+	N := b.Order()
+	if N < 1 || N > MaxOrder {
+		return fmt.Errorf("%w: %d", ErrOrder, N)
+	}
+	if b.Levels[0].Len() != len(b.Vocab) {
+		return fmt.Errorf("%w: %d unigrams for %d words", ErrModel, b.Levels[0].Len(), len(b.Vocab))
+	}
+	for n := 1; n <= N; n++ {
+		lv := &b.Levels[n-1]
+		if lv.N != n || len(lv.IDs) != n*lv.Len() || len(lv.Bow) != lv.Len() {
+			return fmt.Errorf("%w: level %d has the wrong shape", ErrModel, n)
+		}
+	}
+	return nil
+}

@@ -1,0 +1,622 @@
+package lm
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"math"
+	"slices"
+	"sort"
+	"strings"
+	"testing"
+	"time"
+)
+
+// opticksModel estimates the order-n model of the first lines of the Opticks
+// training half (all of it when lines ≤ 0).
+func opticksModel(t testing.TB, order, lines int) *Backoff {
+	t.Helper()
+	text := readFile(t, "testdata/opticks-train.txt")
+	if lines > 0 {
+		ls := strings.SplitAfter(text, "\n")
+		text = strings.Join(ls[:min(lines, len(ls))], "")
+	}
+	return buildText(t, text, order, ScanOptions{Pretokenized: true}, 0).b
+}
+
+// withoutNGram returns a copy of b without n-gram i of order n, whose context
+// h gets the back-off weight that makes p'(·|h) sum to one, found by summing
+// the lower-order distribution over the whole vocabulary (not through
+// 1 − Σ over successors, as the code does).
+func withoutNGram(b *Backoff, n, i int) *Backoff {
+	c := &Backoff{Vocab: b.Vocab, Levels: slices.Clone(b.Levels)}
+	lv := b.Levels[n-1]
+	h := slices.Clone(lv.Key(i)[:n-1])
+	nl := Level{N: n}
+	nl.IDs = append(slices.Clone(lv.IDs[:i*n]), lv.IDs[(i+1)*n:]...)
+	nl.LogP = append(slices.Clone(lv.LogP[:i]), lv.LogP[i+1:]...)
+	nl.Bow = append(slices.Clone(lv.Bow[:i]), lv.Bow[i+1:]...)
+	c.Levels[n-1] = nl
+	var explicit, rest float64
+	for w := range uint32(len(b.Vocab)) {
+		if j := nl.Find(append(slices.Clone(h), w)); j >= 0 {
+			explicit += math.Exp(nl.LogP[j])
+		} else {
+			rest += math.Exp(b.LogProb(h[1:], w))
+		}
+	}
+	pl := b.Levels[n-2]
+	pl.Bow = slices.Clone(pl.Bow)
+	pl.Bow[pl.Find(h)] = math.Log((1 - explicit) / rest)
+	c.Levels[n-2] = pl
+	return c
+}
+
+// historyProb is p(h) by the chain rule over b.LogProb, a leading <s> certain.
+func historyProb(b *Backoff, h []uint32) float64 {
+	lp := 0.0
+	for k := range h {
+		if k == 0 && b.Vocab[h[0]] == BOS {
+			continue
+		}
+		lp += b.LogProb(h[:k], h[k])
+	}
+	return math.Exp(lp)
+}
+
+// klOver is Σ_h p(h) Σ_w p(w|h) ln(p(w|h)/p'(w|h)) over the given histories.
+func klOver(b, c *Backoff, hs [][]uint32) float64 {
+	sum := 0.0
+	for _, h := range hs {
+		inner := 0.0
+		for w := range uint32(len(b.Vocab)) {
+			p := b.LogProb(h, w)
+			if math.IsInf(p, -1) {
+				continue
+			}
+			inner += math.Exp(p) * (p - c.LogProb(h, w))
+		}
+		sum += historyProb(b, h) * inner
+	}
+	return sum
+}
+
+// TestScoreMatchesDirectRelativeEntropy checks the closed form of Score
+// against the definition it comes from. Source: Stolcke 1998, "Entropy-based
+// pruning of backoff language models" (DARPA Broadcast News Workshop), §2–3:
+// the criterion is D(p‖p′) = Σ_h p(h) Σ_w p(w|h) ln(p(w|h)/p′(w|h)) where p′ is
+// the model without the one n-gram and with the back-off weight of its
+// context renormalized. Here p′ is rebuilt by brute force and the sum is
+// taken over the whole vocabulary.
+func TestScoreMatchesDirectRelativeEntropy(t *testing.T) {
+	b := opticksModel(t, 3, 120)
+	s, err := Score(context.Background(), b, ScoreOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for n := 2; n <= 3; n++ {
+		lv := &b.Levels[n-1]
+		// Every 37th n-gram plus the 10 with the largest criterion.
+		var picks []int
+		for i := 0; i < lv.Len(); i += 37 {
+			picks = append(picks, i)
+		}
+		byD := make([]int, lv.Len())
+		for i := range byD {
+			byD[i] = i
+		}
+		sort.Slice(byD, func(x, y int) bool { return s.Delta[n-1][byD[x]] > s.Delta[n-1][byD[y]] })
+		picks = append(picks, byD[:10]...)
+		for _, i := range picks {
+			k := lv.Key(i)
+			t.Run(fmt.Sprintf("order%d/%v", n, k), func(t *testing.T) {
+				c := withoutNGram(b, n, i)
+				want := klOver(b, c, [][]uint32{k[:n-1]})
+				got := s.Delta[n-1][i]
+				if math.Abs(got-want) > 1e-9 || math.Abs(got-want) > 1e-6*math.Abs(want) {
+					t.Errorf("D(%v) = %.15g, direct relative entropy %.15g", k, got, want)
+				}
+			})
+		}
+	}
+}
+
+// TestScoreOnlyTheContextChanges backs the per-context sum above: summed over
+// every history of the n-gram's length that is a context in the model, the
+// direct relative entropy is the same as over the n-gram's own context
+// (Stolcke 1998, §3: only p(·|h) changes). A few removals suffice.
+func TestScoreOnlyTheContextChanges(t *testing.T) {
+	b := opticksModel(t, 3, 25)
+	s, err := Score(context.Background(), b, ScoreOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for n := 2; n <= 3; n++ {
+		var hs [][]uint32
+		ctxLv := &b.Levels[n-2]
+		for j := range ctxLv.Len() {
+			if ctxLv.Bow[j] != 0 || hasChildren(b, n-1, j) {
+				hs = append(hs, ctxLv.Key(j))
+			}
+		}
+		lv := &b.Levels[n-1]
+		for _, i := range []int{0, lv.Len() / 3, lv.Len() - 1} {
+			t.Run(fmt.Sprintf("order%d/%v", n, lv.Key(i)), func(t *testing.T) {
+				want := klOver(b, withoutNGram(b, n, i), hs)
+				if got := s.Delta[n-1][i]; math.Abs(got-want) > 1e-9 || math.Abs(got-want) > 1e-6*math.Abs(want) {
+					t.Errorf("D = %.15g, relative entropy over all %d histories %.15g", got, len(hs), want)
+				}
+			})
+		}
+	}
+}
+
+// sumsToOne checks that every context of b (the empty one included) gives a
+// distribution over the vocabulary that sums to 1 ± 1e-9, as the laid-out,
+// lossless model answers it. Source: the definition of a conditional
+// probability distribution; Stolcke 1998 §2 recomputes back-off weights so
+// that it holds after pruning.
+func sumsToOne(t *testing.T, b *Backoff) {
+	t.Helper()
+	sec, err := AppendSection(nil, b, LayoutOptions{QuantBits: 0})
+	if err != nil {
+		t.Fatal(err)
+	}
+	m, err := LoadSection(sec)
+	if err != nil {
+		t.Fatal(err)
+	}
+	ctxs := [][]uint32{nil}
+	for n := 1; n < b.Order(); n++ {
+		lv := &b.Levels[n-1]
+		for j := range lv.Len() {
+			if hasChildren(b, n, j) {
+				ctxs = append(ctxs, lv.Key(j))
+			}
+		}
+	}
+	bad := 0
+	for _, h := range ctxs {
+		sum := 0.0
+		for w := range uint32(len(b.Vocab)) {
+			if lp := m.LogProb(h, w); !math.IsInf(lp, -1) {
+				sum += math.Exp(lp)
+			}
+		}
+		if math.Abs(sum-1) > 1e-9 {
+			if bad++; bad <= 5 {
+				t.Errorf("Σ_w p(w | %v) = %.15f, want 1", h, sum)
+			}
+		}
+	}
+	if bad > 5 {
+		t.Errorf("... %d contexts of %d do not sum to one", bad, len(ctxs))
+	}
+}
+
+func TestPrunedModelsNormalize(t *testing.T) {
+	ctx := context.Background()
+	b := opticksModel(t, 3, 400)
+	s, err := Score(ctx, b, ScoreOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	c, err := NewCounter(3)
+	if err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.SplitAfter(readFile(t, "testdata/opticks-train.txt"), "\n")
+	if err := c.AddText(ctx, strings.NewReader(strings.Join(lines[:400], "")), ScanOptions{Pretokenized: true}, nil); err != nil {
+		t.Fatal(err)
+	}
+	cases := []struct {
+		name  string
+		prune func() (*Backoff, error)
+	}{
+		{"entropy/1e-7", func() (*Backoff, error) { return PruneScored(ctx, b, s, 1e-7) }},
+		{"entropy/1e-5", func() (*Backoff, error) { return PruneScored(ctx, b, s, 1e-5) }},
+		{"entropy/unigrams-only", func() (*Backoff, error) { return PruneScored(ctx, b, s, math.Inf(1)) }},
+		{"cutoff/1-2-2", func() (*Backoff, error) { return EstimateCutoff(ctx, c, []int{1, 2, 2}, EstimateOptions{}) }},
+		{"cutoff/1-1-3", func() (*Backoff, error) { return EstimateCutoff(ctx, c, []int{1, 1, 3}, EstimateOptions{}) }},
+		{"vocab/300", func() (*Backoff, error) { return PruneVocab(ctx, b, 300, []string{"prism"}) }},
+		{"vocab/300-then-entropy", func() (*Backoff, error) {
+			v, err := PruneVocab(ctx, b, 300, nil)
+			if err != nil {
+				return nil, err
+			}
+			return Prune(ctx, v, PruneOptions{Threshold: 1e-6})
+		}},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			p, err := tc.prune()
+			if err != nil {
+				t.Fatal(err)
+			}
+			sumsToOne(t, p)
+		})
+	}
+}
+
+// TestPruneKeepsWhatItMust checks the rules of the issue and of Stolcke 1998
+// §3: every n-gram whose criterion reaches θ is kept; one below θ is kept only
+// as the context of a kept longer n-gram; all unigrams are kept; kept n-grams
+// keep their probabilities.
+func TestPruneKeepsWhatItMust(t *testing.T) {
+	ctx := context.Background()
+	b := opticksModel(t, 4, 600)
+	s, err := Score(ctx, b, ScoreOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, theta := range []float64{0, 1e-7, 1e-6, 1e-5, 1e-4} {
+		t.Run(fmt.Sprint(theta), func(t *testing.T) {
+			p, err := PruneScored(ctx, b, s, theta)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if p.Levels[0].Len() != len(b.Vocab) {
+				t.Errorf("unigrams = %d, want %d", p.Levels[0].Len(), len(b.Vocab))
+			}
+			for n := 2; n <= b.Order(); n++ {
+				lv, pl := &b.Levels[n-1], &p.Levels[n-1]
+				for i := range lv.Len() {
+					k := lv.Key(i)
+					j := pl.Find(k)
+					d := s.Delta[n-1][i]
+					switch {
+					case d >= theta && j < 0:
+						t.Errorf("%v with D %g ≥ θ was pruned", k, d)
+					case j >= 0 && pl.LogP[j] != lv.LogP[i]:
+						t.Errorf("%v changed probability: %g, was %g", k, pl.LogP[j], lv.LogP[i])
+					case j >= 0 && d < theta && (n == b.Order() || !hasChildren(p, n, j)):
+						t.Errorf("%v with D %g < θ kept without being a context", k, d)
+					}
+				}
+			}
+		})
+	}
+}
+
+// rawCounts counts the n-grams of pretokenized text directly (<s> w… </s>).
+func rawCounts(text string, n int) map[string]int {
+	out := map[string]int{}
+	for _, line := range strings.Split(text, "\n") {
+		ws := strings.Fields(line)
+		if len(ws) == 0 {
+			continue
+		}
+		ws = append(append([]string{BOS}, ws...), EOS)
+		for i := 0; i+n <= len(ws); i++ {
+			out[strings.Join(ws[i:i+n], " ")]++
+		}
+	}
+	return out
+}
+
+// TestEstimateCutoff checks count cut-offs against counts taken here from
+// the text: an n-gram seen fewer than minCount times is dropped unless it is
+// the context of a kept longer one (the usual definition of a count cut-off,
+// as in Stolcke 1998 §4's baseline; rule from memory), and cut-offs of 1 give
+// Estimate's model untouched.
+func TestEstimateCutoff(t *testing.T) {
+	ctx := context.Background()
+	lines := strings.SplitAfter(readFile(t, "testdata/opticks-train.txt"), "\n")
+	text := strings.Join(lines[:300], "")
+	c, err := NewCounter(3)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := c.AddText(ctx, strings.NewReader(text), ScanOptions{Pretokenized: true}, nil); err != nil {
+		t.Fatal(err)
+	}
+	full, err := Estimate(ctx, c, EstimateOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Run("ones", func(t *testing.T) {
+		b, err := EstimateCutoff(ctx, c, []int{1, 1, 1}, EstimateOptions{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		for n := range full.Levels {
+			if !slices.Equal(b.Levels[n].LogP, full.Levels[n].LogP) || !slices.Equal(b.Levels[n].Bow, full.Levels[n].Bow) || !slices.Equal(b.Levels[n].IDs, full.Levels[n].IDs) {
+				t.Errorf("order %d differs from Estimate", n+1)
+			}
+		}
+	})
+	for _, mins := range [][]int{{1, 2, 2}, {1, 1, 2}, {1, 3, 5}, {0, 2}} {
+		t.Run(fmt.Sprint(mins), func(t *testing.T) {
+			b, err := EstimateCutoff(ctx, c, mins, EstimateOptions{})
+			if err != nil {
+				t.Fatal(err)
+			}
+			for n := 2; n <= 3; n++ {
+				minN := 1
+				if n <= len(mins) {
+					minN = mins[n-1]
+				}
+				counts := rawCounts(text, n)
+				lv := &full.Levels[n-1]
+				for i := range lv.Len() {
+					k := lv.Key(i)
+					words := make([]string, n)
+					for j, id := range k {
+						words[j] = full.Vocab[id]
+					}
+					cnt := counts[strings.Join(words, " ")]
+					j := b.Levels[n-1].Find(k)
+					isCtx := j >= 0 && n < 3 && hasChildren(b, n, j)
+					if (cnt >= minN) != (j >= 0) && !isCtx {
+						t.Errorf("%v seen %d times: kept = %v with cut-off %d", words, cnt, j >= 0, minN)
+					}
+				}
+			}
+		})
+	}
+	t.Run("errors", func(t *testing.T) {
+		for _, mins := range [][]int{{1, -1}, {1, 1, 1, 1}} {
+			if _, err := EstimateCutoff(ctx, c, mins, EstimateOptions{}); !errors.Is(err, ErrCutoff) {
+				t.Errorf("EstimateCutoff(%v) error = %v, want ErrCutoff", mins, err)
+			}
+		}
+	})
+}
+
+// TestPruneVocab checks vocabulary pruning against its definition: the size
+// most probable words by unigram probability plus specials and must-keep
+// words stay, <unk> gains exactly the dropped words' unigram mass, and no
+// n-gram mentions a dropped word.
+func TestPruneVocab(t *testing.T) {
+	ctx := context.Background()
+	b := opticksModel(t, 3, 300)
+	const size = 150
+	v, err := PruneVocab(ctx, b, size, []string{"prism", "nosuchword"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	// Expected kept set, computed here by sorting (probability, word).
+	type wp struct {
+		w string
+		p float64
+	}
+	var all []wp
+	for id, w := range b.Vocab {
+		all = append(all, wp{w, b.Levels[0].LogP[id]})
+	}
+	sort.SliceStable(all, func(i, j int) bool { return all[i].p > all[j].p })
+	want := map[string]bool{BOS: true, EOS: true, UNK: true, "prism": true}
+	for _, x := range all {
+		if len(want) >= size {
+			break
+		}
+		want[x.w] = true
+	}
+	if len(v.Vocab) != len(want) {
+		t.Errorf("vocabulary = %d words, want %d", len(v.Vocab), len(want))
+	}
+	for _, w := range v.Vocab {
+		if !want[w] {
+			t.Errorf("kept %q, which is not among the %d most probable", w, size)
+		}
+	}
+	if !slices.IsSorted(v.Vocab) {
+		t.Error("vocabulary not sorted")
+	}
+	dropped := 0.0
+	for id, w := range b.Vocab {
+		if !want[w] && w != BOS {
+			dropped += math.Exp(b.Levels[0].LogP[id])
+		}
+	}
+	ou, _ := b.ID(UNK)
+	nu, _ := v.ID(UNK)
+	if got, wantP := math.Exp(v.Levels[0].LogP[nu]), math.Exp(b.Levels[0].LogP[ou])+dropped; math.Abs(got-wantP) > 1e-12 {
+		t.Errorf("p(<unk>) = %g, want %g", got, wantP)
+	}
+	for n := 2; n <= 3; n++ {
+		lv := &v.Levels[n-1]
+		for i := range lv.Len() {
+			for _, id := range lv.Key(i) {
+				if int(id) >= len(v.Vocab) {
+					t.Fatalf("%d-gram %d has ID %d past the vocabulary", n, i, id)
+				}
+			}
+			words := make([]uint32, n)
+			for j, id := range lv.Key(i) {
+				words[j], _ = b.ID(v.Vocab[id])
+			}
+			if j := b.Levels[n-1].Find(words); j < 0 || b.Levels[n-1].LogP[j] != lv.LogP[i] {
+				t.Errorf("%d-gram %v is not an n-gram of the original model with the same probability", n, words)
+			}
+		}
+	}
+	if same, err := PruneVocab(ctx, b, len(b.Vocab), nil); err != nil || same != b {
+		t.Errorf("PruneVocab(size = |V|) = %p, %v; want the model itself", same, err)
+	}
+}
+
+// sectionBytes is the size of b's n-gram section at 8 bits. The lexicon and
+// metadata of a file do not depend on which n-grams are kept, so equal
+// section sizes mean equal file sizes.
+func sectionBytes(t testing.TB, b *Backoff) int {
+	t.Helper()
+	sec, err := AppendSection(nil, b, LayoutOptions{QuantBits: 8})
+	if err != nil {
+		t.Fatal(err)
+	}
+	return len(sec)
+}
+
+func heldOutPerplexity(t testing.TB, b *Backoff) float64 {
+	t.Helper()
+	sec, err := AppendSection(nil, b, LayoutOptions{QuantBits: 8})
+	if err != nil {
+		t.Fatal(err)
+	}
+	m, err := LoadSection(sec)
+	if err != nil {
+		t.Fatal(err)
+	}
+	bos, eos, unk := b.specials()
+	lookup := func(w []byte) (uint32, bool) { return b.ID(string(w)) }
+	r, err := Perplexity(context.Background(), m, lookup, bos, eos, unk, strings.NewReader(readFile(t, "testdata/opticks-test.txt")), ScanOptions{Pretokenized: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	return r.Perplexity
+}
+
+// fitTheta returns the model pruned at the smallest θ (bisection on ln θ)
+// whose section is at most limit bytes.
+func fitTheta(t testing.TB, b *Backoff, s *Scores, limit int) *Backoff {
+	t.Helper()
+	ctx := context.Background()
+	lo, hi := math.Log(1e-12), math.Log(1.0)
+	var best *Backoff
+	for range 40 {
+		mid := (lo + hi) / 2
+		p, err := PruneScored(ctx, b, s, math.Exp(mid))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if sectionBytes(t, p) <= limit {
+			best, hi = p, mid
+		} else {
+			lo = mid
+		}
+	}
+	if best == nil {
+		t.Fatalf("no threshold fits %d bytes", limit)
+	}
+	return best
+}
+
+// TestEntropyPruningBeatsCountCutoffs: at equal size, relative-entropy pruning
+// gives lower held-out perplexity than count cut-offs. Source: Stolcke 1998,
+// §4 (from memory: entropy pruning reaches a given perplexity with fewer
+// parameters than count cut-offs on Broadcast News). Three cut-off models
+// between 20 % and 60 % of the unpruned section, Opticks split, order 3.
+func TestEntropyPruningBeatsCountCutoffs(t *testing.T) {
+	ctx := context.Background()
+	text := readFile(t, "testdata/opticks-train.txt")
+	c, err := NewCounter(3)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := c.AddText(ctx, strings.NewReader(text), ScanOptions{Pretokenized: true}, nil); err != nil {
+		t.Fatal(err)
+	}
+	full, err := Estimate(ctx, c, EstimateOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	start := time.Now()
+	s, err := Score(ctx, full, ScoreOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Logf("scored %v n-grams in %v", full.NGrams(), time.Since(start))
+	size0 := sectionBytes(t, full)
+	ppl0 := heldOutPerplexity(t, full)
+	type point struct {
+		mins []int
+		b    *Backoff
+		size int
+	}
+	var picked []point
+	for _, mins := range [][]int{{1, 1, 2}, {1, 1, 3}, {1, 1, 5}, {1, 2, 1}, {1, 2, 2}, {1, 2, 3}, {1, 3, 4}} {
+		b, err := EstimateCutoff(ctx, c, mins, EstimateOptions{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		sz := sectionBytes(t, b)
+		t.Logf("cut-offs %v: %d bytes (%.0f%%)", mins, sz, 100*float64(sz)/float64(size0))
+		if f := float64(sz) / float64(size0); f >= 0.2 && f <= 0.6 {
+			picked = append(picked, point{mins, b, sz})
+		}
+	}
+	if len(picked) < 3 {
+		t.Fatalf("only %d cut-off settings fall between 20%% and 60%% of %d bytes", len(picked), size0)
+	}
+	if len(picked) > 3 { // spread: smallest, middle, largest
+		picked = []point{picked[0], picked[len(picked)/2], picked[len(picked)-1]}
+	}
+	for _, pt := range picked {
+		t.Run(fmt.Sprint(pt.mins), func(t *testing.T) {
+			e := fitTheta(t, full, s, pt.size)
+			pc, pe := heldOutPerplexity(t, pt.b), heldOutPerplexity(t, e)
+			t.Logf("%.0f%% of the section (%d bytes): cut-offs %v perplexity %.2f (n-grams %v), entropy pruning %.2f (%d bytes, n-grams %v); unpruned %.2f",
+				100*float64(pt.size)/float64(size0), pt.size, pt.mins, pc, pt.b.NGrams(), pe, sectionBytes(t, e), e.NGrams(), ppl0)
+			if !(pe < pc) {
+				t.Errorf("entropy-pruned perplexity %.3f ≥ count cut-off perplexity %.3f at %d bytes", pe, pc, pt.size)
+			}
+		})
+	}
+	// The 26% point: Stolcke 1998 reports (from memory) that a production
+	// model pruned to about 26% of its n-grams kept its recognition accuracy.
+	total := 0
+	for _, n := range full.NGrams()[1:] {
+		total += n
+	}
+	lo, hi := math.Log(1e-12), math.Log(1.0)
+	var at *Backoff
+	for range 40 {
+		mid := (lo + hi) / 2
+		p, err := PruneScored(ctx, full, s, math.Exp(mid))
+		if err != nil {
+			t.Fatal(err)
+		}
+		kept := 0
+		for _, n := range p.NGrams()[1:] {
+			kept += n
+		}
+		if float64(kept) <= 0.26*float64(total) {
+			at, hi = p, mid
+		} else {
+			lo = mid
+		}
+	}
+	kept := 0
+	for _, n := range at.NGrams()[1:] {
+		kept += n
+	}
+	pa := heldOutPerplexity(t, at)
+	t.Logf("26%% point: %d of %d bigrams+trigrams kept (%.1f%%), perplexity %.2f vs %.2f unpruned (+%.1f%%), section %d of %d bytes",
+		kept, total, 100*float64(kept)/float64(total), pa, ppl0, 100*(pa/ppl0-1), sectionBytes(t, at), size0)
+}
+
+func TestPruneErrors(t *testing.T) {
+	ctx := context.Background()
+	b := opticksModel(t, 2, 50)
+	s, err := Score(ctx, b, ScoreOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	noUnk := &Backoff{Vocab: []string{"a", "b"}, Levels: []Level{{N: 1, IDs: []uint32{0, 1}, LogP: []float64{math.Log(.5), math.Log(.5)}, Bow: make([]float64, 2)}}}
+	broken := &Backoff{Vocab: b.Vocab, Levels: []Level{b.Levels[0], {N: 2, IDs: []uint32{1}, LogP: []float64{0}, Bow: []float64{0}}}}
+	other := opticksModel(t, 3, 50)
+	cases := []struct {
+		name string
+		err  error
+		f    func() error
+	}{
+		{"vocab-without-unk", ErrNoUnknown, func() error { _, err := PruneVocab(ctx, noUnk, 1, nil); return err }},
+		{"shape", ErrModel, func() error { _, err := Score(ctx, broken, ScoreOptions{}); return err }},
+		{"scores-of-another-model", ErrModel, func() error { _, err := PruneScored(ctx, other, s, 0); return err }},
+		{"empty", ErrOrder, func() error { _, err := Score(ctx, &Backoff{}, ScoreOptions{}); return err }},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			if err := tc.f(); !errors.Is(err, tc.err) {
+				t.Errorf("error = %v, want %v", err, tc.err)
+			}
+		})
+	}
+	cctx, cancel := context.WithCancel(ctx)
+	cancel()
+	big := opticksModel(t, 3, 0)
+	if _, err := Score(cctx, big, ScoreOptions{}); !errors.Is(err, context.Canceled) {
+		t.Errorf("Score on a cancelled context = %v, want context.Canceled", err)
+	}
+}
