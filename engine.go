@@ -5,6 +5,7 @@ import (
 	"sync/atomic"
 	"time"
 
+	"github.com/keyloom/keyloom/correct"
 	"github.com/keyloom/keyloom/internal/bundle"
 	"github.com/keyloom/keyloom/internal/mmap"
 	"github.com/keyloom/keyloom/lm"
@@ -38,6 +39,11 @@ type Options struct {
 	NoLearning bool
 	// Clock, if not nil, replaces time.Now for the day count used by decay.
 	Clock func() time.Time
+
+	// Layout is the keyboard geometry the corrector assumes (default QWERTY).
+	Layout Layout
+	// Keyboard, if not nil, replaces Layout (see ParseLayout).
+	Keyboard *Keyboard
 }
 
 func (o Options) withDefaults() (Options, error) {
@@ -58,6 +64,7 @@ type Engine struct {
 	model  *bundle.Model
 	closed atomic.Bool
 	user   userState
+	corr   *correct.Corrector
 }
 
 // Open maps the model file at path read-only and returns an Engine for it.
@@ -102,6 +109,9 @@ func newEngine(b []byte, opts Options) (*Engine, error) {
 	}
 	e := &Engine{opts: opts, model: m}
 	if err := e.initUser(); err != nil {
+		return nil, err
+	}
+	if err := e.initCorrector(); err != nil {
 		return nil, err
 	}
 	return e, nil

@@ -39,6 +39,8 @@ type Correction struct {
 	// Apply says the replacement is safe to make when the user types a space
 	// or punctuation. When false it should only be offered.
 	Apply bool `json:"apply"`
+	// Alternatives are further candidates, best first.
+	Alternatives []string `json:"alternatives,omitempty"`
 }
 
 // maxContextBytes bounds how much of the text before the cursor is read.
@@ -143,7 +145,11 @@ func (e *Engine) Suggest(beforeCursor string) (Result, error) {
 		res.Predictions = q.display(q.topK(ctx, "", k, buf[:0]), "", c.start)
 		return res, nil
 	}
-	res.Completions = q.display(q.topK(ctx, lm.Fold(c.prefix), k, buf[:0]), c.prefix, c.start)
+	folded := lm.Fold(c.prefix)
+	res.Completions = q.display(q.topK(ctx, folded, k, buf[:0]), c.prefix, c.start)
+	if len(res.Completions) == 0 {
+		res.Correction = e.correctPrefix(beforeCursor, c.prefix)
+	}
 	return res, nil
 }
 

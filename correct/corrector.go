@@ -90,7 +90,7 @@ type Options struct {
 	KnownMargin float64
 	// UnknownLogProb is the language-model log-probability given to a typed
 	// word the lexicon does not know, as the "leave it" alternative.
-	// Default -16.
+	// Default -21.
 	UnknownLogProb float64
 	// SpaceCost is the channel cost (nats) of a missing or extra space.
 	// Default 5.
@@ -121,7 +121,7 @@ func (o *Options) defaults() error {
 	def(&o.LMWeight, 1)
 	def(&o.ApplyThreshold, 0.5)
 	def(&o.KnownMargin, 10)
-	def(&o.UnknownLogProb, -16)
+	def(&o.UnknownLogProb, -21)
 	def(&o.SpaceCost, 5)
 	o.MaxCost = min(o.MaxCost, 40)
 	return nil

@@ -192,7 +192,7 @@ func (t *Tally) readChunks(ctx context.Context, r io.Reader, tokenized bool, siz
 			return nil // the cause is reported by AddText
 		}
 		// Fill pending up to size (more if no safe cut was found yet).
-		want := max(size, len(pending)+size/2)
+		want := max(size, len(pending)+max(size/2, 4<<10))
 		if cap(pending) < want {
 			p := make([]byte, len(pending), want)
 			copy(p, pending)

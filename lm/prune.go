@@ -71,6 +71,11 @@ func Score(ctx context.Context, b *Backoff, opts ScoreOptions) (*Scores, error) 
 	if err != nil {
 		return nil, err
 	}
+	return scoreWith(ctx, b, hist, opts, total)
+}
+
+func scoreWith(ctx context.Context, b *Backoff, hist [][]float64, opts ScoreOptions, total int) (*Scores, error) {
+	N := b.Order()
 	s := &Scores{Delta: make([][]float64, N)}
 	key := make([]uint32, 0, N)
 	var lower []float64

@@ -7,6 +7,7 @@ import (
 	"os"
 	"path/filepath"
 	"runtime"
+	"runtime/debug"
 	"time"
 
 	"github.com/keyloom/keyloom/internal/bundle"
@@ -70,6 +71,12 @@ func runBuild(ctx context.Context, e *env, args []string) error {
 		if memBytes, err = parseSize(*mem); err != nil || memBytes == 0 {
 			return fmt.Errorf("%w: --mem %q: want a size such as 512MB", errUsage, *mem)
 		}
+	}
+	if memBytes > 0 && os.Getenv("GOMEMLIMIT") == "" {
+		// Make the collector keep the heap near the budget; estimation may
+		// still need more (it holds every distinct n-gram), which this
+		// soft limit allows.
+		debug.SetMemoryLimit(memBytes + memBytes/4)
 	}
 	if *workers < 1 {
 		return fmt.Errorf("%w: --workers %d: want at least 1", errUsage, *workers)

@@ -54,12 +54,22 @@ func runEval(ctx context.Context, e *env, args []string) error {
 	user := fs.String("user", "", "user overlay file to blend in")
 	split := fs.Float64("split", 0, "learn a user overlay on this fraction of the text (in reading order) and test on the rest, base vs personalized")
 	noOnline := fs.Bool("no-online", false, "with --split: do not learn test sentences after they are typed")
+	correctList := fs.String("correct", "", "measure correction on a misspelling<TAB>correction(s) list instead of typing TEST")
+	noise := fs.Float64("noise", 0, "type TEST with this per-letter error rate drawn from the key geometry, correction on")
+	layout := fs.String("layout", "qwerty", "keyboard for --noise and correction: qwerty, azerty, qwertz or a layout file")
+	seed := fs.Uint64("seed", 1, "random seed of --noise")
 	pos, err := parse(fs, args)
 	if err != nil {
 		return err
 	}
+	if *correctList != "" {
+		return evalCorrect(ctx, e, *model, *user, *layout, *correctList, *asJSON)
+	}
 	if len(pos) == 0 {
 		return fmt.Errorf("%w: give at least one TEST file (- for standard input)", errUsage)
+	}
+	if *noise != 0 {
+		return evalNoise(ctx, e, *model, *user, *layout, pos, lm.ScanOptions{Pretokenized: *tokenized}, *noise, *seed, *k, *asJSON)
 	}
 	if *k < 1 || *k > evaluate.MaxK {
 		return fmt.Errorf("%w: --k %d: want 1..%d", errUsage, *k, evaluate.MaxK)

@@ -34,12 +34,15 @@ func commands() []command {
 		{"build", "count text and word lists and write a model file", runBuild},
 		{"count", "count n-grams as shard lines: mapper and reducer of a map/reduce build", runCount},
 		{"suggest", "complete the word being typed or predict the next one", runSuggest},
+		{"correct", "propose corrections of typed words", runCorrect},
 		{"eval", "measure a model on test text (perplexity)", runEval},
 		{"inspect", "print a model file's sections, sizes and checksums", runInspect},
 		{"export", "write a model as ARPA text", runExport},
 		{"learn", "teach a user overlay the user's own text", runLearn},
 		{"forget", "remove words or phrases from a user overlay", runForget},
 		{"merge", "copy a base model with a user overlay baked in", runMerge},
+		{"prune", "shrink a model to a byte budget (relative-entropy pruning, quantization, vocabulary)", runPrune},
+		{"serve", "answer keystrokes over HTTP with JSON (loopback only by default)", runServe},
 		{"type", "try the engine live in a terminal line editor that learns as you type", runType},
 	}
 }

@@ -57,5 +57,12 @@ func runSuggest(ctx context.Context, e *env, args []string) error {
 	for i, s := range list {
 		fmt.Fprintf(e.stdout, "  %d. %-20s %.4f\n", i+1, s.Word, s.Prob)
 	}
+	if c := res.Correction; c != nil {
+		act := "offer"
+		if c.Apply {
+			act = "apply on space"
+		}
+		fmt.Fprintf(e.stdout, "correction: %s → %s (%.0f%%, %s)\n", c.Typed, c.Replacement, 100*c.Confidence, act)
+	}
 	return nil
 }

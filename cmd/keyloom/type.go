@@ -13,14 +13,15 @@ import (
 )
 
 func runType(ctx context.Context, e *env, args []string) error {
-	fsx := newFlags(e, "type", "[--model M] [--user U.overlay]",
+	fsx := newFlags(e, "type", "",
 		"Opens a line editor in the terminal that shows, as you type, completions of the word\n"+
 			"being typed, next-word predictions after a space and correction proposals, with the\n"+
 			"time the engine took. Enter finishes a line and learns it; with --user what was\n"+
 			"learned is loaded at start and saved on exit (mode 0600, written atomically).\n\n"+
 			"keys: Tab takes the first suggestion, Alt+1..9 or F1..F9 take one by number,\n"+
-			"Ctrl+R takes the proposed correction (a safe one is made by Space; Backspace right\n"+
-			"after takes it back), Enter learns the line, Ctrl+L turns learning off and on,\n"+
+			"Ctrl+R takes the proposed correction (a safe one is made when Space or . , ; : ! ?\n"+
+			"ends the word; Backspace right after takes it back and the engine leaves that word\n"+
+			"alone from then on), Enter learns the line, Ctrl+L turns learning off and on,\n"+
 			"Ctrl+W/Ctrl+U delete a word/to the start, Esc or Ctrl+C quits.")
 	model := fsx.String("model", "", "model file (default: the bundled default model)")
 	user := fsx.String("user", "", "user overlay file to load and save on exit (created if missing)")

@@ -40,12 +40,16 @@ type pad struct {
 	latency time.Duration  // time taken by the last Suggest
 	err     error          // last engine error, shown in the status line
 
-	// fixFor returns the correction to make when a space is typed after
-	// before (nil: leave the word). Tests may replace it.
+	// fixFor returns the engine's decision on the last word of before when
+	// the user finishes it with a space or punctuation (nil: leave the
+	// word). Tests may replace it.
 	fixFor func(before string) *keyloom.Correction
-	// undo is set right after a correction was applied on space, so that a
-	// Backspace as the very next key can take it back.
+	// undo is set right after a correction was applied, so that a Backspace
+	// as the very next key can take it back.
 	undo *padUndo
+	// offer is set right after a word was finished for which the engine
+	// proposes a correction it does not make itself (Ctrl+R takes it).
+	offer *padUndo
 
 	learning bool
 	lines    int // finished lines learned
@@ -56,10 +60,11 @@ type pad struct {
 	quitting bool
 }
 
-// padUndo remembers an applied correction.
+// padUndo remembers a correction made (or offered) when a word was finished.
 type padUndo struct {
-	typed, replacement string
-	at                 int // cursor right after the space that applied it
+	fix *keyloom.Correction
+	end rune // the space or punctuation that finished the word
+	at  int  // cursor right after end
 }
 
 // newPad returns a playground over eng showing slots suggestions.
@@ -90,8 +95,8 @@ func (p *pad) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
 
 // key applies one key press and returns tea.Quit when the user leaves.
 func (p *pad) key(k tea.KeyMsg) tea.Cmd {
-	undo := p.undo
-	p.undo = nil
+	undo, offer := p.undo, p.offer
+	p.undo, p.offer = nil, nil
 	p.note = ""
 	if k.Paste {
 		// Pasted text is inserted as is: no correction is made on its spaces.
@@ -113,13 +118,17 @@ func (p *pad) key(k tea.KeyMsg) tea.Cmd {
 	case tea.KeyF1, tea.KeyF2, tea.KeyF3, tea.KeyF4, tea.KeyF5, tea.KeyF6, tea.KeyF7, tea.KeyF8, tea.KeyF9:
 		p.pick(slices.Index(functionKeys(), k.Type))
 	case tea.KeyCtrlR:
-		if c := p.offeredFix(); c != nil {
+		if offer != nil && offer.at == p.cursor {
+			p.cursor--
+			p.replaceWord(offer.fix.Typed, offer.fix.Replacement)
+			p.cursor++
+		} else if c := p.offeredFix(); c != nil {
 			p.replaceWord(c.Typed, c.Replacement)
 		}
 	case tea.KeySpace:
-		p.space()
+		p.finishWord(' ')
 	case tea.KeyBackspace:
-		if undo != nil && undo.at == p.cursor && strings.HasSuffix(p.before(), undo.replacement+" ") {
+		if undo != nil && undo.at == p.cursor && strings.HasSuffix(p.before(), undo.fix.Replacement+string(undo.end)) {
 			p.takeBack(undo)
 			break
 		}
@@ -150,7 +159,14 @@ func (p *pad) key(k tea.KeyMsg) tea.Cmd {
 			}
 			break
 		}
-		p.insert(string(k.Runes))
+		// Fast typing can arrive as several runes in one message.
+		for _, r := range k.Runes {
+			if strings.ContainsRune(wordEnders, r) {
+				p.finishWord(r)
+				continue
+			}
+			p.insert(string(r))
+		}
 	default:
 		return nil
 	}
@@ -207,13 +223,14 @@ func (p *pad) pick(i int) {
 	p.insert(list[i].Word + " ")
 }
 
-// engineFix is the default fixFor: the correction the engine proposed for
-// the word before the cursor, when it is to be applied on space.
+// engineFix is the default fixFor: the engine's decision on the last word.
 func (p *pad) engineFix(before string) *keyloom.Correction {
-	if p.resFor != before {
+	c, err := p.eng.Correct(before)
+	if err != nil {
+		p.err = err
 		return nil
 	}
-	return p.res.Correction
+	return c
 }
 
 // offeredFix returns the correction proposed for the word being typed, if any.
@@ -225,18 +242,35 @@ func (p *pad) offeredFix() *keyloom.Correction {
 	return c
 }
 
-// space types a space, first applying a correction that is safe to make.
-func (p *pad) space() {
+// wordEnders are the keys besides space that finish a word and so let the
+// engine correct it.
+const wordEnders = ".,;:!?"
+
+// finishWord types end (a space or punctuation). When it ends a word, the
+// engine decides on that word first: a safe correction is made (and can be
+// taken back with Backspace), another is offered until the next key.
+func (p *pad) finishWord(end rune) {
 	b := p.before()
-	if last, _ := utf8.DecodeLastRuneInString(b); b != "" && isTypedWordRune(last) {
-		if c := p.fixFor(b); c != nil && c.Apply && c.Typed != "" && c.Typed != c.Replacement && strings.HasSuffix(b, c.Typed) {
-			p.replaceWord(c.Typed, c.Replacement)
-			p.insert(" ")
-			p.undo = &padUndo{typed: c.Typed, replacement: c.Replacement, at: p.cursor}
-			return
-		}
+	last, _ := utf8.DecodeLastRuneInString(b)
+	if b == "" || !(unicode.IsLetter(last) || unicode.IsDigit(last) || unicode.IsMark(last)) {
+		p.insert(string(end))
+		return
 	}
-	p.insert(" ")
+	c := p.fixFor(b)
+	if c == nil || c.Typed == "" || c.Typed == c.Replacement || !strings.HasSuffix(b, c.Typed) {
+		p.insert(string(end))
+		return
+	}
+	if c.Apply {
+		p.replaceWord(c.Typed, c.Replacement)
+	}
+	p.insert(string(end))
+	u := &padUndo{fix: c, end: end, at: p.cursor}
+	if c.Apply {
+		p.undo = u
+	} else {
+		p.offer = u
+	}
 }
 
 // replaceWord replaces typed, which ends right before the cursor, with repl.
@@ -250,16 +284,16 @@ func (p *pad) replaceWord(typed, repl string) {
 	p.insert(repl)
 }
 
-// takeBack undoes an applied correction (the space stays) and tells the
-// engine not to offer it again.
+// takeBack undoes an applied correction (the space or punctuation stays)
+// and tells the engine not to offer it again.
 func (p *pad) takeBack(u *padUndo) {
-	p.cursor-- // before the space
-	p.replaceWord(u.replacement, u.typed)
+	p.cursor-- // before the word's end
+	p.replaceWord(u.fix.Replacement, u.fix.Typed)
 	p.cursor++
-	if err := p.eng.Reject(u.typed, u.replacement); err != nil {
+	if err := p.eng.Reject(u.fix.Typed, u.fix.Replacement); err != nil {
 		p.err = err
 	}
-	p.note = fmt.Sprintf("kept %q", u.typed)
+	p.note = fmt.Sprintf("kept %q; it will not be corrected to %q again", u.fix.Typed, u.fix.Replacement)
 }
 
 // deleteWord removes the word (and the spaces after it) before the cursor.

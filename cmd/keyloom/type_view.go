@@ -8,6 +8,7 @@ import (
 
 	"github.com/charmbracelet/lipgloss"
 	"github.com/charmbracelet/x/ansi"
+	"github.com/keyloom/keyloom"
 )
 
 // padLook holds the playground's styles. Its colours are the project's
@@ -113,20 +114,30 @@ func (p *pad) stripRow() string {
 func (p *pad) fixRow() string {
 	switch {
 	case p.undo != nil:
-		return "    " + p.look.fixTag.Render("fixed") + " " + p.look.fix.Render(" "+p.undo.typed+" → "+p.undo.replacement+" ") +
-			p.look.help.Render(fmt.Sprintf("  Backspace keeps %q", p.undo.typed))
+		return p.fixLine("fixed", p.undo.fix, fmt.Sprintf("Backspace keeps %q", p.undo.fix.Typed))
+	case p.offer != nil:
+		return p.fixLine("fix? ", p.offer.fix, "Ctrl+R takes it")
 	case p.offeredFix() != nil:
 		c := p.offeredFix()
 		how := "Ctrl+R takes it"
 		if c.Apply {
-			how = "space applies it · Ctrl+R now"
+			how = "Space makes it · Ctrl+R now"
 		}
-		return "    " + p.look.fixTag.Render("fix? ") + " " + p.look.fix.Render(" "+c.Typed+" → "+c.Replacement+" ") +
-			p.look.help.Render(fmt.Sprintf("  %.0f%% · %s", 100*c.Confidence, how))
+		return p.fixLine("fix? ", c, how)
 	case p.note != "":
 		return "    " + p.look.note.Render(p.note)
 	}
 	return ""
+}
+
+// fixLine draws one correction with its confidence, alternatives and key.
+func (p *pad) fixLine(tag string, c *keyloom.Correction, how string) string {
+	tail := fmt.Sprintf("  %.0f%%", 100*c.Confidence)
+	if len(c.Alternatives) > 0 {
+		tail += " · or " + strings.Join(c.Alternatives, ", ")
+	}
+	return "    " + p.look.fixTag.Render(tag) + " " + p.look.fix.Render(" "+printable(c.Typed)+" → "+printable(c.Replacement)+" ") +
+		p.look.help.Render(tail+" · "+how)
 }
 
 // statusRow draws the model, learning state, what was learned and the latency.

@@ -2,6 +2,8 @@
 //
 //   node e2e/run.mjs <page-url> <expected.json> <screenshot.png>
 //
+// When the engine corrects, a second screenshot with a correction chip is
+// written beside the first, named *-fix.png.
 // expected.json is written by the Go test (web/e2e_test.go) from the Go
 // facade at test time: {canCorrect, inputs: [{before, suggest, correct}]}.
 // The script prints one "ok - ..." or "not ok - ..." line per check, then a
@@ -27,9 +29,9 @@ const FLAGS = [
   "--headless", "--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run",
   "--disable-background-networking", "--disable-component-update", "--disable-sync",
 ];
-// A word neither the demo corpus nor any dictionary has, typed twice so that
-// it passes the engine's default MinTyped of 2.
-const NEW_WORD = "marrowby";
+// An invented word, far from every word of the demo corpus so that no
+// corrector rewrites it, typed twice to pass the engine's default MinTyped of 2.
+const NEW_WORD = "xylofrump";
 // Relative tolerance on probabilities: the browser runs the same Go code,
 // but math.Exp may round differently under GOARCH=wasm than on amd64.
 const PROB_TOL = 1e-9;
@@ -84,7 +86,8 @@ try {
 
   await page.goto(url);
   await page.waitForSelector('body[data-state="ready"]', { timeout: 60000 });
-  console.log(`# page ready after ${Date.now() - t0} ms`);
+  const readyMs = await page.evaluate(() => document.body.dataset.readyMs);
+  console.log(`# page ready ${Date.now() - t0} ms after the browser launch, ${readyMs} ms after navigation`);
   const note = page.locator("#note");
   const noteValue = () => note.inputValue();
   const chipWords = (kind) => page.locator(`#chips .chip[data-kind="${kind}"]`).evaluateAll((els) => els.map((e) => e.dataset.word));
@@ -140,23 +143,82 @@ try {
     JSON.stringify(await noteValue()));
   check("the cursor stays in the note after a click", await page.evaluate(() => document.activeElement.id === "note"));
 
-  // 4. Personal words: unknown at first, learned by typing, kept over a reload.
-  const probe = "we saw marr";
+  // 4. Corrections: a chip while a word that starts no known word is typed,
+  // and the engine's decision when the word is finished with a space.
+  if (expected.canCorrect) {
+    const typo = "the heatr";
+    const want = expected.inputs.find((a) => a.before === typo);
+    if (check(`the Go facade corrects ${JSON.stringify(typo)} (the shared table's misspelling)`, Boolean(want && want.suggest.correction))) {
+      await page.keyboard.type(`Mind ${typo}`, { delay: 25 });
+      await page.waitForSelector('#chips .chip[data-kind="fix"]');
+      const before = await noteValue();
+      const res = await suggestIn(before, false);
+      const fixes = await chipWords("fix");
+      check("the correction chip shows the engine's replacement first", res.correction && fixes[0] === res.correction.replacement,
+        `strip ${JSON.stringify(fixes)}, engine ${JSON.stringify(res.correction)}`);
+      await page.screenshot({ path: shotPath.replace(/\.png$/, "-fix.png"), fullPage: true });
+      await page.locator('#chips .chip[data-kind="fix"]').first().click();
+      check("clicking the correction chip replaces the word being typed",
+        (await noteValue()) === `${before.slice(0, -res.correction.typed.length)}${res.correction.replacement} `,
+        JSON.stringify(await noteValue()));
+    }
+
+    // A misspelling finished by a space: the page follows Correct's decision.
+    const typo2 = "tomorow";
+    const head = await noteValue();
+    const decision = await page.evaluate((t) => loomNotes.engine().correct(t), `${head}${typo2} `);
+    if (check(`the engine corrects ${JSON.stringify(typo2)} after a space`, decision !== null, "pick another misspelling")) {
+      await page.keyboard.type(`${typo2} `, { delay: 25 });
+      if (decision.apply) {
+        check("a safe correction is made when the space is typed", (await noteValue()) === `${head}${decision.replacement} `,
+          JSON.stringify(await noteValue()));
+        await page.waitForSelector('#chips .chip[data-kind="undo"]');
+        await page.locator('#chips .chip[data-kind="undo"]').click();
+        check("the undo chip puts the typed word back", (await noteValue()) === `${head}${typo2} `, JSON.stringify(await noteValue()));
+        const again = await page.evaluate((t) => loomNotes.engine().correct(t), `${head}${typo2} `);
+        check("an undone correction is not offered again",
+          again === null || again.replacement !== decision.replacement, JSON.stringify(again));
+      } else {
+        check("an unsafe correction is only offered", (await noteValue()) === `${head}${typo2} `, JSON.stringify(await noteValue()));
+        await page.waitForSelector('#chips .chip[data-kind="fix"]');
+        await page.locator('#chips .chip[data-kind="fix"]').first().click();
+        check("clicking the offered correction replaces the finished word",
+          (await noteValue()) === `${head}${decision.replacement} `, JSON.stringify(await noteValue()));
+      }
+    }
+  }
+
+  // 5. Personal words: unknown at first, learned by typing, kept over a reload.
+  const probe = "we saw xylo";
   const hasNew = (res) => (res.completions || []).some((s) => s.word.toLowerCase() === NEW_WORD);
   check("the new word is not suggested before it is typed", !hasNew(await suggestIn(probe, false)));
   await page.keyboard.type(`We met ${NEW_WORD} there. Then ${NEW_WORD} left. `, { delay: 15 });
   check("the new word is suggested after it was typed twice", hasNew(await suggestIn(probe, false)));
-  await page.waitForFunction(() => Number(document.body.dataset.saves || 0) > 0);
+  // The page saves a moment after the last finished word: poll until the
+  // stored overlay, loaded into a fresh engine, knows the new word.
+  const storedKnows = () => page.evaluate(async ([p, w]) => {
+    const b64 = localStorage.getItem(loomNotes.storageKeys.overlay);
+    if (!b64) return false;
+    const bytes = Uint8Array.from(atob(b64), (ch) => ch.charCodeAt(0));
+    const eng = await loomNotes.openFresh();
+    try {
+      eng.loadOverlay(bytes);
+      return (eng.suggest(p).completions || []).some((s) => s.word.toLowerCase() === w);
+    } finally {
+      eng.close();
+    }
+  }, [probe, NEW_WORD]);
+  let saved = false;
+  for (let i = 0; i < 40 && !(saved = await storedKnows()); i++) await page.waitForTimeout(100);
+  check("the overlay stored in the browser holds the new word", saved);
   const typed = await noteValue();
-  const stored = await page.evaluate(() => localStorage.getItem(loomNotes.storageKeys.overlay));
-  check("the overlay is stored in the browser", typeof stored === "string" && stored.length > 0);
 
   await page.reload();
   await page.waitForSelector('body[data-state="ready"]', { timeout: 60000 });
   check("the note text survives a reload", (await noteValue()) === typed, JSON.stringify(await noteValue()));
   check("a fresh engine does not know the new word (it comes from the overlay)", !hasNew(await suggestIn(probe, true)));
   await note.press("End");
-  await page.keyboard.type("Ask marr", { delay: 25 });
+  await page.keyboard.type("Ask xylo", { delay: 25 });
   await page.waitForSelector('#chips .chip[data-kind="completion"]');
   const after = await chipWords("completion");
   check("after a reload the learned word is offered while typing", after.some((w) => w.toLowerCase() === NEW_WORD),
@@ -164,7 +226,7 @@ try {
   await page.screenshot({ path: shotPath, fullPage: true });
   console.log(`# screenshot ${shotPath}`);
 
-  // 5. Wipe forgets every learned word, in the engine and in storage.
+  // 6. Wipe forgets every learned word, in the engine and in storage.
   await page.locator("#wipe").click();
   await page.locator('#wipe[data-armed="true"]').click();
   await page.waitForFunction(() => Number(document.body.dataset.wipes || 0) > 0);

@@ -62,6 +62,7 @@ async function boot() {
   note.focus();
   note.setSelectionRange(note.value.length, note.value.length);
   document.body.dataset.state = "ready";
+  document.body.dataset.readyMs = String(Math.round(performance.now()));
   refresh();
 }
 
@@ -122,31 +123,41 @@ function replace(start, end, text) {
 }
 
 // finishWord runs when the typed text ended a word: it corrects the word if
-// the engine says so, then learns it.
+// the engine says so (at once when the engine calls it safe, otherwise as an
+// offer), then learns it.
 function finishWord(sepLen) {
   const cursor = note.selectionStart;
   const sepStart = cursor - sepLen;
-  const head = note.value.slice(0, sepStart);
-  const m = WORD_AT_END.exec(head);
+  const m = WORD_AT_END.exec(note.value.slice(0, sepStart));
   if (!m) return;
   let start = m.index;
   let word = m[0];
   if (eng.canCorrect) {
     const c = eng.correct(note.value.slice(0, cursor));
-    if (c && c.replacement && c.replacement !== c.typed && head.endsWith(c.typed)) {
-      const at = sepStart - c.typed.length;
+    // The engine names the last field as typed, punctuation included.
+    const field = note.value.slice(0, cursor).trimEnd();
+    if (c && c.replacement && c.replacement !== c.typed && field.endsWith(c.typed)) {
+      const at = field.length - c.typed.length;
+      const found = { start: at, typed: c.typed, replacement: c.replacement, alternatives: c.alternatives || [] };
       if (c.apply) {
-        const sep = note.value.slice(sepStart, cursor);
-        replace(at, cursor, c.replacement + sep);
-        undo = { start: at, typed: c.typed, replacement: c.replacement };
-        const fixed = WORD_AT_END.exec(note.value.slice(0, at + c.replacement.length));
+        note.setRangeText(c.replacement, at, field.length, "preserve");
+        const shift = c.replacement.length - c.typed.length;
+        note.setSelectionRange(cursor + shift, cursor + shift);
+        undo = found;
+        const fixed = WORD_AT_END.exec(note.value.slice(0, at + c.replacement.length).replace(/[^\p{L}\p{N}\p{M}]+$/u, ""));
         if (fixed) { start = fixed.index; word = fixed[0]; }
       } else {
-        offer = { start: at, typed: c.typed, replacement: c.replacement };
+        offer = found;
       }
     }
   }
   commitWord(word, start);
+}
+
+// withWord puts alt in place of the word inside text (which may carry
+// punctuation around it).
+function withWord(text, alt) {
+  return text.replace(/[\p{L}\p{N}\p{M}]+(?:['’-][\p{L}\p{N}\p{M}]+)*/u, alt);
 }
 
 function onInput(ev) {
@@ -183,14 +194,22 @@ function accept(word, prefixLen) {
   refresh();
 }
 
-// fix replaces typed at start with replacement, when the text still has it.
-function fix(c, addSpace) {
-  if (note.value.slice(c.start, c.start + c.typed.length) !== c.typed) return;
-  const end = c.start + c.typed.length;
-  const atCursor = end === note.selectionStart;
-  replace(c.start, end, addSpace && atCursor ? c.replacement + " " : c.replacement);
-  const m = WORD_AT_END.exec(c.replacement);
-  if (m) commitWord(m[0], c.start + m.index);
+// fix replaces the text from (at start) with to, when the note still has it.
+// addSpace finishes the word when it was being typed at the cursor.
+function fix(start, from, to, addSpace) {
+  if (note.value.slice(start, start + from.length) !== from) return;
+  const end = start + from.length;
+  const cursor = note.selectionStart;
+  if (end === cursor) {
+    replace(start, end, addSpace ? to + " " : to);
+  } else {
+    note.setRangeText(to, start, end, "preserve");
+    const shift = end <= cursor ? to.length - from.length : 0;
+    note.setSelectionRange(cursor + shift, cursor + shift);
+    keepText();
+  }
+  const m = /[\p{L}\p{N}\p{M}]+(?:['’-][\p{L}\p{N}\p{M}]+)*/u.exec(to);
+  if (m) commitWord(m[0], start + m.index);
   offer = null;
   undo = null;
   refresh();
@@ -233,11 +252,25 @@ function span(cls, text) {
   return s;
 }
 
-function fixChip(c, addSpace) {
-  return chip("fix", `Replace “${c.typed}” with “${c.replacement}”`, (b) => {
-    b.dataset.word = c.replacement;
-    b.append(span("was", c.typed), span("arrow", "→"), span("now", c.replacement));
-  }, () => fix(c, addSpace));
+// fixChip offers to put to in place of from at start; the first chip of a
+// correction also shows the word as typed (was), struck out.
+function fixChip(start, from, to, was, addSpace) {
+  return chip("fix", `Replace “${from}” with “${to}”`, (b) => {
+    b.dataset.word = to;
+    if (was) b.append(span("was", was), span("arrow", "→"));
+    b.append(span("now", to));
+  }, () => fix(start, from, to, addSpace));
+}
+
+// fixChips offers a correction and its alternatives. The text at c.start
+// is now (c.typed, or the replacement already made).
+function fixChips(c, now, addSpace, withMain) {
+  const out = withMain ? [fixChip(c.start, now, c.replacement, c.typed, addSpace)] : [];
+  for (const alt of (c.alternatives || []).slice(0, 2)) {
+    const to = withWord(c.replacement, alt);
+    if (to !== now) out.push(fixChip(c.start, now, to, "", addSpace));
+  }
+  return out;
 }
 
 // refresh asks the engine about the text before the cursor and redraws the strip.
@@ -264,15 +297,16 @@ function refresh() {
       b.dataset.word = undo.typed;
       b.textContent = `↶ keep “${undo.typed}”`;
     }, undoFix));
+    chips.append(...fixChips(undo, undo.replacement, false, false));
   }
   if (offer) {
     mode = "fix";
-    chips.append(fixChip(offer, false));
+    chips.append(...fixChips(offer, offer.typed, false, true));
   }
   if (res.correction && before.endsWith(res.correction.typed)) {
     mode = "fix";
-    const c = { start: cursor - res.correction.typed.length, typed: res.correction.typed, replacement: res.correction.replacement };
-    chips.append(fixChip(c, true));
+    const c = { ...res.correction, start: cursor - res.correction.typed.length };
+    chips.append(...fixChips(c, c.typed, true, true));
   }
   const prefix = res.prefix || "";
   for (const s of res.completions || []) {

@@ -1,0 +1,133 @@
+package keyloom
+
+import (
+	"strings"
+	"unicode/utf8"
+
+	"github.com/keyloom/keyloom/correct"
+	"github.com/keyloom/keyloom/lm"
+)
+
+// Layout names a built-in keyboard geometry for the corrector.
+type Layout = correct.Layout
+
+// Built-in keyboard layouts.
+const (
+	LayoutQWERTY = correct.LayoutQWERTY
+	LayoutAZERTY = correct.LayoutAZERTY
+	LayoutQWERTZ = correct.LayoutQWERTZ
+)
+
+// Keyboard is a keyboard geometry, built in or read with ParseLayout.
+type Keyboard = correct.Keyboard
+
+// ParseLayout reads a keyboard layout file (format: correct/LAYOUT.md).
+var ParseLayout = correct.ParseLayout
+
+func (e *Engine) initCorrector() error {
+	scorer := func(ctx []uint32, w uint32) float64 {
+		v := e.user.ov.Load().View()
+		if !v.Empty() {
+			return v.LogProb(ctx, w)
+		}
+		return e.model.LM.LogProb(ctx, w)
+	}
+	c, err := correct.New(e.model.Lex, scorer, correct.Options{
+		Layout:   e.opts.Layout,
+		Keyboard: e.opts.Keyboard,
+		Known: func(w string) bool {
+			return e.user.ov.Load().View().Known(w)
+		},
+		Rejected: func(typed, w string) bool {
+			return e.user.ov.Load().View().Rejected(typed, w)
+		},
+	})
+	if err != nil {
+		return err
+	}
+	e.corr = c
+	return nil
+}
+
+// lastField splits before into the text before its last whitespace-separated
+// field and that field (trailing white space ignored).
+func lastField(before string) (head, field string) {
+	t := strings.TrimRight(before, " \t\n\r")
+	i := strings.LastIndexAny(t, " \t\n\r")
+	return t[:i+1], t[i+1:]
+}
+
+// Correct decides what to do with the last word of the text before the
+// cursor when the user finishes it (types a space or punctuation): it
+// returns nil to leave the word alone, or a Correction whose Apply flag says
+// whether replacing it automatically is safe. Words the lexicon or the user
+// knows are replaced only when the context makes the alternative far more
+// likely; a correction the user undid (Reject) is not offered again.
+// Cost: typically tens of microseconds.
+func (e *Engine) Correct(beforeCursor string) (*Correction, error) {
+	if e.closed.Load() {
+		return nil, ErrClosed
+	}
+	head, field := lastField(beforeCursor)
+	if field == "" {
+		return nil, nil
+	}
+	return e.correctField(head, field), nil
+}
+
+func (e *Engine) correctField(head, field string) *Correction {
+	q := e.query()
+	c := parseCursor(head, e.model.LM.Order()-1)
+	var ib [lm.MaxOrder + 1]uint32
+	ctx := q.contextIDs(c.words, ib[:0])
+	var buf [4]correct.Candidate
+	cands, dec := e.corr.Correct(field, ctx, 3, buf[:0])
+	var best *Correction
+	if len(cands) > 0 && (dec.Confidence >= knownOfferConfidence || !e.knows(q, field)) {
+		best = &Correction{Typed: field, Replacement: cands[0].Word, Confidence: dec.Confidence, Apply: dec.Apply}
+		for _, x := range cands[1:] {
+			best.Alternatives = append(best.Alternatives, x.Word)
+		}
+	}
+	// A space typed inside a word: join with the previous field.
+	if h2, prev := lastField(head); prev != "" && (best == nil || !best.Apply) {
+		pc := parseCursor(h2, e.model.LM.Order()-1)
+		pctx := q.contextIDs(pc.words, ib[:0])
+		if m, mdec, ok := e.corr.Merge(prev, field, pctx); ok && mdec.Apply {
+			best = &Correction{Typed: prev + " " + field, Replacement: m.Word, Confidence: mdec.Confidence, Apply: true}
+		}
+	}
+	return best
+}
+
+// knownOfferConfidence is the confidence below which no alternative to a
+// word the lexicon or the user knows is even offered: a correctly spelled
+// word should not come with noise (common practice, no source).
+const knownOfferConfidence = 0.3
+
+// knows reports whether the typed field (punctuation stripped, folded) is a
+// word of the lexicon or one the user has taught.
+func (e *Engine) knows(q query, field string) bool {
+	w := strings.TrimFunc(field, func(r rune) bool { return !isWordRune(r) })
+	if w == "" {
+		return false
+	}
+	w = lm.Fold(w)
+	if _, ok := e.model.Lex.ID(w); ok {
+		return true
+	}
+	return q.view != nil && q.view.Known(w)
+}
+
+// correctPrefix proposes a correction for a partial word that cannot start
+// any known word (no completions), so that Suggest can show it.
+func (e *Engine) correctPrefix(before, prefix string) *Correction {
+	if utf8.RuneCountInString(prefix) < 2 {
+		return nil
+	}
+	head, field := lastField(before)
+	if field == "" {
+		return nil
+	}
+	return e.correctField(head, field)
+}
