@@ -15,14 +15,14 @@ import (
 )
 
 type correctReport struct {
-	N               int     `json:"n"`
-	Top1            float64 `json:"top1"`
-	Top3            float64 `json:"top3"`
-	AutoPrecision   float64 `json:"auto_precision"`
-	AutoRecall      float64 `json:"auto_recall"`
-	Applied         int     `json:"applied"`
-	NoCorrection    int     `json:"no_correction"`
-	LatencyP50us    float64 `json:"latency_p50_us,omitempty"`
+	N               int      `json:"n"`
+	Top1            float64  `json:"top1"`
+	Top3            float64  `json:"top3"`
+	AutoPrecision   float64  `json:"auto_precision"`
+	AutoRecall      float64  `json:"auto_recall"`
+	Applied         int      `json:"applied"`
+	NoCorrection    int      `json:"no_correction"`
+	LatencyP50us    float64  `json:"latency_p50_us,omitempty"`
 	MissingExamples []string `json:"-"`
 }
 
