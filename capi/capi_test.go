@@ -45,29 +45,42 @@ func readInputs(t *testing.T) []string {
 	return in
 }
 
-// writeExpected writes the Go facade's answer for every input, one JSON line
-// each: the reference the C program compares its answers with.
-func writeExpected(t *testing.T, path string, inputs []string) {
+// writeExpected writes the Go facade's answers for every input, one JSON
+// line each, to path (Suggest) and corrPath (Correct): the reference the C
+// program compares its answers with.
+func writeExpected(t *testing.T, path, corrPath string, inputs []string) {
 	t.Helper()
 	eng, err := keyloom.Open(modelPath, keyloom.Options{})
 	if err != nil {
 		t.Fatal(err)
 	}
 	defer eng.Close()
-	var buf bytes.Buffer
+	var buf, cbuf bytes.Buffer
 	for _, in := range inputs {
 		res, err := eng.Suggest(in)
 		if err != nil {
 			t.Fatalf("Suggest(%q): %v", in, err)
 		}
-		js, err := json.Marshal(res)
+		corr, err := eng.Correct(in)
 		if err != nil {
-			t.Fatal(err)
+			t.Fatalf("Correct(%q): %v", in, err)
 		}
-		buf.Write(js)
-		buf.WriteByte('\n')
+		for _, x := range []struct {
+			b *bytes.Buffer
+			v any
+		}{{&buf, res}, {&cbuf, corr}} {
+			js, err := json.Marshal(x.v)
+			if err != nil {
+				t.Fatal(err)
+			}
+			x.b.Write(js)
+			x.b.WriteByte('\n')
+		}
 	}
 	if err := os.WriteFile(path, buf.Bytes(), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(corrPath, cbuf.Bytes(), 0o644); err != nil {
 		t.Fatal(err)
 	}
 }
@@ -109,8 +122,9 @@ func TestCAPI(t *testing.T) {
 		"-L", dir, "-lkeyloom", "-Wl,-rpath,"+dir, "-lpthread")
 
 	inputs := readInputs(t)
-	expected := filepath.Join(dir, "expected.jsonl")
-	writeExpected(t, expected, inputs)
+	expected := filepath.Join(dir, "expected-suggest.jsonl")
+	expCorr := filepath.Join(dir, "expected-correct.jsonl")
+	writeExpected(t, expected, expCorr, inputs)
 
 	model, err := filepath.Abs(modelPath)
 	if err != nil {
@@ -120,7 +134,7 @@ func TestCAPI(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	out := run(t, dir, nil, bin, model, in, expected, dir)
+	out := run(t, dir, nil, bin, model, in, expected, expCorr, dir)
 	t.Log(strings.TrimSpace(out))
 	if !strings.Contains(out, " 0 failed") {
 		t.Errorf("klm_test output lacks a zero failure count:\n%s", out)

@@ -118,6 +118,26 @@ func klm_suggest(h C.klm_handle, before *C.klm_cchar, out *C.char, cap C.size_t)
 	return putText(out, cap, js)
 }
 
+//export klm_correct
+func klm_correct(h C.klm_handle, before *C.klm_cchar, out *C.char, cap C.size_t) C.int64_t {
+	var js []byte
+	err := with(cgo.Handle(h), func(eng *keyloom.Engine) error {
+		if before == nil {
+			return fmt.Errorf("%w: before", errNilArg)
+		}
+		c, err := eng.Correct(C.GoString((*C.char)(before)))
+		if err != nil {
+			return err
+		}
+		js, err = json.Marshal(c) // a nil *Correction encodes as null
+		return err
+	})
+	if err != nil {
+		return C.int64_t(code(err))
+	}
+	return putText(out, cap, js)
+}
+
 //export klm_learn
 func klm_learn(h C.klm_handle, text *C.klm_cchar) C.int32_t {
 	return code(with(cgo.Handle(h), func(eng *keyloom.Engine) error {

@@ -112,6 +112,16 @@ int32_t klm_close(klm_handle h);
  * under the size convention, or a negative KLM_ERR_* code. */
 int64_t klm_suggest(klm_handle h, const char *before, char *out, size_t cap);
 
+/* klm_correct decides what to do with the last word of before when the
+ * user finishes it (types a space or punctuation). The answer is the JSON
+ * literal null (leave the word alone) or
+ *   {"typed":"...","replacement":"...","confidence":0.97,"apply":true,
+ *    "alternatives":["...",...]}
+ * where apply says replacing automatically is safe (otherwise only offer
+ * it) and alternatives may be absent. Returns the JSON length under the size
+ * convention, or a negative KLM_ERR_* code. */
+int64_t klm_correct(klm_handle h, const char *before, char *out, size_t cap);
+
 /* klm_learn teaches the engine the user's text (held in memory until
  * klm_save_overlay). Text that looks like a secret (long digit runs, card
  * numbers, e-mail addresses) is never learned, and nothing is learned while

@@ -1,11 +1,12 @@
 /*
  * klm_test.c — checks the C interface of libkeyloom against keyloom.h.
  *
- * usage: klm_test MODEL INPUTS EXPECTED TMPDIR
- *   MODEL     a model file (testdata/models/demo-v1.klm)
- *   INPUTS    the shared input table (testdata/routes/inputs.txt): one JSON string per line
- *   EXPECTED  one JSON answer per input line, written by the Go test from the Go facade
- *   TMPDIR    a writable directory for overlay files
+ * usage: klm_test MODEL INPUTS EXPECTED EXPECTED_CORRECT TMPDIR
+ *   MODEL             a model file (testdata/models/demo-v1.klm)
+ *   INPUTS            the shared input table (testdata/routes/inputs.txt): one JSON string per line
+ *   EXPECTED          the Go facade's Suggest answer per input line, as JSON (written by the Go test)
+ *   EXPECTED_CORRECT  the Go facade's Correct answer per input line, as JSON (written by the Go test)
+ *   TMPDIR            a writable directory for overlay files
  *
  * Prints one line per failed check and "klm_test: N checks, M failed"; exits 1 on any failure.
  */
@@ -139,6 +140,15 @@ static char *suggest(klm_handle h, const char *before) {
 	}
 }
 
+/* correct returns klm_correct's answer in a malloc'd string, NULL on error. */
+static char *correct(klm_handle h, const char *before) {
+	int64_t n = klm_correct(h, before, NULL, 0);
+	if (n < 0) return NULL;
+	char *buf = malloc((size_t)n + 1);
+	if (klm_correct(h, before, buf, (size_t)n + 1) != n) { free(buf); return NULL; }
+	return buf;
+}
+
 /* completes reports whether the completions for before include word. */
 static int completes(klm_handle h, const char *before, const char *word) {
 	char *js = suggest(h, before);
@@ -183,11 +193,11 @@ static void *work(void *arg) {
 }
 
 int main(int argc, char **argv) {
-	if (argc != 5) {
-		fprintf(stderr, "usage: klm_test MODEL INPUTS EXPECTED TMPDIR\n");
+	if (argc != 6) {
+		fprintf(stderr, "usage: klm_test MODEL INPUTS EXPECTED EXPECTED_CORRECT TMPDIR\n");
 		return 2;
 	}
-	const char *model = argv[1], *inputs = argv[2], *expected = argv[3], *tmp = argv[4];
+	const char *model = argv[1], *inputs = argv[2], *expected = argv[3], *expcorr = argv[4], *tmp = argv[5];
 	char errbuf[512], path[1024], msg[512];
 
 	CHECK(klm_abi_version() == KLM_ABI_VERSION, "abi %d", (int)klm_abi_version());
@@ -244,6 +254,23 @@ int main(int argc, char **argv) {
 	js = suggest(h, "see you at the o");
 	CHECK(js && strstr(js, "\"prefix\":\"o\"") && strstr(js, "\"completions\":[{\"word\":\"o"), "completions of o: %s", js ? js : "(null)");
 	free(js);
+
+	/* Correction of a finished word. "agian" -> "again" is a pair of the
+	 * Wikipedia list of common misspellings (corpora/misspellings-dev.tsv);
+	 * "the" is correctly spelled and must be left alone (null). */
+	js = correct(h, "we can meet agian ");
+	CHECK(js && strstr(js, "\"typed\":\"agian\"") && strstr(js, "\"replacement\":\"again\""), "correct agian: %s", js ? js : "(error)");
+	free(js);
+	js = correct(h, "see you at the ");
+	CHECK(js && strcmp(js, "null") == 0, "correct of a correct word: %s", js ? js : "(error)");
+	free(js);
+	CHECK(klm_correct(h, NULL, errbuf, sizeof errbuf) == KLM_ERR_ARG, "NULL correct text");
+	CHECK(klm_correct(0, "agian ", errbuf, sizeof errbuf) == KLM_ERR_HANDLE, "handle 0 correct");
+	{
+		char small[4] = "xyz";
+		int64_t need = klm_correct(h, "we can meet agian ", small, sizeof small);
+		CHECK(need >= (int64_t)sizeof small && small[0] == 0, "correct into a small buffer: %lld", (long long)need);
+	}
 
 	/* Info. */
 	char infobuf[1024];
@@ -310,13 +337,14 @@ int main(int argc, char **argv) {
 	CHECK(klm_close(h2) == KLM_OK, "close h2");
 
 	/* The shared input table: answers equal the Go facade's. */
-	char *inbuf = read_file(inputs, NULL), *wantbuf = read_file(expected, NULL);
-	CHECK(inbuf && wantbuf, "read %s / %s", inputs, expected);
-	if (inbuf && wantbuf) {
+	char *inbuf = read_file(inputs, NULL), *wantbuf = read_file(expected, NULL), *corrbuf = read_file(expcorr, NULL);
+	CHECK(inbuf && wantbuf && corrbuf, "read %s / %s / %s", inputs, expected, expcorr);
+	if (inbuf && wantbuf && corrbuf) {
 		static struct table t;
-		char *in[MAX_LINES], *want[MAX_LINES];
+		char *in[MAX_LINES], *want[MAX_LINES], *wantcorr[MAX_LINES];
 		int ni = split_lines(inbuf, in, MAX_LINES), nw = split_lines(wantbuf, want, MAX_LINES);
-		CHECK(ni > 0 && ni == nw, "%d inputs, %d expected answers", ni, nw);
+		int nc = split_lines(corrbuf, wantcorr, MAX_LINES);
+		CHECK(ni > 0 && ni == nw && ni == nc, "%d inputs, %d expected answers, %d expected corrections", ni, nw, nc);
 		size_t modellen;
 		char *modelbytes = read_file(model, &modellen);
 		klm_handle fresh = klm_open(model, 0, 0, errbuf, sizeof errbuf);
@@ -331,6 +359,11 @@ int main(int argc, char **argv) {
 			CHECK(gotmem && got && strcmp(got, gotmem) == 0, "klm_open_bytes answer differs for %s", in[i]);
 			free(got);
 			free(gotmem);
+			if (i < nc) {
+				char *gotcorr = correct(fresh, text);
+				CHECK(gotcorr && strcmp(gotcorr, wantcorr[i]) == 0, "klm_correct(%s) = %s, want %s", in[i], gotcorr ? gotcorr : "(error)", wantcorr[i]);
+				free(gotcorr);
+			}
 			t.input[t.n] = text;
 			t.want[t.n] = want[i];
 			t.n++;
@@ -353,6 +386,7 @@ int main(int argc, char **argv) {
 	}
 	free(inbuf);
 	free(wantbuf);
+	free(corrbuf);
 
 	/* Closing. */
 	CHECK(klm_close(h) == KLM_OK, "close");

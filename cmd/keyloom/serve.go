@@ -34,6 +34,7 @@ func runServe(ctx context.Context, e *env, args []string) error {
 	fsx := newFlags(e, "serve", "--model M [--user U] [--addr HOST:PORT]",
 		"Answers keystrokes over HTTP with JSON, for apps that cannot link the library:\n\n"+
 			"  POST /v1/suggest  {\"before\": TEXT}   completions, predictions, correction\n"+
+			"  POST /v1/correct  {\"before\": TEXT}   correction of the last word, or null\n"+
 			"  POST /v1/learn    {\"text\": TEXT}     teach the user overlay\n"+
 			"  POST /v1/forget   {\"phrase\": TEXT}   remove a word or phrase from the overlay\n"+
 			"  POST /v1/save     {}                 write the overlay to --user now\n"+
@@ -141,6 +142,7 @@ type serveAPI struct {
 func (s *serveAPI) routes() http.Handler {
 	mux := http.NewServeMux()
 	mux.HandleFunc("POST /v1/suggest", s.handleSuggest)
+	mux.HandleFunc("POST /v1/correct", s.handleCorrect)
 	mux.HandleFunc("POST /v1/learn", s.handleLearn)
 	mux.HandleFunc("POST /v1/forget", s.handleForget)
 	mux.HandleFunc("POST /v1/save", s.handleSave)
@@ -220,6 +222,25 @@ func (s *serveAPI) handleSuggest(w http.ResponseWriter, r *http.Request) {
 		return
 	}
 	serveJSON(w, http.StatusOK, res)
+}
+
+// handleCorrect answers the Correction for the last word of "before" (what
+// to do when the user finishes it), or null to leave it alone.
+func (s *serveAPI) handleCorrect(w http.ResponseWriter, r *http.Request) {
+	var req serveSuggestReq
+	if !s.decode(w, r, &req) {
+		return
+	}
+	if req.Before == nil {
+		serveError(w, http.StatusBadRequest, "missing field \"before\"")
+		return
+	}
+	c, err := s.eng.Correct(*req.Before)
+	if err != nil {
+		serveError(w, http.StatusServiceUnavailable, "%v", err)
+		return
+	}
+	serveJSON(w, http.StatusOK, c)
 }
 
 func (s *serveAPI) handleLearn(w http.ResponseWriter, r *http.Request) {
