@@ -44,8 +44,8 @@ func cmpEnt(a, b ent) int {
 }
 
 // spillEntryBytes is the memory charged per n-gram held in a worker's maps:
-// the map slot and control byte at a typical load plus the entry of the
-// sort buffer a spill needs (measured on Go 1.26 maps; see BenchmarkSpill).
+// about 25 bytes of map (BenchmarkMapEntryBytes, Go 1.26), the 24-byte entry
+// of the sort buffer a spill needs, and slack for map growth.
 const spillEntryBytes = 64
 
 // unpackKey appends the n IDs packed in k to dst.

@@ -181,11 +181,11 @@ func TestMergeRuns(t *testing.T) {
 	k := func(a, b uint64) key2 { return key2{a, b} }
 	runsIn := [][]ent{
 		{{k(1, 0), 2}, {k(3, 0), 1}, {k(3, 7), 4}, {k(9, 0), 1}},
-		{{k(1, 0), 5}, {k(3, 7), 1}, {k(1 << 62, 3), 1 << 40}},
+		{{k(1, 0), 5}, {k(3, 7), 1}, {k(1<<62, 3), 1 << 40}},
 		{},
 		{{k(0, 0), 1}, {k(9, 0), 9}},
 	}
-	want := []ent{{k(0, 0), 1}, {k(1, 0), 7}, {k(3, 0), 1}, {k(3, 7), 5}, {k(9, 0), 10}, {k(1 << 62, 3), 1 << 40}}
+	want := []ent{{k(0, 0), 1}, {k(1, 0), 7}, {k(3, 0), 1}, {k(3, 7), 5}, {k(9, 0), 10}, {k(1<<62, 3), 1 << 40}}
 	for _, onDisk := range []bool{false, true} {
 		t.Run(fmt.Sprintf("disk=%v", onDisk), func(t *testing.T) {
 			var runs []run
