@@ -78,15 +78,21 @@ func klm_open_bytes(data *C.klm_cvoid, n C.size_t, suggestions C.int32_t, flags 
 	return opened(eng, err, errbuf, errcap)
 }
 
-// goBytes copies n bytes of C memory into Go memory.
+// maxInputBytes bounds the model or overlay bytes accepted from C (1 TiB),
+// so that a garbage length is refused before any allocation is tried.
+const maxInputBytes = 1 << 40
+
+// goBytes copies n bytes of C memory into Go memory (C.GoBytes would take
+// its length as a C int, too small for large models).
 func goBytes(data *C.klm_cvoid, n C.size_t) ([]byte, error) {
-	if uint64(n) > 1<<40 {
+	if uint64(n) > maxInputBytes {
 		return nil, fmt.Errorf("%w: length %d", errRange, uint64(n))
 	}
-	if n == 0 {
-		return []byte{}, nil
+	b := make([]byte, int(n))
+	if n > 0 {
+		copy(b, unsafe.Slice((*byte)(unsafe.Pointer(data)), int(n)))
 	}
-	return C.GoBytes(unsafe.Pointer(data), C.int(n)), nil
+	return b, nil
 }
 
 //export klm_close

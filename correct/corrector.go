@@ -96,7 +96,7 @@ type Options struct {
 	// Default 5.
 	SpaceCost float64
 	// Known, if not nil, reports words the user has taught (typed text,
-	// lower-cased); they are never corrected unless by KnownMargin.
+	// lower-cased); they are offered corrections but never auto-replaced.
 	Known func(word string) bool
 	// Rejected, if not nil, reports corrections the user has undone
 	// (typed and candidate word, both lower-cased); they are not offered.
@@ -143,6 +143,10 @@ type Corrector struct {
 // firstPass is the cost budget of the first, narrow search pass: about one
 // ordinary edit.
 const firstPass = 6
+
+// passRefLogProb is the language-model log-probability of the reference
+// a first-pass candidate must beat (by passMargin) to end the search.
+const passRefLogProb = -16
 
 // secondPass is the budget of the second pass.
 const secondPass = 9
@@ -240,7 +244,7 @@ func (c *Corrector) Correct(typed string, context []uint32, max int, dst []Candi
 			score := -float64(h.cost) + o.LMWeight*c.lm(context, h.id)
 			sc.top = insertTop(sc.top, Candidate{ID: h.id, Kind: KindWord, Cost: float64(h.cost), Score: score}, keepN)
 		}
-		if known || len(sc.top) > 0 && sc.top[0].Score-keep >= c.passMargin {
+		if known || len(sc.top) > 0 && sc.top[0].Score-o.LMWeight*passRefLogProb >= c.passMargin {
 			break // a known word only gets the narrow pass of suggestions
 		}
 	}
@@ -286,8 +290,8 @@ func (c *Corrector) Correct(typed string, context []uint32, max int, dst []Candi
 	}
 	conf := math.Exp(dst[0].Score-keep) / z
 	apply := conf >= o.ApplyThreshold
-	if known && dst[0].Score-keep < o.KnownMargin {
-		apply = false
+	if known && (!inLex || dst[0].Score-keep < o.KnownMargin) {
+		apply = false // a user's own word is never replaced on space
 	}
 	return dst, Decision{Apply: apply, Confidence: conf}
 }

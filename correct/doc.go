@@ -32,7 +32,7 @@
 // multi-letter rule in progress could bring it back. Only bytes whose
 // substitution, deletion or rule cost fits the budget are tried. The walk
 // runs in widening passes (6, 9, then Options.MaxCost nats) and stops
-// after a pass whose best candidate beats leaving the word alone by 3 nats;
+// after a pass whose best candidate scores above -13 nats;
 // a word the lexicon or Known knows gets only the first pass. Words
 // found are ranked by Score = -Cost + LMWeight × ln P(word | context).
 // Missing spaces ("aboutthe" → "about the") are [KindSplit] candidates;

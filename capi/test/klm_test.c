@@ -213,6 +213,10 @@ int main(int argc, char **argv) {
 	CHECK(bad == 0, "opened a missing file without errbuf");
 	bad = klm_open(model, -1, 0, errbuf, sizeof errbuf);
 	CHECK(bad == 0 && errbuf[0] != 0, "negative suggestion count accepted");
+	bad = klm_open(model, 33, 0, errbuf, sizeof errbuf);
+	CHECK(bad == 0 && errbuf[0] != 0, "33 suggestions accepted (keyloom.h: at most 32)");
+	bad = klm_open_bytes(NULL, 5, 0, 0, errbuf, sizeof errbuf);
+	CHECK(bad == 0 && errbuf[0] != 0, "NULL model bytes accepted");
 	const char junk[] = "this is not a model file, just some words in a row";
 	bad = klm_open_bytes(junk, sizeof junk, 0, 0, errbuf, sizeof errbuf);
 	CHECK(bad == 0 && errbuf[0] != 0, "opened junk bytes");

@@ -96,6 +96,7 @@ func TestServeEndpoints(t *testing.T) {
 		Order       int    `json:"order"`
 		Words       int    `json:"words"`
 		keyloom.Result
+		keyloom.Correction
 	}
 	tests := []struct {
 		name, method, path, ctype, host, body string
@@ -119,6 +120,15 @@ func TestServeEndpoints(t *testing.T) {
 					}
 				}
 			}},
+		// "agian" -> "again" is a pair of the Wikipedia list of common
+		// misspellings (corpora/misspellings-dev.tsv).
+		{name: "correct/misspelling", method: "POST", path: "/v1/correct", body: `{"before":"we can meet agian "}`, want: 200,
+			check: func(t *testing.T, r result, _ http.Header) {
+				if r.Typed != "agian" || r.Replacement != "again" {
+					t.Errorf("correct agian: typed %q, replacement %q; want agian -> again", r.Typed, r.Replacement)
+				}
+			}},
+		{name: "correct/missing-field", method: "POST", path: "/v1/correct", body: `{"text":"agian "}`, want: 400},
 		{name: "info", method: "GET", path: "/v1/info", want: 200,
 			check: func(t *testing.T, r result, _ http.Header) {
 				// testdata/models/README.md: the demo model was built with order 3.
@@ -259,7 +269,31 @@ func TestServeInputTableMatchesFacade(t *testing.T) {
 			if code != 200 || !bytes.Equal(bytes.TrimSpace(got), want) {
 				t.Errorf("POST /v1/suggest %q = %d %s, want 200 %s", in, code, got, want)
 			}
+			corr, err := ref.Correct(in)
+			if err != nil {
+				t.Fatal(err)
+			}
+			want, err = json.Marshal(corr)
+			if err != nil {
+				t.Fatal(err)
+			}
+			code, got = post(t, ts.Client(), ts.URL+"/v1/correct", string(body))
+			if code != 200 || !bytes.Equal(bytes.TrimSpace(got), want) {
+				t.Errorf("POST /v1/correct %q = %d %s, want 200 %s", in, code, got, want)
+			}
 		})
+	}
+}
+
+// TestServeCorrectLeavesCorrectWords checks that a correctly spelled word
+// gets the answer null ("the" and "shed" are words of the demo corpus).
+func TestServeCorrectLeavesCorrectWords(t *testing.T) {
+	ts, _ := newServeTest(t, "")
+	for _, in := range []string{"see you at the ", "in the shed "} {
+		code, got := post(t, ts.Client(), ts.URL+"/v1/correct", fmt.Sprintf(`{"before":%q}`, in))
+		if code != 200 || string(bytes.TrimSpace(got)) != "null" {
+			t.Errorf("POST /v1/correct %q = %d %s, want 200 null", in, code, got)
+		}
 	}
 }
 
