@@ -187,3 +187,42 @@ func TestOpenReleasedModels(t *testing.T) {
 		e.Close()
 	}
 }
+
+// TestLearnWhileSuggesting runs Learn, Forget and Reject while other
+// goroutines call Suggest and Correct; run with -race (CI does).
+func TestLearnWhileSuggesting(t *testing.T) {
+	e := openTest(t)
+	var wg sync.WaitGroup
+	stop := make(chan struct{})
+	for g := range 4 {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for i := 0; ; i++ {
+				select {
+				case <-stop:
+					return
+				default:
+				}
+				in := []string{"see you at the ", "meet the quin", "thanks f", "teh "}[(g+i)%4]
+				if _, err := e.Suggest(in); err != nil {
+					t.Error(err)
+					return
+				}
+				if _, err := e.Correct(in); err != nil {
+					t.Error(err)
+					return
+				}
+			}
+		}()
+	}
+	for i := range 200 {
+		e.Learn("Meet the quince growers at the shed. Thanks for the quince jam.")
+		if i%20 == 0 {
+			e.Forget("quince")
+			e.Reject("teh", "the")
+		}
+	}
+	close(stop)
+	wg.Wait()
+}

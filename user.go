@@ -4,6 +4,8 @@ import (
 	"errors"
 	"fmt"
 	"os"
+	"path/filepath"
+	"strings"
 	"sync/atomic"
 	"time"
 
@@ -130,7 +132,33 @@ func (e *Engine) Save(path string) error {
 	if err := format.WriteFileAtomic(path, data, 0o600); err != nil {
 		return fmt.Errorf("keyloom: save %s: %w", path, err)
 	}
+	removeStaleTemps(path)
 	return nil
+}
+
+// staleTempAge is how old a leftover temporary file of an interrupted save
+// must be before Save removes it (a younger one may belong to a save in
+// progress in another process).
+const staleTempAge = 10 * time.Minute
+
+// removeStaleTemps deletes temporary files that saves of path killed midway
+// left behind; they hold personal data and are never read.
+func removeStaleTemps(path string) {
+	dir, base := filepath.Split(path)
+	if dir == "" {
+		dir = "."
+	}
+	matches, _ := filepath.Glob(filepath.Join(dir, "."+globEscape(base)+".tmp-*"))
+	for _, m := range matches {
+		if st, err := os.Lstat(m); err == nil && st.Mode().IsRegular() && time.Since(st.ModTime()) > staleTempAge {
+			os.Remove(m)
+		}
+	}
+}
+
+func globEscape(s string) string {
+	r := strings.NewReplacer(`\`, `\\`, "*", `\*`, "?", `\?`, "[", `\[`)
+	return r.Replace(s)
 }
 
 // OpenOverlay replaces the user overlay with the one saved at path. On any

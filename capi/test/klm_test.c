@@ -14,6 +14,7 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <time.h>
 
 #include "keyloom.h"
 
@@ -188,6 +189,24 @@ static void *work(void *arg) {
 			if (strcmp(got, w->t->want[i]) != 0) w->mismatches++;
 			free(got);
 		}
+	}
+	return NULL;
+}
+
+struct closer {
+	klm_handle h;
+	int ok, closed, other;
+};
+
+/* hammer calls klm_suggest until the handle is closed under it. */
+static void *hammer(void *arg) {
+	struct closer *c = arg;
+	char buf[4096];
+	for (int i = 0; i < 100000; i++) {
+		int64_t n = klm_suggest(c->h, "see you at the ", buf, sizeof buf);
+		if (n == KLM_ERR_HANDLE) { c->closed++; break; }
+		if (n > 0 && (size_t)n < sizeof buf) c->ok++;
+		else c->other++;
 	}
 	return NULL;
 }
@@ -391,6 +410,27 @@ int main(int argc, char **argv) {
 	free(inbuf);
 	free(wantbuf);
 	free(corrbuf);
+
+	/* Closing while other threads use the handle: each call either answers
+	 * or reports KLM_ERR_HANDLE (keyloom.h, THREAD SAFETY). */
+	{
+		enum { THREADS = 3 };
+		struct closer c[THREADS];
+		pthread_t th[THREADS];
+		klm_handle hc = klm_open(model, 0, 0, errbuf, sizeof errbuf);
+		CHECK(hc != 0, "open for the close race: %s", errbuf);
+		for (int i = 0; i < THREADS; i++) {
+			c[i] = (struct closer){.h = hc};
+			pthread_create(&th[i], NULL, hammer, &c[i]);
+		}
+		struct timespec pause = {0, 20 * 1000 * 1000}; /* let them run 20 ms before closing */
+		nanosleep(&pause, NULL);
+		CHECK(klm_close(hc) == KLM_OK, "close under load");
+		for (int i = 0; i < THREADS; i++) {
+			pthread_join(th[i], NULL);
+			CHECK(c[i].other == 0 && c[i].closed == 1, "thread %d: %d answers, %d closed, %d other results", i, c[i].ok, c[i].closed, c[i].other);
+		}
+	}
 
 	/* Closing. */
 	CHECK(klm_close(h) == KLM_OK, "close");

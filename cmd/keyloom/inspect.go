@@ -4,7 +4,6 @@ import (
 	"context"
 	"encoding/json"
 	"fmt"
-	"os"
 
 	"github.com/keyloom/keyloom/internal/bundle"
 	"github.com/keyloom/keyloom/internal/format"
@@ -100,6 +99,9 @@ func runInspect(ctx context.Context, e *env, args []string) error {
 		if err := m.Lex.Check(); err != nil {
 			checkErr, ok = fmt.Errorf("lexicon: %w", err), false
 		}
+		if err := m.LM.Check(); err != nil && checkErr == nil {
+			checkErr, ok = fmt.Errorf("n-gram tables: %w", err), false
+		}
 		rep.Verified = &ok
 	}
 	if *asJSON {
@@ -145,7 +147,6 @@ func runInspect(ctx context.Context, e *env, args []string) error {
 		}
 		return fmt.Errorf("%s: %w", path, format.ErrChecksum)
 	}
-	_ = os.Stdout
 	return nil
 }
 
