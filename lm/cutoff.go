@@ -59,7 +59,11 @@ func EstimateCountsCutoff(ctx context.Context, cs *Counts, minCount []int, opts 
 		}
 		keep[n-1] = k
 	}
-	return subset(ctx, b, keep)
+	first, err := childIndex(ctx, b)
+	if err != nil {
+		return nil, err
+	}
+	return subset(ctx, b, first, keep)
 }
 
 func checkCutoffs(minCount []int, order int) error {

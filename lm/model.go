@@ -22,7 +22,7 @@ type level struct {
 	words, probs      vec
 	// successors of this level's entries in the next level
 	has   rankBits
-	start vec
+	start monoSeq
 	bow   vec
 	big   rankBits
 	top   vec

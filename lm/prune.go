@@ -31,6 +31,8 @@ type Scores struct {
 	// Delta[0] is nil: unigrams are never pruned. +Inf marks an n-gram whose
 	// removal cannot be renormalized (see Score).
 	Delta [][]float64
+
+	first [][]int // successor index of the scored model (see childIndex)
 }
 
 // ScoreOptions controls Score.
@@ -56,8 +58,8 @@ type ScoreOptions struct {
 // When a sum reaches 1 so that α'(h) is undefined (only possible for a model
 // read back from a quantized file, or one whose explicit successors of h
 // cover the whole vocabulary), D is +Inf and the n-gram is never pruned.
-// Cost: O(n-grams) time plus one binary search per context and per n-gram
-// whose lower-order n-gram is absent; 8 bytes per n-gram.
+// Cost: O(n-grams · log successors) time; 16 bytes per n-gram (the
+// criterion and an index of successor groups that PruneScored reuses).
 func Score(ctx context.Context, b *Backoff, opts ScoreOptions) (*Scores, error) {
 	if err := checkShape(b); err != nil {
 		return nil, err
@@ -67,32 +69,39 @@ func Score(ctx context.Context, b *Backoff, opts ScoreOptions) (*Scores, error) 
 	for n := 2; n <= N; n++ {
 		total += b.Levels[n-1].Len()
 	}
-	hist, err := historyLogProbs(ctx, b)
+	first, err := childIndex(ctx, b)
 	if err != nil {
 		return nil, err
 	}
-	return scoreWith(ctx, b, hist, opts, total)
+	hist, err := historyLogProbs(ctx, b, first)
+	if err != nil {
+		return nil, err
+	}
+	sc, err := scoreWith(ctx, b, first, hist, opts, total)
+	if err != nil {
+		return nil, err
+	}
+	sc.first = first
+	return sc, nil
 }
 
-func scoreWith(ctx context.Context, b *Backoff, hist [][]float64, opts ScoreOptions, total int) (*Scores, error) {
+func scoreWith(ctx context.Context, b *Backoff, first [][]int, hist [][]float64, opts ScoreOptions, total int) (*Scores, error) {
 	N := b.Order()
 	s := &Scores{Delta: make([][]float64, N)}
 	key := make([]uint32, 0, N)
 	var lower []float64
 	done := 0
 	for n := 2; n <= N; n++ {
-		lv, parent := &b.Levels[n-1], &b.Levels[n-2]
+		lv, parent, fs := &b.Levels[n-1], &b.Levels[n-2], first[n-2]
 		d := make([]float64, lv.Len())
-		for g, groups := 0, 0; g < lv.Len(); groups++ {
-			h := lv.Key(g)[:n-1]
-			e := groupEnd(lv, g, n-1)
-			j := parent.Find(h)
-			if j < 0 {
-				return nil, fmt.Errorf("%w: %d-gram %v has successors but is not in the model", ErrModel, n-1, h)
+		for j := range parent.Len() {
+			g, e := fs[j], fs[j+1]
+			if g == e {
+				continue
 			}
 			lnAlpha := parent.Bow[j]
 			ph := math.Exp(hist[n-2][j])
-			lower = b.lowerLogProbs(n, g, e, key, lower[:0])
+			lower = b.lowerLogProbs(first, n, g, e, key, lower[:0])
 			var sumP, sumQ float64
 			for i := g; i < e; i++ {
 				sumP += math.Exp(lv.LogP[i])
@@ -115,8 +124,7 @@ func scoreWith(ctx context.Context, b *Backoff, hist [][]float64, opts ScoreOpti
 				d[i] = -ph * t
 			}
 			done += e - g
-			g = e
-			if groups&4095 == 4095 {
+			if j&4095 == 4095 {
 				if err := ctx.Err(); err != nil {
 					return nil, err
 				}
@@ -179,7 +187,14 @@ func PruneScored(ctx context.Context, b *Backoff, s *Scores, threshold float64) 
 		}
 		keep[n-1] = k
 	}
-	return subset(ctx, b, keep)
+	first := s.first
+	if !indexFits(first, b) {
+		var err error
+		if first, err = childIndex(ctx, b); err != nil {
+			return nil, err
+		}
+	}
+	return subset(ctx, b, first, keep)
 }
 
 // KeptAt returns how many n-grams of each order (unigrams first) PruneScored
@@ -321,22 +336,15 @@ func PruneVocab(ctx context.Context, b *Backoff, size int, mustKeep []string) (*
 // subset returns the model made of b's unigrams, the n-grams marked in keep
 // (keep[n-1][i] for n-gram i of order n; keep[0] is ignored) and every n-gram
 // that is the context of a kept one, with the back-off weights recomputed.
-func subset(ctx context.Context, b *Backoff, keep [][]bool) (*Backoff, error) {
+func subset(ctx context.Context, b *Backoff, first [][]int, keep [][]bool) (*Backoff, error) {
 	N := b.Order()
 	// Close under prefixes, longest order first.
 	for n := N; n >= 3; n-- {
-		lv, parent, k := &b.Levels[n-1], &b.Levels[n-2], keep[n-1]
-		pk := keep[n-2]
-		for g := 0; g < lv.Len(); {
-			e := groupEnd(lv, g, n-1)
-			if slices.Contains(k[g:e], true) {
-				j := parent.Find(lv.Key(g)[:n-1])
-				if j < 0 {
-					return nil, fmt.Errorf("%w: %d-gram %v has successors but is not in the model", ErrModel, n-1, lv.Key(g)[:n-1])
-				}
+		k, pk, fs := keep[n-1], keep[n-2], first[n-2]
+		for j := range pk {
+			if !pk[j] && slices.Contains(k[fs[j]:fs[j+1]], true) {
 				pk[j] = true
 			}
-			g = e
 		}
 	}
 	nb := &Backoff{Vocab: b.Vocab, Surface: b.Surface, Discounts: b.Discounts, Tokens: b.Tokens, Levels: make([]Level, N)}
@@ -379,32 +387,29 @@ func renormalize(ctx context.Context, b *Backoff) error {
 	for n := 1; n < N; n++ {
 		clear(b.Levels[n-1].Bow)
 	}
+	first, err := childIndex(ctx, b)
+	if err != nil {
+		return err
+	}
 	key := make([]uint32, 0, N)
 	var lower []float64
 	for n := 2; n <= N; n++ {
-		lv, parent := &b.Levels[n-1], &b.Levels[n-2]
-		for g, groups := 0, 0; g < lv.Len(); groups++ {
-			h := lv.Key(g)[:n-1]
-			e := groupEnd(lv, g, n-1)
-			j := parent.Find(h)
-			if j < 0 {
-				return fmt.Errorf("%w: %d-gram %v has successors but is not in the model", ErrModel, n-1, h)
+		lv, parent, fs := &b.Levels[n-1], &b.Levels[n-2], first[n-2]
+		for j := range parent.Len() {
+			g, e := fs[j], fs[j+1]
+			if g == e {
+				continue
 			}
-			lower = b.lowerLogProbs(n, g, e, key, lower[:0])
+			lower = b.lowerLogProbs(first, n, g, e, key, lower[:0])
 			var sumP, sumQ float64
 			for i := g; i < e; i++ {
 				sumP += math.Exp(lv.LogP[i])
 				sumQ += math.Exp(lower[i-g])
 			}
-			num, den := 1-sumP, 1-sumQ
-			switch {
-			case !(den > 0):
-				parent.Bow[j] = 0
-			default:
+			if num, den := 1-sumP, 1-sumQ; den > 0 {
 				parent.Bow[j] = math.Log(max(num, 1e-12)) - math.Log(den)
 			}
-			g = e
-			if groups&8191 == 8191 {
+			if j&8191 == 8191 {
 				if err := ctx.Err(); err != nil {
 					return err
 				}
@@ -414,10 +419,53 @@ func renormalize(ctx context.Context, b *Backoff) error {
 	return nil
 }
 
+// childIndex returns, for every level but the last, where each n-gram's
+// successors start in the next level: successors of n-gram j of order L+1
+// are [first[L][j], first[L][j+1]) of order L+2. One merge pass per level;
+// ErrModel if some n-gram's context is missing or a level is unsorted.
+func childIndex(ctx context.Context, b *Backoff) ([][]int, error) {
+	N := b.Order()
+	out := make([][]int, max(N-1, 0))
+	for L := 0; L < N-1; L++ {
+		par, lv := &b.Levels[L], &b.Levels[L+1]
+		first := make([]int, par.Len()+1)
+		p := 0
+		for j := range par.Len() {
+			first[j] = p
+			h := par.Key(j)
+			for p < lv.Len() && equalIDs(lv.Key(p)[:L+1], h) {
+				p++
+			}
+		}
+		first[par.Len()] = p
+		if p != lv.Len() {
+			return nil, fmt.Errorf("%w: %d-gram %v has successors but is not in the model (or the %d-grams are unsorted)", ErrModel, L+1, lv.Key(p)[:L+1], L+2)
+		}
+		out[L] = first
+		if err := ctx.Err(); err != nil {
+			return nil, err
+		}
+	}
+	return out, nil
+}
+
+// indexFits reports whether first has the lengths of b's child index.
+func indexFits(first [][]int, b *Backoff) bool {
+	if len(first) != max(b.Order()-1, 0) {
+		return false
+	}
+	for L, f := range first {
+		if len(f) != b.Levels[L].Len()+1 || f[len(f)-1] != b.Levels[L+1].Len() {
+			return false
+		}
+	}
+	return true
+}
+
 // lowerLogProbs appends to dst ln p(w | h′) for the n-grams g..e−1 of order n,
 // which share the context h; h′ is h without its first word. The n-grams
-// (h′,w) are found by one merge walk over h′'s successor group.
-func (b *Backoff) lowerLogProbs(n, g, e int, key []uint32, dst []float64) []float64 {
+// (h′,w) are found by binary searches moving forward through h′'s successors.
+func (b *Backoff) lowerLogProbs(first [][]int, n, g, e int, key []uint32, dst []float64) []float64 {
 	lv := &b.Levels[n-1]
 	if n == 2 {
 		u := &b.Levels[0]
@@ -432,25 +480,38 @@ func (b *Backoff) lowerLogProbs(n, g, e int, key []uint32, dst []float64) []floa
 		return dst
 	}
 	hp := lv.Key(g)[1 : n-1] // h′, n−2 words
+	jp := -1
+	if n == 3 {
+		if int(hp[0]) < b.Levels[0].Len() {
+			jp = int(hp[0])
+		}
+	} else {
+		jp = b.Levels[n-3].Find(hp)
+	}
+	if jp < 0 { // h′ is not an n-gram, so it has no successors and weight 1
+		for i := g; i < e; i++ {
+			dst = append(dst, b.logProbInto(key, hp[1:], lv.Key(i)[n-1]))
+		}
+		return dst
+	}
 	low := &b.Levels[n-2]
-	lo, hi := successorRange(low, hp)
-	bow := 0.0
-	bowDone := false
-	p := lo
+	p, hi := first[n-3][jp], first[n-3][jp+1]
+	bow := b.Levels[n-3].Bow[jp]
 	for i := g; i < e; i++ {
 		w := lv.Key(i)[n-1]
-		for p < hi && low.Key(p)[n-2] < w {
-			p++
+		lo, top := p, hi
+		for lo < top {
+			mid := int(uint(lo+top) >> 1)
+			if low.IDs[mid*(n-1)+n-2] < w {
+				lo = mid + 1
+			} else {
+				top = mid
+			}
 		}
-		if p < hi && low.Key(p)[n-2] == w {
+		p = lo
+		if p < hi && low.IDs[p*(n-1)+n-2] == w {
 			dst = append(dst, low.LogP[p])
 			continue
-		}
-		if !bowDone {
-			if j := b.Levels[n-3].Find(hp); j >= 0 {
-				bow = b.Levels[n-3].Bow[j]
-			}
-			bowDone = true
 		}
 		dst = append(dst, bow+b.logProbInto(key, hp[1:], w))
 	}
@@ -479,31 +540,24 @@ func (b *Backoff) logProbInto(key, h []uint32, w uint32) float64 {
 // historyLogProbs returns, for the n-grams of orders 1..N−1 seen as
 // histories, ln p(h) by the chain rule (a leading <s> counts as certain).
 // The model is prefix-closed, so every factor is an explicit n-gram.
-func historyLogProbs(ctx context.Context, b *Backoff) ([][]float64, error) {
+func historyLogProbs(ctx context.Context, b *Backoff, first [][]int) ([][]float64, error) {
 	N := b.Order()
 	out := make([][]float64, max(N-1, 0))
 	if N < 2 {
 		return out, nil
 	}
-	bos, _, _ := b.specials()
 	u := slices.Clone(b.Levels[0].LogP)
-	if int(bos) < len(u) && b.Vocab[bos] == BOS {
+	if bos, ok := b.ID(BOS); ok {
 		u[bos] = 0
 	}
 	out[0] = u
 	for n := 2; n < N; n++ {
-		lv, parent := &b.Levels[n-1], &b.Levels[n-2]
+		lv, fs := &b.Levels[n-1], first[n-2]
 		h := make([]float64, lv.Len())
-		for g := 0; g < lv.Len(); {
-			e := groupEnd(lv, g, n-1)
-			j := parent.Find(lv.Key(g)[:n-1])
-			if j < 0 {
-				return nil, fmt.Errorf("%w: %d-gram %v has successors but is not in the model", ErrModel, n-1, lv.Key(g)[:n-1])
-			}
-			for i := g; i < e; i++ {
+		for j := range b.Levels[n-2].Len() {
+			for i := fs[j]; i < fs[j+1]; i++ {
 				h[i] = out[n-2][j] + lv.LogP[i]
 			}
-			g = e
 		}
 		out[n-1] = h
 		if err := ctx.Err(); err != nil {
@@ -511,43 +565,6 @@ func historyLogProbs(ctx context.Context, b *Backoff) ([][]float64, error) {
 		}
 	}
 	return out, nil
-}
-
-// groupEnd returns the end of the run of n-grams from g that share their
-// first m words.
-func groupEnd(lv *Level, g, m int) int {
-	h := lv.Key(g)[:m]
-	e := g + 1
-	for e < lv.Len() && equalIDs(lv.Key(e)[:m], h) {
-		e++
-	}
-	return e
-}
-
-// successorRange returns the n-grams of lv that start with prefix, as [lo, hi).
-func successorRange(lv *Level, prefix []uint32) (lo, hi int) {
-	m := len(prefix)
-	cmp := func(i int) int { return slices.Compare(lv.Key(i)[:m], prefix) }
-	lo, hi = 0, lv.Len()
-	for lo < hi {
-		mid := int(uint(lo+hi) >> 1)
-		if cmp(mid) < 0 {
-			lo = mid + 1
-		} else {
-			hi = mid
-		}
-	}
-	end := lo
-	top := lv.Len()
-	for end < top {
-		mid := int(uint(end+top) >> 1)
-		if cmp(mid) <= 0 {
-			end = mid + 1
-		} else {
-			top = mid
-		}
-	}
-	return lo, end
 }
 
 // checkShape checks the lengths of b's levels (not their order or content).

@@ -478,9 +478,9 @@ func perplexityOn(t testing.TB, b *Backoff, path string) float64 {
 func fitTheta(t testing.TB, b *Backoff, s *Scores, limit int) *Backoff {
 	t.Helper()
 	ctx := context.Background()
-	lo, hi := math.Log(1e-12), math.Log(1.0)
+	lo, hi := math.Log(1e-10), math.Log(0.1)
 	var best *Backoff
-	for range 40 {
+	for range 24 {
 		mid := (lo + hi) / 2
 		p, err := PruneScored(ctx, b, s, math.Exp(mid))
 		if err != nil {

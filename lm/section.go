@@ -16,7 +16,9 @@ import (
 //	directory 32 bytes per array: tag, width, count, offset, words
 //	arrays   8-byte aligned packed vectors (64-bit words, one spare word each)
 const (
-	sectionVersion = 1
+	// sectionVersion is the layout written; version 1 (plain successor
+	// starts) is still read.
+	sectionVersion = 2
 	headerSize     = 40
 	dirEntrySize   = 32
 	// TopListLen is the number of best successors kept in probability order
@@ -28,18 +30,21 @@ const (
 
 // Array tags: kind<<8 | order.
 const (
-	tagProbBook = 1
-	tagBowBook  = 2
-	tagWords    = 3
-	tagProbs    = 4
-	tagHas      = 5 // per entry: has successors at the next order
-	tagHasRank  = 6
-	tagStart    = 7 // per context: first successor (context count + 1 values)
-	tagBow      = 8 // per context: back-off weight code
-	tagBig      = 9 // per context: has a top list
-	tagBigRank  = 10
-	tagTop      = 11 // top lists: offsets inside the successor group
-	tagTree     = 16 // 16+level: unigram maximum tree
+	tagProbBook  = 1
+	tagBowBook   = 2
+	tagWords     = 3
+	tagProbs     = 4
+	tagHas       = 5 // per entry: has successors at the next order
+	tagHasRank   = 6
+	tagStart     = 7  // per context: first successor (context count + 1 values); version 1
+	tagStartLow  = 12 // Elias-Fano low bits of the starts (version 2)
+	tagStartHigh = 13 // Elias-Fano high bits (width 1)
+	tagStartSel  = 14 // Elias-Fano select samples
+	tagBow       = 8  // per context: back-off weight code
+	tagBig       = 9  // per context: has a top list
+	tagBigRank   = 10
+	tagTop       = 11 // top lists: offsets inside the successor group
+	tagTree      = 16 // 16+level: unigram maximum tree
 )
 
 func tag(kind, order int) uint32 { return uint32(kind<<8 | order) }
@@ -50,6 +55,9 @@ type LayoutOptions struct {
 	// 4..16 quantizes through per-order codebooks, 0 stores float64 values
 	// losslessly. The zero value means lossless; build tools default to 8.
 	QuantBits int
+	// Version selects the layout version: 0 means the current one; 1 writes
+	// the previous layout (plain successor starts), for compatibility tests.
+	Version int
 }
 
 type arr struct {
@@ -62,6 +70,14 @@ type arr struct {
 // AppendSection lays b out as an n-gram section and appends it to dst.
 func AppendSection(dst []byte, b *Backoff, opts LayoutOptions) ([]byte, error) {
 	q := opts.QuantBits
+	version := uint32(sectionVersion)
+	switch opts.Version {
+	case 0:
+	case 1:
+		version = 1
+	default:
+		return nil, fmt.Errorf("%w: layout version %d", ErrSectionVersion, opts.Version)
+	}
 	if q != 0 && (q < 4 || q > 16) {
 		return nil, fmt.Errorf("%w: %d (want 0 or 4..16)", ErrQuantBits, q)
 	}
@@ -178,7 +194,14 @@ func AppendSection(dst []byte, b *Backoff, opts LayoutOptions) ([]byte, error) {
 		hw, hs := buildRank(has)
 		arrs = append(arrs, arr{tag: tag(tagHas, n), width: 1, n: len(has), words: hw})
 		add(tag(tagHasRank, n), 32, hs)
-		add(tag(tagStart, n), bitsFor(uint64(next.Len())), start)
+		if version == 1 {
+			add(tag(tagStart, n), bitsFor(uint64(next.Len())), start)
+		} else {
+			lw, lb, hw, hb, sel := encodeMono(start)
+			arrs = append(arrs, arr{tag: tag(tagStartLow, n), width: lb, n: len(start), words: lw})
+			arrs = append(arrs, arr{tag: tag(tagStartHigh, n), width: 1, n: hb, words: hw})
+			add(tag(tagStartSel, n), bitsFor(uint64(hb)), sel)
+		}
 		add(tag(tagBow, n), bb.width(), bows)
 		bw, bs := buildRank(big)
 		arrs = append(arrs, arr{tag: tag(tagBig, n), width: 1, n: len(big), words: bw})
@@ -208,7 +231,7 @@ func AppendSection(dst []byte, b *Backoff, opts LayoutOptions) ([]byte, error) {
 	off = (off + 7) &^ 7
 	var hdr [headerSize]byte
 	le := binary.LittleEndian
-	for i, v := range []uint32{sectionVersion, uint32(N), uint32(V), uint32(q), TopListLen, bos, eos, unk, uint32(len(arrs)), 0} {
+	for i, v := range []uint32{version, uint32(N), uint32(V), uint32(q), TopListLen, bos, eos, unk, uint32(len(arrs)), 0} {
 		le.PutUint32(hdr[4*i:], v)
 	}
 	dst = append(dst, hdr[:]...)
@@ -277,9 +300,10 @@ func LoadSection(b []byte) (*Model, error) {
 	for i := range h {
 		h[i] = le.Uint32(b[4*i:])
 	}
-	if h[0] != sectionVersion {
-		return nil, fmt.Errorf("%w: section version %d, this library reads %d", ErrSectionVersion, h[0], sectionVersion)
+	if h[0] != 1 && h[0] != sectionVersion {
+		return nil, fmt.Errorf("%w: section version %d, this library reads 1 and %d", ErrSectionVersion, h[0], sectionVersion)
 	}
+	version := h[0]
 	N, V, q, topT := int(h[1]), int(h[2]), int(h[3]), int(h[4])
 	switch {
 	case N < 1 || N > MaxOrder:
@@ -379,8 +403,29 @@ func LoadSection(b []byte) (*Model, error) {
 			return nil, err
 		}
 		l.has = rankBits{w: hv.w, samples: hr, n: l.size}
-		if l.start, err = need(tag(tagStart, n), -1, 0); err != nil {
-			return nil, err
+		if version == 1 {
+			v, err := need(tag(tagStart, n), -1, 0)
+			if err != nil {
+				return nil, err
+			}
+			l.start = monoSeq{n: v.n, plain: true, vals: v}
+		} else {
+			low, err := need(tag(tagStartLow, n), -1, 0)
+			if err != nil {
+				return nil, err
+			}
+			hi, err := need(tag(tagStartHigh, n), -1, 1)
+			if err != nil {
+				return nil, err
+			}
+			sel, err := need(tag(tagStartSel, n), (low.n+monoSample-1)/monoSample, 0)
+			if err != nil {
+				return nil, err
+			}
+			if low.width > 40 || hi.n < low.n {
+				return nil, corrupt(0, "order %d: successor starts: %d low bits, %d high bits for %d values", n, low.width, hi.n, low.n)
+			}
+			l.start = monoSeq{n: low.n, low: low, lbits: low.width, high: hi.w[:(hi.n+63)/64], hbits: hi.n, sample: sel}
 		}
 		C := l.start.n - 1
 		if C < 0 {

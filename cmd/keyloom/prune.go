@@ -24,6 +24,22 @@ import (
 // cut can bring the model file under the byte budget.
 var errBudgetTooSmall = errors.New("budget too small")
 
+// budgetError reports a budget below the smallest file a model can give
+// (its unigrams alone, at the fewest bits, with the smallest vocabulary
+// allowed). It matches errBudgetTooSmall.
+type budgetError struct {
+	Budget, Smallest int64
+	Bits, Words      int
+}
+
+func (e *budgetError) Error() string {
+	return fmt.Sprintf("budget too small: %d bytes is below the smallest file this model can give, %d bytes (unigrams only, %d-bit, %d words); raise the budget or lower --min-vocab",
+		e.Budget, e.Smallest, e.Bits, e.Words)
+}
+
+// Is reports whether target is errBudgetTooSmall.
+func (e *budgetError) Is(target error) bool { return target == errBudgetTooSmall }
+
 // maxTrials bounds the threshold search of one budget.
 const maxTrials = 40
 
@@ -60,8 +76,7 @@ type pruneSearch struct {
 	maxBits  int
 	minVocab int
 	keep     []string
-	// unigram-only models by quantization width, and the sorted criteria.
-	sorted []float64
+	sorted []float64 // every finite criterion, in increasing order
 }
 
 func runPrune(ctx context.Context, e *env, args []string) error {
@@ -239,7 +254,7 @@ func newPruneSearch(ctx context.Context, e *env, raw []byte) (*pruneSearch, erro
 	return &pruneSearch{ctx: ctx, base: b, scores: sc, meta: meta, origSize: len(raw), sorted: sortedFinite(sc)}, nil
 }
 
-// sortedFinite returns the distinct finite criteria of s in increasing order.
+// sortedFinite returns the finite criteria of s in increasing order.
 func sortedFinite(s *lm.Scores) []float64 {
 	var all []float64
 	for _, d := range s.Delta {
@@ -250,7 +265,7 @@ func sortedFinite(s *lm.Scores) []float64 {
 		}
 	}
 	slices.Sort(all)
-	return slices.Compact(all)
+	return all
 }
 
 func (s *pruneSearch) encode(b *lm.Backoff, qbits int, params string) ([]byte, error) {
@@ -309,8 +324,7 @@ func (s *pruneSearch) fit(budget int64) (pruneReport, error) {
 		return rep, err
 	}
 	if int64(size) > budget {
-		return rep, fmt.Errorf("%w: %d bytes is below the smallest file this model can give, %d bytes (unigrams only, %d-bit, %d words); raise the budget or lower --min-vocab",
-			errBudgetTooSmall, budget, size, q, len(smallest.Vocab))
+		return rep, &budgetError{Budget: budget, Smallest: int64(size), Bits: q, Words: len(smallest.Vocab)}
 	}
 	hi := len(s.base.Vocab) // unigrams of the whole vocabulary do not fit at q
 	for hi-lo > 1 {
@@ -380,37 +394,44 @@ func (s *pruneSearch) searchTheta(rep pruneReport, b *lm.Backoff, sc *lm.Scores,
 		return finish(p, data, math.Inf(1))
 	}
 	// lo never fits (it keeps everything), hi does (above every finite
-	// criterion only unigrams and unprunable n-grams are left). Steps
-	// alternate between interpolating the size linearly in ln θ and halving
-	// ln θ, so the bracket at least halves every two trials.
+	// criterion only unigrams and unprunable n-grams are left). Each step
+	// first predicts θ from the n-grams it keeps, assuming the size grows
+	// linearly with them between the bracket's ends; a prediction outside
+	// the bracket, or every other step once one fails to shrink it by half,
+	// is replaced by halving the bracket in ln θ.
 	lo := math.Max(sorted[0], 1e-300) / 2
 	hi := sorted[len(sorted)-1] * 2
 	if hi <= 0 {
 		hi = 1
 	}
-	sizeLo, sizeHi := float64(fullSize), float64(uniSize)
-	between := func(a, b float64) bool { // a criterion in [a, b)?
-		i, _ := slices.BinarySearch(sorted, a)
-		return i < len(sorted) && sorted[i] < b
+	kept := func(theta float64) int { // criteria ≥ θ
+		i, _ := slices.BinarySearch(sorted, theta)
+		return len(sorted) - i
 	}
+	sizeLo, sizeHi := float64(fullSize), float64(uniSize)
 	tol := max(budget/1000, 64) // close enough: within 0.1 % of the budget
 	var best *lm.Backoff
 	var bestData []byte
 	bestTheta := hi
-	for it := 0; it < maxTrials && between(lo, hi); it++ {
+	bisect := false
+	for it := 0; it < maxTrials && kept(lo) > kept(hi); it++ {
 		if err := s.ctx.Err(); err != nil {
 			return rep, err
 		}
-		a, b := math.Log(lo), math.Log(hi)
-		x := (a + b) / 2
-		if it%2 == 0 && sizeLo > sizeHi {
-			f := (sizeLo - float64(budget)) / (sizeLo - sizeHi)
-			x = a + min(max(f, 0.02), 0.98)*(b-a)
+		mid := math.Exp((math.Log(lo) + math.Log(hi)) / 2)
+		if !bisect && sizeLo > sizeHi {
+			kLo, kHi := float64(kept(lo)), float64(kept(hi))
+			want := kHi + (float64(budget)-sizeHi)*(kLo-kHi)/(sizeLo-sizeHi)
+			if i := len(sorted) - int(want); i > 0 && i < len(sorted) {
+				if t := sorted[i]; t > lo && t < hi {
+					mid = t
+				}
+			}
 		}
-		mid := math.Exp(x)
 		if !(mid > lo && mid < hi) {
 			break
 		}
+		width := kept(lo) - kept(hi)
 		p, data, err := try(mid)
 		if err != nil {
 			return rep, err
@@ -423,6 +444,7 @@ func (s *pruneSearch) searchTheta(rep pruneReport, b *lm.Backoff, sc *lm.Scores,
 		} else {
 			lo, sizeLo = mid, float64(len(data))
 		}
+		bisect = !bisect && 2*(kept(lo)-kept(hi)) > width
 	}
 	if best == nil {
 		p, data, err := try(hi)

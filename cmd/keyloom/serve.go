@@ -109,6 +109,9 @@ func runServe(ctx context.Context, e *env, args []string) error {
 	sctx, cancel := context.WithTimeout(context.WithoutCancel(ctx), shutdownGrace)
 	defer cancel()
 	shutErr := srv.Shutdown(sctx)
+	if shutErr != nil {
+		srv.Close() // grace period over: drop the connections still open
+	}
 	if serveErr == nil {
 		<-served // Serve returns http.ErrServerClosed once Shutdown starts
 	}
