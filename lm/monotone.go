@@ -29,7 +29,7 @@ func (s *monoSeq) at(i int) uint64 {
 		return s.vals.at(i)
 	}
 	p := int(s.sample.at(i / monoSample)) // position of set bit number i − i%64
-	k := i % monoSample                  // set bits still to skip
+	k := i % monoSample                   // set bits still to skip
 	w := p >> 6
 	if w >= len(s.high) {
 		return 0

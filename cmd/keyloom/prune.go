@@ -76,7 +76,7 @@ type pruneSearch struct {
 	maxBits  int
 	minVocab int
 	keep     []string
-	sorted []float64 // every finite criterion, in increasing order
+	sorted   []float64 // every finite criterion, in increasing order
 }
 
 func runPrune(ctx context.Context, e *env, args []string) error {
