@@ -6,6 +6,7 @@ import (
 
 	"github.com/keyloom/keyloom/correct"
 	"github.com/keyloom/keyloom/lm"
+	"github.com/keyloom/keyloom/trie"
 )
 
 // Layout names a built-in keyboard geometry for the corrector.
@@ -32,9 +33,10 @@ func (e *Engine) initCorrector() error {
 		}
 		return e.model.LM.LogProb(ctx, w)
 	}
-	c, err := correct.New(e.model.Lex, scorer, correct.Options{
-		Layout:   e.opts.Layout,
-		Keyboard: e.opts.Keyboard,
+	c, err := correct.New(lexEdges{e.model.Lex}, scorer, correct.Options{
+		Layout:    e.opts.Layout,
+		Keyboard:  e.opts.Keyboard,
+		MaxStates: max(e.opts.CorrectionStates, 0),
 		Known: func(w string) bool {
 			return e.user.ov.Load().View().Known(w)
 		},
@@ -47,6 +49,19 @@ func (e *Engine) initCorrector() error {
 	}
 	e.corr = c
 	return nil
+}
+
+// lexEdges lets the corrector list a lexicon state's transitions at once.
+type lexEdges struct{ *trie.Lexicon }
+
+// AppendEdges implements correct.EdgeLister. It allocates only for states
+// with more than 32 transitions.
+func (l lexEdges) AppendEdges(dst []correct.Edge, state int) []correct.Edge {
+	var buf [32]trie.Transition
+	for _, t := range l.AppendTransitions(buf[:0], state) {
+		dst = append(dst, correct.Edge{Byte: t.Byte, Next: t.Next, Out: t.Out})
+	}
+	return dst
 }
 
 // lastField splits before into the text before its last whitespace-separated

@@ -44,11 +44,25 @@ type Options struct {
 	Layout Layout
 	// Keyboard, if not nil, replaces Layout (see ParseLayout).
 	Keyboard *Keyboard
+	// CorrectionStates caps the lexicon states one correction may visit,
+	// bounding its worst case (about 0.3–0.5 µs per state on a phone-class
+	// core): default DefaultCorrectionStates; −1 removes the cap (slightly
+	// better recall on badly misspelled long words, tens of milliseconds).
+	CorrectionStates int
 }
+
+// DefaultCorrectionStates is the default of Options.CorrectionStates.
+const DefaultCorrectionStates = 30000
 
 func (o Options) withDefaults() (Options, error) {
 	if o.Suggestions == 0 {
 		o.Suggestions = DefaultSuggestions
+	}
+	switch {
+	case o.CorrectionStates == 0:
+		o.CorrectionStates = DefaultCorrectionStates
+	case o.CorrectionStates < 0:
+		o.CorrectionStates = -1
 	}
 	if o.Suggestions < 0 || o.Suggestions > lm.MaxK {
 		return o, fmt.Errorf("keyloom: Options.Suggestions = %d, want 1..%d", o.Suggestions, lm.MaxK)

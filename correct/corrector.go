@@ -98,6 +98,12 @@ type Options struct {
 	// Known, if not nil, reports words the user has taught (typed text,
 	// lower-cased); they are offered corrections but never auto-replaced.
 	Known func(word string) bool
+	// MaxStates caps the lexicon states one Correct call may visit, which
+	// bounds its worst-case time (about 0.3–0.5 µs per state); the best
+	// candidates found within the cap are returned. 0 means no cap: the
+	// widest pass can visit ~10⁵ states (tens of milliseconds) for a badly
+	// misspelled long word.
+	MaxStates int
 	// Rejected, if not nil, reports corrections the user has undone
 	// (typed and candidate word, both lower-cased); they are not offered.
 	Rejected func(typed, word string) bool
@@ -123,6 +129,9 @@ func (o *Options) defaults() error {
 	def(&o.KnownMargin, 10)
 	def(&o.UnknownLogProb, -21)
 	def(&o.SpaceCost, 5)
+	if o.MaxStates < 0 {
+		return fmt.Errorf("%w: negative MaxStates", ErrOptions)
+	}
 	o.MaxCost = min(o.MaxCost, 40)
 	return nil
 }
@@ -228,18 +237,26 @@ func (c *Corrector) Correct(typed string, context []uint32, max int, dst []Candi
 	// the narrower one found nothing convincing.
 	s := &sc.s
 	last := 0.0
+	left := o.MaxStates
+	sc.top = sc.top[:0]
 	for _, budget := range [...]float64{firstPass, secondPass, o.MaxCost} {
 		budget = min(budget, o.MaxCost)
 		if budget <= last {
 			break
 		}
 		last = budget
-		sc.top = sc.top[:0]
+		if o.MaxStates > 0 && left <= 0 {
+			break
+		}
 		s.reset(c.ch, c.lex, lower, float32(budget), min(len(lower)+maxExtra, 2*maxTyped))
+		if o.MaxStates > 0 {
+			s.limit = left
+		}
 		s.run()
+		left -= s.visited
 		for _, h := range s.hits {
-			if inLex && h.id == typedID {
-				continue
+			if inLex && h.id == typedID || hasWord(sc.top, h.id) {
+				continue // a wider pass finds the narrower pass's words again
 			}
 			score := -float64(h.cost) + o.LMWeight*c.lm(context, h.id)
 			sc.top = insertTop(sc.top, Candidate{ID: h.id, Kind: KindWord, Cost: float64(h.cost), Score: score}, keepN)
@@ -298,6 +315,15 @@ func (c *Corrector) Correct(typed string, context []uint32, max int, dst []Candi
 
 // insertTop inserts c into top (sorted by Score, best first), keeping at
 // most n entries.
+func hasWord(top []Candidate, id uint32) bool {
+	for _, c := range top {
+		if c.Kind == KindWord && c.ID == id {
+			return true
+		}
+	}
+	return false
+}
+
 func insertTop(top []Candidate, c Candidate, n int) []Candidate {
 	if len(top) == n && top[n-1].Score >= c.Score {
 		return top

@@ -75,6 +75,23 @@ type search struct {
 	done      []partial // rules completed by the row being computed
 	hits      []hit
 	visited   int
+	limit     int // states this search may visit (0 = no limit)
+	el        EdgeLister
+	edges     [][]Edge // per depth
+}
+
+// Edge is one transition of the lexicon automaton.
+type Edge struct {
+	Byte byte
+	Next int
+	Out  uint64
+}
+
+// EdgeLister is implemented by lexicons that can list all transitions of a
+// state at once (decoding it once); the search uses it when present instead
+// of trying each candidate byte with Step.
+type EdgeLister interface {
+	AppendEdges(dst []Edge, state int) []Edge
 }
 
 // reset prepares a search of typed (already lower-cased) within budget.
@@ -100,6 +117,11 @@ func (s *search) reset(ch *channel, lex Lexicon, typed string, budget float32, m
 	s.path = s.path[:s.maxDepth+1]
 	s.hits = s.hits[:0]
 	s.visited = 0
+	s.limit = 0
+	s.el, _ = lex.(EdgeLister)
+	for len(s.edges) < s.maxDepth+1 {
+		s.edges = append(s.edges, make([]Edge, 0, 8))
+	}
 	ch.insCosts(s.t, s.ins)
 	s.subQ = grow(s.subQ, s.n<<8)
 	for j, tj := range s.t {
@@ -189,6 +211,9 @@ func (s *search) run() {
 }
 
 func (s *search) visit(d int, state int, acc uint64) {
+	if s.limit > 0 && s.visited >= s.limit {
+		return // out of time: keep what was found
+	}
 	s.visited++
 	w := s.w
 	row := s.rows[d*w : (d+1)*w]
@@ -242,6 +267,23 @@ func (s *search) visit(d int, state int, acc uint64) {
 			break
 		}
 		add(s.rules[i].alpha[0])
+	}
+	if s.el != nil {
+		edges := s.el.AppendEdges(s.edges[d][:0], state)
+		s.edges[d] = edges
+		for _, e := range edges {
+			c := e.Byte
+			if set[c>>6]&(1<<(c&63)) == 0 {
+				continue
+			}
+			s.path[d] = c
+			base := s.advance(d, c)
+			if s.computeRow(d+1) <= budget || s.actEnd[d+1] > base {
+				s.visit(d+1, e.Next, acc+e.Out)
+			}
+			s.act = s.act[:base]
+		}
+		return
 	}
 	for wi, word := range set {
 		for word != 0 {

@@ -19,6 +19,12 @@ var fallbackDiscounts = [3]float64{0.5, 1.0, 1.5}
 type EstimateOptions struct {
 	// ListSmoothing is α of the base distribution (default DefaultListSmoothing).
 	ListSmoothing float64
+	// ListWeight ω in [0, 1) mixes the word-list distribution into the
+	// unigram level directly: p1(w) = (1−ω)·p_KN(w) + ω·q(w). Use it when the
+	// running text is small or narrow and the lists say more about general
+	// word frequency (the default model does). 0 (the default) keeps the
+	// plain convention; it has no effect without word lists.
+	ListWeight float64
 	// Progress, if not nil, is called with the number of orders done.
 	Progress func(done, total int)
 }
@@ -173,6 +179,9 @@ func EstimateCounts(ctx context.Context, cs *Counts, opts EstimateOptions) (*Bac
 		p := gamma * q
 		if S > 0 {
 			p += math.Max(float64(adj[0][id])-disc(D, adj[0][id]), 0) / float64(S)
+		}
+		if cs.list != nil && opts.ListWeight > 0 && opts.ListWeight < 1 {
+			p = (1-opts.ListWeight)*p + opts.ListWeight*q
 		}
 		uni.LogP[id] = math.Log(p)
 	}

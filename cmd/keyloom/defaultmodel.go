@@ -19,7 +19,7 @@ import (
 
 // defaultRecipe names the build of the default model; change it whenever the
 // build below changes so that cached copies are rebuilt.
-const defaultRecipe = "default-english-1"
+const defaultRecipe = "default-english-2"
 
 // contractionPieces are SUBTLEX-US entries that are halves of contractions
 // split by its tokenizer ("don" + "t"); the project's tokenizer keeps
@@ -30,6 +30,12 @@ var contractionPieces = map[string]bool{
 	"weren": true, "couldn": true, "wouldn": true, "shouldn": true, "haven": true,
 	"hasn": true, "hadn": true, "ain": true, "c": true, "o": true,
 }
+
+// defaultListWeight mixes the SUBTLEX-US frequencies into the default
+// model's unigrams: its running text (one invented person's notes) is too
+// small and narrow to stand for general English word frequency, which the
+// corrector's prior needs (lm.EstimateOptions.ListWeight).
+const defaultListWeight = 0.5
 
 // defaultSources returns the inputs of the default model.
 func defaultSources() []bundle.Source {
@@ -76,8 +82,9 @@ func defaultModelPath(ctx context.Context, e *env) (string, error) {
 	}
 	fmt.Fprintf(e.stderr, "keyloom: building the default model into %s (once)…\n", path)
 	_, data, err := bundle.Build(ctx, defaultSources(), bundle.BuildOptions{
-		Order:  3,
-		Corpus: "default English: invented demo corpus + SUBTLEX-US word counts + SCOWL word list",
+		Order:      3,
+		ListWeight: defaultListWeight,
+		Corpus:     "default English: invented demo corpus + SUBTLEX-US word counts + SCOWL word list",
 	})
 	if err != nil {
 		return "", fmt.Errorf("default model: %w", err)

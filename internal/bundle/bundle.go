@@ -179,6 +179,8 @@ type BuildOptions struct {
 	Order     int    // default 3
 	QuantBits int    // default 8; -1 means lossless
 	Corpus    string // description stored in the metadata
+	// ListWeight is lm.EstimateOptions.ListWeight.
+	ListWeight float64
 	// Progress, if not nil, reports bytes read from the current source.
 	Progress func(source string, bytes int64)
 
@@ -243,7 +245,7 @@ func Build(ctx context.Context, sources []Source, opts BuildOptions) (*lm.Backof
 			return nil, nil, fmt.Errorf("%s: %w", s.Name, err)
 		}
 	}
-	b, err := lm.Estimate(ctx, c, lm.EstimateOptions{})
+	b, err := lm.Estimate(ctx, c, lm.EstimateOptions{ListWeight: opts.ListWeight})
 	if err != nil {
 		return nil, nil, err
 	}
@@ -294,7 +296,7 @@ func buildTally(ctx context.Context, sources []Source, opts BuildOptions, order,
 	if err := t.Close(); err != nil {
 		return nil, nil, err
 	}
-	b, err := lm.EstimateCounts(ctx, cs, lm.EstimateOptions{})
+	b, err := lm.EstimateCounts(ctx, cs, lm.EstimateOptions{ListWeight: opts.ListWeight})
 	if err != nil {
 		return nil, nil, err
 	}
