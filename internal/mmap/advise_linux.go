@@ -1,4 +1,4 @@
-//go:build linux && !nommap
+//go:build linux && !keyloom_nommap
 
 package mmap
 

@@ -1,4 +1,4 @@
-//go:build unix && !linux && !nommap
+//go:build unix && !linux && !keyloom_nommap
 
 package mmap
 

@@ -10,7 +10,8 @@
 // On Unix systems the file is mapped with PROT_READ and MAP_SHARED, so
 // opening costs about the same whatever the file's size and pages are read
 // from disk only when touched. On js/wasm, wasip1, Windows and Plan 9, and
-// in any build with the nommap tag, Open reads the whole file into memory
+// in any build with the keyloom_nommap tag (not vellum's own nommap tag,
+// whose file does not compile), Open reads the whole file into memory
 // instead; [Region.Mapped] tells which happened.
 //
 // # Caveats

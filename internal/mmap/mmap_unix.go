@@ -1,4 +1,4 @@
-//go:build unix && !nommap
+//go:build unix && !keyloom_nommap
 
 package mmap
 

@@ -134,7 +134,7 @@ func TestReplaceWhileOpen(t *testing.T) {
 }
 
 // BenchmarkOpenClose measures Open and Close of a 4 KiB and a 10 MiB file.
-// Mapping should cost about the same at either size; the nommap fallback
+// Mapping should cost about the same at either size; the keyloom_nommap fallback
 // reads every byte.
 func BenchmarkOpenClose(b *testing.B) {
 	sizes := []struct {
