@@ -325,7 +325,7 @@ function refresh() {
     }, () => accept(s.word, 0)));
   }
   strip.dataset.mode = mode;
-  tag.textContent = { idle: "", finish: "finish word", next: "next word", fix: "did you mean", fixed: "corrected" }[mode];
+  tag.textContent = { idle: "", finish: "finish word", next: "next word", fix: "perhaps", fixed: "corrected" }[mode];
 }
 
 let wipeArmedTimer = 0;
