@@ -78,3 +78,51 @@ func BenchmarkMapEntryBytes(b *testing.B) {
 	}
 	b.ReportMetric(perEntry, "bytes/entry")
 }
+
+// BenchmarkTallyGrowing counts 2M tokens of Zipf-distributed random words
+// over the Opticks vocabulary (fixed seed), where — unlike repeated text —
+// every chunk brings new n-grams, so workers do not each hold all of them.
+// Compare workers=2 with workers=1 for the scaling across cores.
+func BenchmarkTallyGrowing(b *testing.B) {
+	words := strings.Fields(readFile(b, filepath.Join("testdata", "opticks-train.txt")))
+	seen := map[string]bool{}
+	var vocab []string
+	for _, w := range words {
+		if !seen[w] {
+			seen[w] = true
+			vocab = append(vocab, w)
+		}
+	}
+	rng := rand.New(rand.NewPCG(3, 4))
+	z := rand.NewZipf(rng, 1.1, 2, uint64(len(vocab)-1))
+	var sb strings.Builder
+	const tokens = 2_000_000
+	for i := range tokens {
+		sb.WriteString(vocab[z.Uint64()])
+		if i%15 == 14 {
+			sb.WriteByte('\n')
+		} else {
+			sb.WriteByte(' ')
+		}
+	}
+	corpus := sb.String()
+	for _, workers := range []int{1, 2} {
+		b.Run(fmt.Sprintf("workers=%d", workers), func(b *testing.B) {
+			b.SetBytes(int64(len(corpus)))
+			for b.Loop() {
+				tl, err := NewTally(TallyOptions{Order: 3, Workers: workers, TempDir: b.TempDir()})
+				if err != nil {
+					b.Fatal(err)
+				}
+				if err := tl.AddText(context.Background(), strings.NewReader(corpus), ScanOptions{Pretokenized: true}, nil); err != nil {
+					b.Fatal(err)
+				}
+				if _, err := tl.Counts(context.Background()); err != nil {
+					b.Fatal(err)
+				}
+				tl.Close()
+			}
+			b.ReportMetric(float64(tokens)*float64(b.N)/b.Elapsed().Seconds()/1e6, "Mtokens/s")
+		})
+	}
+}

@@ -321,7 +321,7 @@ func (t *Tally) flushShards() error {
 		if len(ents) == 0 {
 			continue
 		}
-		slices.SortFunc(ents, cmpEnt)
+		sortEnts(ents)
 		if err := t.addRun(i+2, ents); err != nil {
 			return err
 		}

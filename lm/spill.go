@@ -99,7 +99,7 @@ func (c *Counter) drain(n int, gid []uint32, dst []ent) []ent {
 		}
 		clear(m)
 	}
-	slices.SortFunc(dst, cmpEnt)
+	sortEnts(dst)
 	return dst
 }
 
@@ -287,7 +287,7 @@ func finishTable(n int, ents []ent, rank []uint32) table {
 		}
 		ents[i].k = packLong(ids)
 	}
-	slices.SortFunc(ents, cmpEnt)
+	sortEnts(ents)
 	t := table{n: n, ids: make([]uint32, 0, len(ents)*n), cnt: make([]uint64, len(ents))}
 	for i, e := range ents {
 		t.ids = unpackKey(e.k, n, t.ids)
