@@ -25,6 +25,12 @@ type Keyboard = correct.Keyboard
 // ParseLayout reads a keyboard layout file (format: correct/LAYOUT.md).
 var ParseLayout = correct.ParseLayout
 
+// corrector returns the engine's corrector, building it on first use.
+func (e *Engine) corrector() (*correct.Corrector, error) {
+	e.corrOnce.Do(func() { e.corrErr = e.initCorrector() })
+	return e.corr, e.corrErr
+}
+
 func (e *Engine) initCorrector() error {
 	scorer := func(ctx []uint32, w uint32) float64 {
 		v := e.user.ov.Load().View()
@@ -87,16 +93,20 @@ func (e *Engine) Correct(beforeCursor string) (*Correction, error) {
 	if field == "" {
 		return nil, nil
 	}
-	return e.correctField(head, field), nil
+	c, err := e.corrector()
+	if err != nil {
+		return nil, err
+	}
+	return e.correctField(c, head, field), nil
 }
 
-func (e *Engine) correctField(head, field string) *Correction {
+func (e *Engine) correctField(corr *correct.Corrector, head, field string) *Correction {
 	q := e.query()
 	c := parseCursor(head, e.model.LM.Order()-1)
 	var ib [lm.MaxOrder + 1]uint32
 	ctx := q.contextIDs(c.words, ib[:0])
 	var buf [4]correct.Candidate
-	cands, dec := e.corr.Correct(field, ctx, 3, buf[:0])
+	cands, dec := corr.Correct(field, ctx, 3, buf[:0])
 	var best *Correction
 	if len(cands) > 0 && (dec.Confidence >= knownOfferConfidence || !e.knows(q, field)) {
 		best = &Correction{Typed: field, Replacement: cands[0].Word, Confidence: dec.Confidence, Apply: dec.Apply}
@@ -108,7 +118,7 @@ func (e *Engine) correctField(head, field string) *Correction {
 	if h2, prev := lastField(head); prev != "" && (best == nil || !best.Apply) {
 		pc := parseCursor(h2, e.model.LM.Order()-1)
 		pctx := q.contextIDs(pc.words, ib[:0])
-		if m, mdec, ok := e.corr.Merge(prev, field, pctx); ok && mdec.Apply {
+		if m, mdec, ok := corr.Merge(prev, field, pctx); ok && mdec.Apply {
 			best = &Correction{Typed: prev + " " + field, Replacement: m.Word, Confidence: mdec.Confidence, Apply: true}
 		}
 	}
@@ -144,5 +154,9 @@ func (e *Engine) correctPrefix(before, prefix string) *Correction {
 	if field == "" {
 		return nil
 	}
-	return e.correctField(head, field)
+	c, err := e.corrector()
+	if err != nil {
+		return nil
+	}
+	return e.correctField(c, head, field)
 }

@@ -2,6 +2,7 @@ package keyloom
 
 import (
 	"fmt"
+	"sync"
 	"sync/atomic"
 	"time"
 
@@ -78,7 +79,12 @@ type Engine struct {
 	model  *bundle.Model
 	closed atomic.Bool
 	user   userState
-	corr   *correct.Corrector
+	// The corrector is built on first use: building it costs about a
+	// megabyte of tables and a few milliseconds that apps which only
+	// predict should not pay at Open.
+	corrOnce sync.Once
+	corr     *correct.Corrector
+	corrErr  error
 }
 
 // Open maps the model file at path read-only and returns an Engine for it.
@@ -123,9 +129,6 @@ func newEngine(b []byte, opts Options) (*Engine, error) {
 	}
 	e := &Engine{opts: opts, model: m}
 	if err := e.initUser(); err != nil {
-		return nil, err
-	}
-	if err := e.initCorrector(); err != nil {
 		return nil, err
 	}
 	return e, nil
