@@ -40,9 +40,10 @@ func (e *Engine) initCorrector() error {
 		return e.model.LM.LogProb(ctx, w)
 	}
 	c, err := correct.New(lexEdges{e.model.Lex}, scorer, correct.Options{
-		Layout:    e.opts.Layout,
-		Keyboard:  e.opts.Keyboard,
-		MaxStates: max(e.opts.CorrectionStates, 0),
+		Layout:         e.opts.Layout,
+		Keyboard:       e.opts.Keyboard,
+		MaxStates:      max(e.opts.CorrectionStates, 0),
+		ApplyThreshold: e.opts.AutoApplyConfidence,
 		Known: func(w string) bool {
 			return e.user.ov.Load().View().Known(w)
 		},

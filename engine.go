@@ -50,7 +50,17 @@ type Options struct {
 	// core): default DefaultCorrectionStates; −1 removes the cap (slightly
 	// better recall on badly misspelled long words, tens of milliseconds).
 	CorrectionStates int
+	// AutoApplyConfidence is the confidence a correction of an unknown word
+	// needs to be applied on space (default DefaultAutoApplyConfidence).
+	// Lower means more fixes and more wrong ones: on the development
+	// misspellings list with the default model, 0.5 applies 85 % of the
+	// words with 95.6 % right, 0.8 applies 71 % with 98.3 % right.
+	AutoApplyConfidence float64
 }
+
+// DefaultAutoApplyConfidence is the default of Options.AutoApplyConfidence:
+// the engine prefers leaving a typo to making a wrong correction.
+const DefaultAutoApplyConfidence = 0.8
 
 // DefaultCorrectionStates is the default of Options.CorrectionStates.
 const DefaultCorrectionStates = 30000
@@ -58,6 +68,12 @@ const DefaultCorrectionStates = 30000
 func (o Options) withDefaults() (Options, error) {
 	if o.Suggestions == 0 {
 		o.Suggestions = DefaultSuggestions
+	}
+	if o.AutoApplyConfidence == 0 {
+		o.AutoApplyConfidence = DefaultAutoApplyConfidence
+	}
+	if !(o.AutoApplyConfidence > 0 && o.AutoApplyConfidence <= 1) {
+		return o, fmt.Errorf("keyloom: Options.AutoApplyConfidence = %v, want (0, 1]", o.AutoApplyConfidence)
 	}
 	switch {
 	case o.CorrectionStates == 0:
