@@ -38,7 +38,7 @@ func runDemo(ctx context.Context, e *env, args []string) error {
 	train, test := docs[:cut], docs[cut:]
 	srcs := defaultSources()
 	srcs[0].R = strings.NewReader(train)
-	b, data, err := bundle.Build(ctx, srcs, bundle.BuildOptions{Order: 3, Corpus: "demo: 90% of the invented demo corpus + word lists"})
+	b, data, err := bundle.Build(ctx, srcs, bundle.BuildOptions{Order: 3, ListWeight: defaultListWeight, Corpus: "demo: 90% of the invented demo corpus + word lists"})
 	if err != nil {
 		return err
 	}
@@ -77,9 +77,38 @@ func runDemo(ctx context.Context, e *env, args []string) error {
 		}
 		fmt.Fprintf(w, "  %-26q → %s   [%s]\n", before, strings.Join(words, ", "), el.Round(time.Microsecond))
 	}
-	lex := eng.Lexicon()
-	bos, eos, unk := eng.LM().Specials()
-	res, err := lm.Perplexity(ctx, eng.LM(), func(b []byte) (uint32, bool) { return lex.ID(string(b)) }, bos, eos, unk, strings.NewReader(test), lm.ScanOptions{})
+	fmt.Fprintln(w, "\nAutocorrect when a word is finished (applied only when it is safe):")
+	for _, before := range []string{"see you tomorow", "I'll bring teh", "Can you recieve", "Wren"} {
+		c, err := eng.Correct(before)
+		if err != nil {
+			return err
+		}
+		switch {
+		case c == nil:
+			fmt.Fprintf(w, "  %-22q → left as typed\n", before)
+		case c.Apply:
+			fmt.Fprintf(w, "  %-22q → %s (%.0f%%, applied on space)\n", before, c.Replacement, 100*c.Confidence)
+		default:
+			fmt.Fprintf(w, "  %-22q → %s (%.0f%%, offered only)\n", before, c.Replacement, 100*c.Confidence)
+		}
+	}
+	fmt.Fprintln(w, "\nLearning on the device: an invented word becomes suggestible once typed twice.")
+	for i, note := range []string{"Meet me by the quorvel bed.", "The quorvel bed needs weeding."} {
+		if err := eng.Learn(note); err != nil {
+			return err
+		}
+		r, err := eng.Suggest("by the quor")
+		if err != nil {
+			return err
+		}
+		var got []string
+		for _, s := range r.Completions {
+			got = append(got, s.Word)
+		}
+		fmt.Fprintf(w, "  after learning %q (%d×): \"by the quor\" → %s\n", note, i+1, strings.Join(got, ", "))
+	}
+	eng.Wipe()
+	res, err := eng.Perplexity(ctx, strings.NewReader(test), lm.ScanOptions{})
 	if err != nil {
 		return err
 	}
