@@ -35,6 +35,41 @@ var (
 	ErrARPA = errors.New("lm: malformed ARPA text")
 )
 
+// Errors returned by the user overlay.
+var (
+	// ErrOverlayCorrupt is returned when the bytes given to LoadOverlay are
+	// not a valid overlay section (wrong magic, truncated, lengths or indexes
+	// out of range, unsorted entries, counts that are not positive and finite).
+	ErrOverlayCorrupt = errors.New("lm: corrupt user overlay")
+	// ErrOverlayVersion is returned when an overlay section was written by a newer layout.
+	ErrOverlayVersion = errors.New("lm: unsupported user overlay version")
+	// ErrOverlayOptions is returned when NewOverlay or LoadOverlay get a nil
+	// model or vocabulary or an option out of range.
+	ErrOverlayOptions = errors.New("lm: invalid overlay options")
+)
+
+// Errors returned while pruning.
+var (
+	// ErrNoUnknown is returned by PruneVocab when the model has no <unk> word
+	// to take the probability of the words it drops.
+	ErrNoUnknown = errors.New("lm: model has no <unk> word")
+	// ErrCutoff is returned when a count cut-off is negative or more cut-offs
+	// than orders are given.
+	ErrCutoff = errors.New("lm: bad count cut-off")
+	// ErrModel is returned when a Backoff handed to Score, Prune or
+	// PruneVocab is inconsistent (an n-gram whose context is missing, a level
+	// of the wrong shape).
+	ErrModel = errors.New("lm: inconsistent back-off model")
+)
+
+// Errors returned while reading count shards.
+var (
+	// ErrShard is returned when a count shard has a malformed line (bad count,
+	// empty word, misplaced <s> or </s>, an order above the build's, an unknown
+	// casing class) or holds fewer orders than the build asks for.
+	ErrShard = errors.New("lm: malformed count shard")
+)
+
 // SectionError reports where an n-gram section is bad. It matches ErrCorrupt.
 type SectionError struct {
 	Offset int    // byte offset inside the section

@@ -3,7 +3,6 @@ package lm
 import (
 	"bufio"
 	"cmp"
-	"errors"
 	"fmt"
 	"math"
 	"slices"
@@ -12,18 +11,6 @@ import (
 	"sync/atomic"
 )
 
-// Errors returned by the user overlay.
-var (
-	// ErrOverlayCorrupt is returned when the bytes given to LoadOverlay are
-	// not a valid overlay section (wrong magic, truncated, lengths or indexes
-	// out of range, unsorted entries, counts that are not positive and finite).
-	ErrOverlayCorrupt = errors.New("lm: corrupt user overlay")
-	// ErrOverlayVersion is returned when an overlay section was written by a newer layout.
-	ErrOverlayVersion = errors.New("lm: unsupported user overlay version")
-	// ErrOverlayOptions is returned when NewOverlay or LoadOverlay get a nil
-	// model or vocabulary or an option out of range.
-	ErrOverlayOptions = errors.New("lm: invalid overlay options")
-)
 
 // Vocab maps folded words to the base model's word IDs and back. The
 // project's lexicon satisfies it; IDs must be the same as the base model's.

@@ -2,25 +2,11 @@ package lm
 
 import (
 	"context"
-	"errors"
 	"fmt"
 	"math"
 	"slices"
 )
 
-// Errors returned while pruning. (They belong with the others in errors.go.)
-var (
-	// ErrNoUnknown is returned by PruneVocab when the model has no <unk> word
-	// to take the probability of the words it drops.
-	ErrNoUnknown = errors.New("lm: model has no <unk> word")
-	// ErrCutoff is returned when a count cut-off is negative or more cut-offs
-	// than orders are given.
-	ErrCutoff = errors.New("lm: bad count cut-off")
-	// ErrModel is returned when a Backoff handed to Score, Prune or
-	// PruneVocab is inconsistent (an n-gram whose context is missing, a level
-	// of the wrong shape).
-	ErrModel = errors.New("lm: inconsistent back-off model")
-)
 
 // Scores holds, for every n-gram of order 2 and up of a model, the increase
 // in training-set relative entropy that removing that n-gram alone would

@@ -14,10 +14,6 @@ import (
 // Count shards: the line format any map/reduce engine can produce and that
 // a Tally reads. The format is specified in SHARDS.md beside this file.
 
-// ErrShard is returned when a count shard has a malformed line (bad count,
-// empty word, misplaced <s> or </s>, an order above the build's, an unknown
-// casing class) or holds fewer orders than the build asks for.
-var ErrShard = errors.New("lm: malformed count shard")
 
 // casing record classes, in the order of the caseLower.. constants.
 var caseNames = [4]string{"lower", "title", "upper", "other"}
