@@ -11,7 +11,6 @@ import (
 	"sync/atomic"
 )
 
-
 // Vocab maps folded words to the base model's word IDs and back. The
 // project's lexicon satisfies it; IDs must be the same as the base model's.
 type Vocab interface {

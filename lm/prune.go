@@ -7,7 +7,6 @@ import (
 	"slices"
 )
 
-
 // Scores holds, for every n-gram of order 2 and up of a model, the increase
 // in training-set relative entropy that removing that n-gram alone would
 // cause: the pruning criterion of Stolcke (1998), "Entropy-based pruning of

@@ -14,7 +14,6 @@ import (
 // Count shards: the line format any map/reduce engine can produce and that
 // a Tally reads. The format is specified in SHARDS.md beside this file.
 
-
 // casing record classes, in the order of the caseLower.. constants.
 var caseNames = [4]string{"lower", "title", "upper", "other"}
 
