@@ -35,7 +35,7 @@ func commands() []command {
 		{"count", "count n-grams as shard lines: mapper and reducer of a map/reduce build", runCount},
 		{"suggest", "complete the word being typed or predict the next one", runSuggest},
 		{"correct", "propose corrections of typed words", runCorrect},
-		{"eval", "measure a model on test text (perplexity)", runEval},
+		{"eval", "measure keystroke savings, accuracy, perplexity and corrections on test text", runEval},
 		{"inspect", "print a model file's sections, sizes and checksums", runInspect},
 		{"export", "write a model as ARPA text", runExport},
 		{"learn", "teach a user overlay the user's own text", runLearn},
