@@ -102,14 +102,6 @@ func (q query) topK(ctx []uint32, prefix string, k int, dst []lm.Scored) []lm.Sc
 	return m.LM.TopK(ctx, lo, hi, k, dst)
 }
 
-// logProb scores w after ctx.
-func (q query) logProb(ctx []uint32, w uint32) float64 {
-	if q.view != nil {
-		return q.view.LogProb(ctx, w)
-	}
-	return q.e.model.LM.LogProb(ctx, w)
-}
-
 // Perplexity scores every sentence of r under the base model blended with the
 // user overlay (see lm.Perplexity for the conventions).
 func (e *Engine) Perplexity(ctx context.Context, r io.Reader, opts lm.ScanOptions) (lm.PerplexityResult, error) {

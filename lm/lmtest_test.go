@@ -3,7 +3,6 @@ package lm
 import (
 	"context"
 	"os"
-	"slices"
 	"strings"
 	"testing"
 )
@@ -61,5 +60,3 @@ func readFile(t testing.TB, path string) string {
 	}
 	return string(b)
 }
-
-func sorted(ids []uint32) []uint32 { s := slices.Clone(ids); slices.Sort(s); return s }

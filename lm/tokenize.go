@@ -48,9 +48,7 @@ type Scanner struct {
 	line []byte // current line (normalized)
 	pos  int    // next byte of line to read
 	eof  bool
-	// pending marks a string scanner whose text (in tmp) has not been read yet.
-	pending bool
-	err     error
+	err  error
 
 	folded, surface [][]byte // tokens of the current sentence
 	fbuf, sbuf      []byte   // backing storage
@@ -68,17 +66,6 @@ func NewScanner(r io.Reader, opts ScanOptions) *Scanner {
 	return &Scanner{r: bufio.NewReaderSize(r, 1<<16), opts: opts}
 }
 
-// NewStringScanner returns a Scanner over a short string, without the
-// read buffer NewScanner allocates: for the text before a cursor.
-func NewStringScanner(text string, opts ScanOptions) *Scanner {
-	if opts.MaxTokenBytes <= 0 {
-		opts.MaxTokenBytes = DefaultMaxTokenBytes
-	}
-	s := &Scanner{opts: opts, tmp: []byte(text)}
-	s.pending = true
-	return s
-}
-
 // Err returns the first read error other than io.EOF.
 func (s *Scanner) Err() error { return s.err }
 
@@ -91,23 +78,6 @@ func (s *Scanner) Surfaces() [][]byte { return s.surface }
 
 // readLine loads the next line into s.line. It returns false at the end of input.
 func (s *Scanner) readLine() bool {
-	if s.r == nil { // string scanner: lines of tmp
-		if !s.pending || len(s.tmp) == 0 {
-			return false
-		}
-		line := s.tmp
-		if i := bytes.IndexByte(line, '\n'); i >= 0 {
-			line, s.tmp = line[:i+1], line[i+1:]
-		} else {
-			s.tmp = nil
-		}
-		s.line = line
-		if !s.opts.Pretokenized && !isASCII(s.line) && !norm.NFC.IsNormal(s.line) {
-			s.line = norm.NFC.Append(nil, s.line...)
-		}
-		s.pos = 0
-		return true
-	}
 	if s.eof {
 		return false
 	}

@@ -25,13 +25,6 @@ type topBuf struct {
 	buf [MaxK]Scored
 }
 
-func (t *topBuf) worst() (Scored, bool) {
-	if t.n < t.k {
-		return Scored{}, false
-	}
-	return t.buf[t.n-1], true
-}
-
 func (t *topBuf) push(s Scored) {
 	if t.n == t.k {
 		if !better(s, t.buf[t.n-1]) {
@@ -46,15 +39,6 @@ func (t *topBuf) push(s Scored) {
 	}
 	t.buf[i] = s
 	t.n++
-}
-
-func (t *topBuf) has(id uint32) bool {
-	for _, s := range t.buf[:t.n] {
-		if s.ID == id {
-			return true
-		}
-	}
-	return false
 }
 
 // TopK appends to dst the k most probable next words after ctx (oldest

@@ -21,7 +21,6 @@ import (
 	"slices"
 	"sync"
 	"time"
-	"unicode/utf8"
 )
 
 // Predictor offers words. Predict appends to dst up to k suggested words
@@ -271,6 +270,3 @@ func report(t *tally, k int, partial bool) Report {
 	}
 	return r
 }
-
-// Letters returns the number of letters (runes) of w.
-func Letters(w string) int { return utf8.RuneCountInString(w) }
