@@ -8,9 +8,11 @@ import (
 	"os"
 	"path/filepath"
 	"runtime"
+	"slices"
 	"strconv"
 	"strings"
 	"testing"
+	"time"
 
 	"github.com/keyloom/keyloom/internal/bundle"
 )
@@ -156,13 +158,21 @@ func BenchmarkSuggest(b *testing.B) {
 		b.Run(c.name, func(b *testing.B) {
 			b.ReportAllocs()
 			i := 0
+			times := make([]time.Duration, 0, 1<<16)
 			for b.Loop() {
+				t0 := time.Now()
 				if _, err := c.e.Suggest(inputs[i%len(inputs)]); err != nil {
 					b.Fatal(err)
+				}
+				if len(times) < cap(times) {
+					times = append(times, time.Since(t0))
 				}
 				i++
 			}
 			b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/1e3, "µs/keystroke")
+			slices.Sort(times)
+			b.ReportMetric(float64(times[len(times)/2].Nanoseconds())/1e3, "median-µs")
+			b.ReportMetric(float64(times[len(times)*99/100].Nanoseconds())/1e3, "p99-µs")
 		})
 	}
 }

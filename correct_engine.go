@@ -98,11 +98,11 @@ func (e *Engine) Correct(beforeCursor string) (*Correction, error) {
 	if err != nil {
 		return nil, err
 	}
-	return e.correctField(c, head, field), nil
+	return e.correctField(c, e.query(), head, field), nil
 }
 
-func (e *Engine) correctField(corr *correct.Corrector, head, field string) *Correction {
-	q := e.query()
+// correctField corrects field, typed after head, under the query snapshot q.
+func (e *Engine) correctField(corr *correct.Corrector, q query, head, field string) *Correction {
 	c := parseCursor(head, e.model.LM.Order()-1)
 	var ib [lm.MaxOrder + 1]uint32
 	ctx := q.contextIDs(c.words, ib[:0])
@@ -147,7 +147,7 @@ func (e *Engine) knows(q query, field string) bool {
 
 // correctPrefix proposes a correction for a partial word that cannot start
 // any known word (no completions), so that Suggest can show it.
-func (e *Engine) correctPrefix(before, prefix string) *Correction {
+func (e *Engine) correctPrefix(q query, before, prefix string) *Correction {
 	if utf8.RuneCountInString(prefix) < 2 {
 		return nil
 	}
@@ -159,5 +159,5 @@ func (e *Engine) correctPrefix(before, prefix string) *Correction {
 	if err != nil {
 		return nil
 	}
-	return e.correctField(c, head, field)
+	return e.correctField(c, q, head, field)
 }

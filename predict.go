@@ -75,10 +75,8 @@ func (q query) contextIDs(words []string, dst []uint32) []uint32 {
 	if k := m.LM.Order() - 1; len(words) > k {
 		words = words[len(words)-k:]
 	}
-	if bos, ok := m.Lex.ID(lm.BOS); ok {
-		dst = append(dst, bos)
-	}
-	_, _, unk := m.LM.Specials()
+	bos, _, unk := m.LM.Specials()
+	dst = append(dst, bos)
 	for _, w := range words {
 		id, ok := q.id(w)
 		if !ok {

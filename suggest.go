@@ -2,6 +2,7 @@ package keyloom
 
 import (
 	"math"
+	"slices"
 	"strings"
 	"unicode"
 	"unicode/utf8"
@@ -97,8 +98,7 @@ func parseCursor(before string, maxWords int) cursor {
 		c.prefix = before[j:i]
 		i = j
 	}
-	var rev []string
-	for len(rev) < maxWords {
+	for len(c.words) < maxWords {
 		// skip separators; a sentence end stops the walk
 		for i > 0 {
 			r, w := utf8.DecodeLastRuneInString(before[:i])
@@ -106,25 +106,23 @@ func parseCursor(before string, maxWords int) cursor {
 				break
 			}
 			if r == '.' || r == '!' || r == '?' || r == '…' || r == '\n' {
-				c.start = len(rev) == 0
+				c.start = len(c.words) == 0
 				goto done
 			}
 			i -= w
 		}
 		if i == 0 {
-			c.start = len(rev) == 0
+			c.start = len(c.words) == 0
 			break
 		}
 		j := word(i)
 		if i-j <= lm.DefaultMaxTokenBytes {
-			rev = append(rev, lm.Fold(norm.NFC.String(before[j:i])))
+			c.words = append(c.words, lm.Fold(norm.NFC.String(before[j:i])))
 		}
 		i = j
 	}
 done:
-	for k := len(rev) - 1; k >= 0; k-- {
-		c.words = append(c.words, rev[k])
-	}
+	slices.Reverse(c.words) // collected newest first
 	return c
 }
 
@@ -137,7 +135,8 @@ func (e *Engine) Suggest(beforeCursor string) (Result, error) {
 	}
 	c := parseCursor(beforeCursor, e.model.LM.Order()-1)
 	q := e.query()
-	ctx := q.contextIDs(c.words, make([]uint32, 0, lm.MaxOrder+1))
+	var ib [lm.MaxOrder + 1]uint32
+	ctx := q.contextIDs(c.words, ib[:0])
 	res := Result{Prefix: c.prefix}
 	var buf [lm.MaxK]lm.Scored
 	k := e.opts.Suggestions
@@ -148,7 +147,7 @@ func (e *Engine) Suggest(beforeCursor string) (Result, error) {
 	folded := lm.Fold(c.prefix)
 	res.Completions = q.display(q.topK(ctx, folded, k, buf[:0]), c.prefix, c.start)
 	if len(res.Completions) == 0 {
-		res.Correction = e.correctPrefix(beforeCursor, c.prefix)
+		res.Correction = e.correctPrefix(q, beforeCursor, c.prefix)
 	}
 	return res, nil
 }
