@@ -95,13 +95,27 @@ func AppendSection(dst []byte, b *Backoff, opts LayoutOptions) ([]byte, error) {
 		arrs = append(arrs, arr{tag: t, width: width, n: len(vals), words: packVec(vals, width)})
 	}
 	wbits := bitsFor(uint64(max(V-1, 0)))
+	// Probability codebooks and codes of every level, computed once: a
+	// level's codes are also needed to order its parent's top lists.
+	books := make([]codebook, N)
+	allCodes := make([][]uint64, N)
+	for n := range N {
+		lv := &b.Levels[n]
+		if q > 0 {
+			books[n] = trainCodebook(lv.LogP, q)
+		}
+		allCodes[n] = make([]uint64, lv.Len())
+		for i, x := range lv.LogP {
+			allCodes[n][i] = books[n].encode(x)
+		}
+	}
 	var unigramCodes []uint64
 	var probBook0 codebook
 	for n := 1; n <= N; n++ {
 		lv := &b.Levels[n-1]
-		var pb, bb codebook
+		pb, codes := books[n-1], allCodes[n-1]
+		var bb codebook
 		if q > 0 {
-			pb = trainCodebook(lv.LogP, q)
 			var bows []float64
 			for i, x := range lv.Bow {
 				if x != 0 || (n < N && hasChildren(b, n, i)) {
@@ -111,10 +125,6 @@ func AppendSection(dst []byte, b *Backoff, opts LayoutOptions) ([]byte, error) {
 			bb = trainCodebook(append(bows, 0), q)
 			add(tag(tagProbBook, n), 64, floatBits(pb))
 			add(tag(tagBowBook, n), 64, floatBits(bb))
-		}
-		codes := make([]uint64, lv.Len())
-		for i, x := range lv.LogP {
-			codes[i] = pb.encode(x)
 		}
 		if n == 1 {
 			unigramCodes, probBook0 = codes, pb
@@ -154,11 +164,7 @@ func AppendSection(dst []byte, b *Backoff, opts LayoutOptions) ([]byte, error) {
 			g = e
 		}
 		// groups are in entry order because both levels are sorted.
-		nextCodes := make([]uint64, next.Len())
-		nb := pbNext(b, n+1, q)
-		for i, x := range next.LogP {
-			nextCodes[i] = nb.encode(x)
-		}
+		nextCodes, nb := allCodes[n], books[n]
 		gi := 0
 		for p := range lv.Len() {
 			if !has[p] {
@@ -271,14 +277,6 @@ func hasChildren(b *Backoff, n, i int) bool {
 	return lo < next.Len() && equalIDs(next.Key(lo)[:n], k)
 }
 
-// pbNext returns the probability codebook that AppendSection uses for order n.
-func pbNext(b *Backoff, n, q int) codebook {
-	if q == 0 {
-		return nil
-	}
-	return trainCodebook(b.Levels[n-1].LogP, q)
-}
-
 func floatBits(cb codebook) []uint64 {
 	out := make([]uint64, len(cb))
 	for i, x := range cb {
@@ -361,7 +359,6 @@ func LoadSection(b []byte) (*Model, error) {
 		}
 		return v, nil
 	}
-	prev := V
 	for n := 1; n <= N; n++ {
 		l := &m.lv[n-1]
 		l.n = n
@@ -389,8 +386,6 @@ func LoadSection(b []byte) (*Model, error) {
 			}
 			l.size = l.words.n
 		}
-		_ = prev
-		prev = l.size
 		if n == N {
 			continue
 		}
