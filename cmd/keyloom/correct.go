@@ -62,16 +62,11 @@ func runCorrect(ctx context.Context, e *env, args []string) error {
 	if err := layoutOption(*layout, &opts); err != nil {
 		return err
 	}
-	eng, err := openModel(ctx, e, *model, opts)
+	eng, err := openUser(ctx, e, *model, *user, true, opts)
 	if err != nil {
 		return err
 	}
 	defer eng.Close()
-	if *user != "" {
-		if err := eng.OpenOverlay(*user); err != nil {
-			return err
-		}
-	}
 	var out []correctAnswer
 	for _, w := range pos {
 		before := *context_

@@ -1,6 +1,7 @@
 package main
 
 import (
+	"bytes"
 	"context"
 	"encoding/json"
 	"fmt"
@@ -8,6 +9,7 @@ import (
 	"os"
 	"runtime"
 
+	"github.com/keyloom/keyloom"
 	"github.com/keyloom/keyloom/internal/evaluate"
 	"github.com/keyloom/keyloom/lm"
 )
@@ -77,7 +79,7 @@ func runEval(ctx context.Context, e *env, args []string) error {
 	if *split != 0 && (*split <= 0 || *split >= 1) {
 		return fmt.Errorf("%w: --split %v: want a fraction between 0 and 1", errUsage, *split)
 	}
-	eng, err := openUser(ctx, e, *model, *user, true)
+	eng, err := openUser(ctx, e, *model, *user, true, engineOptions())
 	if err != nil {
 		return err
 	}
@@ -90,17 +92,14 @@ func runEval(ctx context.Context, e *env, args []string) error {
 	if *split > 0 {
 		return evalSplit(ctx, e, eng, *model, text, opts, *split, !*noOnline, *k, *workers, *plotPath, *asJSON)
 	}
-	pr, err := eng.Perplexity(ctx, newBytesReader(text), opts)
+	pr, err := eng.Perplexity(ctx, bytes.NewReader(text), opts)
 	if err != nil {
 		return err
 	}
 	if pr.Tokens == 0 {
 		return fmt.Errorf("the test text holds no words")
 	}
-	rep := evalReport{
-		Perplexity: pr.Perplexity, PerplexityWithOOV: pr.PerplexityWithOOV, OOV: pr.OOV, Tokens: pr.Tokens,
-		OOVRate: float64(pr.OOV) / float64(pr.Tokens), ModelBytes: eng.Info().Bytes, K: *k,
-	}
+	rep := newEvalReport(pr, eng, *k)
 	if *ppl {
 		if *asJSON {
 			return writeJSON(e.stdout, map[string]any{"perplexity": pr.Perplexity, "perplexity_with_oov": pr.PerplexityWithOOV, "oov": pr.OOV, "tokens": pr.Tokens, "oov_rate": rep.OOVRate})
@@ -129,6 +128,14 @@ func runEval(ctx context.Context, e *env, args []string) error {
 		fmt.Fprintln(e.stdout, "(interrupted: partial results)")
 	}
 	return nil
+}
+
+// newEvalReport starts a report from a perplexity result and the engine measured.
+func newEvalReport(pr lm.PerplexityResult, eng *keyloom.Engine, k int) evalReport {
+	return evalReport{
+		Perplexity: pr.Perplexity, PerplexityWithOOV: pr.PerplexityWithOOV, OOV: pr.OOV, Tokens: pr.Tokens,
+		OOVRate: float64(pr.OOV) / float64(max(1, pr.Tokens)), ModelBytes: eng.Info().Bytes, K: k,
+	}
 }
 
 func fill(rep *evalReport, r evaluate.Report) {
@@ -211,7 +218,7 @@ func readAll(e *env, paths []string) ([]byte, error) {
 // splitSentences returns the folded tokens of every sentence of text.
 func splitSentences(text []byte, opts lm.ScanOptions) [][]string {
 	var out [][]string
-	sc := lm.NewScanner(newBytesReader(text), opts)
+	sc := lm.NewScanner(bytes.NewReader(text), opts)
 	for sc.Scan() {
 		s := make([]string, len(sc.Tokens()))
 		for i, t := range sc.Tokens() {

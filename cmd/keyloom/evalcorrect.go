@@ -15,15 +15,13 @@ import (
 )
 
 type correctReport struct {
-	N               int      `json:"n"`
-	Top1            float64  `json:"top1"`
-	Top3            float64  `json:"top3"`
-	AutoPrecision   float64  `json:"auto_precision"`
-	AutoRecall      float64  `json:"auto_recall"`
-	Applied         int      `json:"applied"`
-	NoCorrection    int      `json:"no_correction"`
-	LatencyP50us    float64  `json:"latency_p50_us,omitempty"`
-	MissingExamples []string `json:"-"`
+	N             int     `json:"n"`
+	Top1          float64 `json:"top1"`
+	Top3          float64 `json:"top3"`
+	AutoPrecision float64 `json:"auto_precision"`
+	AutoRecall    float64 `json:"auto_recall"`
+	Applied       int     `json:"applied"`
+	NoCorrection  int     `json:"no_correction"`
 }
 
 func openForCorrection(ctx context.Context, e *env, model, user, layout string) (*keyloom.Engine, error) {
@@ -31,17 +29,7 @@ func openForCorrection(ctx context.Context, e *env, model, user, layout string) 
 	if err := layoutOption(layout, &opts); err != nil {
 		return nil, err
 	}
-	eng, err := openModel(ctx, e, model, opts)
-	if err != nil {
-		return nil, err
-	}
-	if user != "" {
-		if err := eng.OpenOverlay(user); err != nil {
-			eng.Close()
-			return nil, err
-		}
-	}
-	return eng, nil
+	return openUser(ctx, e, model, user, true, opts)
 }
 
 // evalCorrect measures correction on a list of misspelling<TAB>correction(s):

@@ -13,8 +13,9 @@ import (
 )
 
 // openUser opens the model and, when userPath names an existing overlay, loads it.
-func openUser(ctx context.Context, e *env, model, userPath string, mustExist bool) (*keyloom.Engine, error) {
-	eng, err := openModel(ctx, e, model, engineOptions())
+// A missing overlay file is an error only when mustExist is set.
+func openUser(ctx context.Context, e *env, model, userPath string, mustExist bool, opts keyloom.Options) (*keyloom.Engine, error) {
+	eng, err := openModel(ctx, e, model, opts)
 	if err != nil {
 		return nil, err
 	}
@@ -45,7 +46,7 @@ func runLearn(ctx context.Context, e *env, args []string) error {
 	if *user == "" || len(pos) == 0 {
 		return fmt.Errorf("%w: give --user and at least one FILE", errUsage)
 	}
-	eng, err := openUser(ctx, e, *model, *user, false)
+	eng, err := openUser(ctx, e, *model, *user, false, engineOptions())
 	if err != nil {
 		return err
 	}
@@ -89,7 +90,7 @@ func runForget(ctx context.Context, e *env, args []string) error {
 	if *user == "" || (len(pos) == 0) == !*all {
 		return fmt.Errorf("%w: give --user and either PHRASEs or --all", errUsage)
 	}
-	eng, err := openUser(ctx, e, *model, *user, true)
+	eng, err := openUser(ctx, e, *model, *user, true, engineOptions())
 	if err != nil {
 		return err
 	}
@@ -134,7 +135,7 @@ func runMerge(ctx context.Context, e *env, args []string) error {
 		}
 		path = p
 	}
-	eng, err := openUser(ctx, e, path, *user, true)
+	eng, err := openUser(ctx, e, path, *user, true, engineOptions())
 	if err != nil {
 		return err
 	}

@@ -2,6 +2,7 @@ package main
 
 import (
 	"bufio"
+	"bytes"
 	"context"
 	"errors"
 	"fmt"
@@ -470,7 +471,7 @@ func measurePruned(ctx context.Context, rep *pruneReport, text []byte, opts lm.S
 		return err
 	}
 	defer eng.Close()
-	pr, err := eng.Perplexity(ctx, newBytesReader(text), opts)
+	pr, err := eng.Perplexity(ctx, bytes.NewReader(text), opts)
 	if err != nil {
 		return err
 	}

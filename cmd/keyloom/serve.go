@@ -6,7 +6,6 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"io/fs"
 	"net"
 	"net/http"
 	"os/signal"
@@ -73,18 +72,12 @@ func runServe(ctx context.Context, e *env, args []string) error {
 		ln.Close()
 		return notLoopback
 	}
-	eng, err := openModel(ctx, e, *model, keyloom.Options{Suggestions: *k})
+	eng, err := openUser(ctx, e, *model, *user, false, keyloom.Options{Suggestions: *k})
 	if err != nil {
 		ln.Close()
 		return err
 	}
 	defer eng.Close()
-	if *user != "" {
-		if err := eng.OpenOverlay(*user); err != nil && !errors.Is(err, fs.ErrNotExist) {
-			ln.Close()
-			return err
-		}
-	}
 
 	h := &serveAPI{eng: eng, maxBody: limit, userPath: *user, anyHost: *public}
 	srv := &http.Server{

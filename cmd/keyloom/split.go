@@ -36,8 +36,7 @@ func evalSplit(ctx context.Context, e *env, base *keyloom.Engine, model string, 
 		if err != nil {
 			return evalReport{}, err
 		}
-		rep := evalReport{Perplexity: pr.Perplexity, PerplexityWithOOV: pr.PerplexityWithOOV, OOV: pr.OOV, Tokens: pr.Tokens,
-			OOVRate: float64(pr.OOV) / float64(max(1, pr.Tokens)), ModelBytes: eng.Info().Bytes, K: k}
+		rep := newEvalReport(pr, eng, k)
 		fill(&rep, r)
 		return rep, nil
 	}

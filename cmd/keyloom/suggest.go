@@ -26,15 +26,9 @@ func runSuggest(ctx context.Context, e *env, args []string) error {
 	if *next && !strings.HasSuffix(text, " ") {
 		text += " "
 	}
-	eng, err := openModel(ctx, e, *model, keyloom.Options{Suggestions: *k})
+	eng, err := openUser(ctx, e, *model, *user, true, keyloom.Options{Suggestions: *k})
 	if err != nil {
 		return err
-	}
-	if *user != "" {
-		if err := eng.OpenOverlay(*user); err != nil {
-			eng.Close()
-			return err
-		}
 	}
 	defer eng.Close()
 	res, err := eng.Suggest(text)

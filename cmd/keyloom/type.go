@@ -4,7 +4,6 @@ import (
 	"context"
 	"errors"
 	"fmt"
-	"io/fs"
 	"path/filepath"
 	"strings"
 
@@ -37,16 +36,11 @@ func runType(ctx context.Context, e *env, args []string) error {
 	if *k < 1 || *k > maxTypeSlots {
 		return fmt.Errorf("%w: --k %d, want 1..%d", errUsage, *k, maxTypeSlots)
 	}
-	eng, err := openModel(ctx, e, *model, keyloom.Options{Suggestions: *k})
+	eng, err := openUser(ctx, e, *model, *user, false, keyloom.Options{Suggestions: *k})
 	if err != nil {
 		return err
 	}
 	defer eng.Close()
-	if *user != "" {
-		if err := eng.OpenOverlay(*user); err != nil && !errors.Is(err, fs.ErrNotExist) {
-			return err
-		}
-	}
 	name := "default model"
 	if *model != "" {
 		name = strings.TrimSuffix(filepath.Base(*model), ".klm")

@@ -222,28 +222,9 @@ func Build(ctx context.Context, sources []Source, opts BuildOptions) (*lm.Backof
 	if err != nil {
 		return nil, nil, err
 	}
-	var names []string
-	for _, s := range sources {
-		names = append(names, s.Name)
-		var err error
-		switch s.Kind {
-		case SourceText, SourceTokenized:
-			var prog func(int64)
-			if opts.Progress != nil {
-				name := s.Name
-				prog = func(n int64) { opts.Progress(name, n) }
-			}
-			err = c.AddText(ctx, s.R, lm.ScanOptions{Pretokenized: s.Kind == SourceTokenized}, prog)
-		case SourceWordCounts:
-			err = c.AddWordCounts(s.R)
-		case SourceWordList:
-			err = c.AddWordList(s.R, s.Weight)
-		case SourceShards:
-			err = fmt.Errorf("bundle: internal error: shards on the in-memory path")
-		}
-		if err != nil {
-			return nil, nil, fmt.Errorf("%s: %w", s.Name, err)
-		}
+	names, err := addSources(ctx, c, sources, opts)
+	if err != nil {
+		return nil, nil, err
 	}
 	b, err := lm.Estimate(ctx, c, lm.EstimateOptions{ListWeight: opts.ListWeight})
 	if err != nil {
@@ -261,33 +242,9 @@ func buildTally(ctx context.Context, sources []Source, opts BuildOptions, order,
 		return nil, nil, err
 	}
 	defer t.Close()
-	var names []string
-	for _, s := range sources {
-		names = append(names, s.Name)
-		var err error
-		switch s.Kind {
-		case SourceText, SourceTokenized:
-			var prog func(int64)
-			if opts.Progress != nil {
-				name := s.Name
-				prog = func(n int64) {
-					if opts.Tokens != nil {
-						opts.Tokens(t.Tokens())
-					}
-					opts.Progress(name, n)
-				}
-			}
-			err = t.AddText(ctx, s.R, lm.ScanOptions{Pretokenized: s.Kind == SourceTokenized}, prog)
-		case SourceWordCounts:
-			err = t.AddWordCounts(s.R)
-		case SourceWordList:
-			err = t.AddWordList(s.R, s.Weight)
-		case SourceShards:
-			err = t.AddShards(ctx, s.R)
-		}
-		if err != nil {
-			return nil, nil, fmt.Errorf("%s: %w", s.Name, err)
-		}
+	names, err := addSources(ctx, t, sources, opts)
+	if err != nil {
+		return nil, nil, err
 	}
 	cs, err := t.Counts(ctx)
 	if err != nil {
@@ -302,4 +259,54 @@ func buildTally(ctx context.Context, sources []Source, opts BuildOptions, order,
 	}
 	data, err := Encode(b, Meta{Corpus: opts.Corpus, Sources: names}, q, nil)
 	return b, data, err
+}
+
+// counter is what a build feeds its sources to: an lm.Counter or an lm.Tally.
+type counter interface {
+	AddText(ctx context.Context, r io.Reader, opts lm.ScanOptions, progress func(bytes int64)) error
+	AddWordCounts(r io.Reader) error
+	AddWordList(r io.Reader, weight float64) error
+	Tokens() int64
+}
+
+// shardReader is a counter that also reads count shards (lm.Tally).
+type shardReader interface {
+	AddShards(ctx context.Context, r io.Reader) error
+}
+
+// addSources feeds every source to c and returns their names.
+func addSources(ctx context.Context, c counter, sources []Source, opts BuildOptions) ([]string, error) {
+	var names []string
+	for _, s := range sources {
+		names = append(names, s.Name)
+		var err error
+		switch s.Kind {
+		case SourceText, SourceTokenized:
+			var prog func(int64)
+			if opts.Progress != nil {
+				name := s.Name
+				prog = func(n int64) {
+					if opts.Tokens != nil {
+						opts.Tokens(c.Tokens())
+					}
+					opts.Progress(name, n)
+				}
+			}
+			err = c.AddText(ctx, s.R, lm.ScanOptions{Pretokenized: s.Kind == SourceTokenized}, prog)
+		case SourceWordCounts:
+			err = c.AddWordCounts(s.R)
+		case SourceWordList:
+			err = c.AddWordList(s.R, s.Weight)
+		case SourceShards:
+			sr, ok := c.(shardReader)
+			if !ok {
+				return nil, fmt.Errorf("bundle: internal error: shards on the in-memory path")
+			}
+			err = sr.AddShards(ctx, s.R)
+		}
+		if err != nil {
+			return nil, fmt.Errorf("%s: %w", s.Name, err)
+		}
+	}
+	return names, nil
 }
