@@ -343,15 +343,7 @@ func bruteBlend(v *OverlayView, ctx []uint32, prefix string, lo, hi uint32, k in
 		}
 		all = append(all, Scored{w, v.LogProb(ctx, w)})
 	}
-	slices.SortFunc(all, func(a, b Scored) int {
-		if better(a, b) {
-			return -1
-		}
-		if better(b, a) {
-			return 1
-		}
-		return 0
-	})
+	slices.SortFunc(all, compareScored)
 	return all[:min(k, len(all))]
 }
 

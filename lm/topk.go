@@ -18,6 +18,17 @@ func better(a, b Scored) bool {
 	return a.ID < b.ID
 }
 
+// compareScored orders results as better does, for sorting.
+func compareScored(a, b Scored) int {
+	switch {
+	case better(a, b):
+		return -1
+	case better(b, a):
+		return 1
+	}
+	return 0
+}
+
 // topBuf keeps the k best entries seen, best first.
 type topBuf struct {
 	k   int

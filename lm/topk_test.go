@@ -18,15 +18,7 @@ func bruteTopK(m *Model, ctx []uint32, lo, hi uint32, k int) []Scored {
 		}
 		all = append(all, Scored{w, m.LogProb(ctx, w)})
 	}
-	slices.SortFunc(all, func(a, b Scored) int {
-		if better(a, b) {
-			return -1
-		}
-		if better(b, a) {
-			return 1
-		}
-		return 0
-	})
+	slices.SortFunc(all, compareScored)
 	return all[:min(k, len(all))]
 }
 
