@@ -40,10 +40,13 @@ func (e *Engine) initCorrector() error {
 		return e.model.LM.LogProb(ctx, w)
 	}
 	c, err := correct.New(lexEdges{e.model.Lex}, scorer, correct.Options{
-		Layout:         e.opts.Layout,
-		Keyboard:       e.opts.Keyboard,
-		MaxStates:      max(e.opts.CorrectionStates, 0),
-		ApplyThreshold: e.opts.AutoApplyConfidence,
+		Layout:    e.opts.Layout,
+		Keyboard:  e.opts.Keyboard,
+		MaxStates: max(e.opts.CorrectionStates, 0),
+		// Alternatives to a correctly spelled word would be noise: offer
+		// them only when fairly likely (common practice, no source).
+		KnownOfferConfidence: 0.3,
+		ApplyThreshold:       e.opts.AutoApplyConfidence,
 		Known: func(w string) bool {
 			return e.user.ov.Load().View().Known(w)
 		},
@@ -109,7 +112,7 @@ func (e *Engine) correctField(corr *correct.Corrector, q query, head, field stri
 	var buf [4]correct.Candidate
 	cands, dec := corr.Correct(field, ctx, 3, buf[:0])
 	var best *Correction
-	if len(cands) > 0 && (dec.Confidence >= knownOfferConfidence || !e.knows(q, field)) {
+	if len(cands) > 0 {
 		best = &Correction{Typed: field, Replacement: cands[0].Word, Confidence: dec.Confidence, Apply: dec.Apply}
 		for _, x := range cands[1:] {
 			best.Alternatives = append(best.Alternatives, x.Word)
@@ -124,25 +127,6 @@ func (e *Engine) correctField(corr *correct.Corrector, q query, head, field stri
 		}
 	}
 	return best
-}
-
-// knownOfferConfidence is the confidence below which no alternative to a
-// word the lexicon or the user knows is even offered: a correctly spelled
-// word should not come with noise (common practice, no source).
-const knownOfferConfidence = 0.3
-
-// knows reports whether the typed field (punctuation stripped, folded) is a
-// word of the lexicon or one the user has taught.
-func (e *Engine) knows(q query, field string) bool {
-	w := strings.TrimFunc(field, func(r rune) bool { return !isWordRune(r) })
-	if w == "" {
-		return false
-	}
-	w = lm.Fold(w)
-	if _, ok := e.model.Lex.ID(w); ok {
-		return true
-	}
-	return q.view != nil && q.view.Known(w)
 }
 
 // correctPrefix proposes a correction for a partial word that cannot start

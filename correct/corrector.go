@@ -85,6 +85,10 @@ type Options struct {
 	// ApplyThreshold is the confidence at or above which an unknown typed
 	// word is replaced on space. Default 0.5.
 	ApplyThreshold float64
+	// KnownOfferConfidence is the confidence below which no alternative to
+	// a word the lexicon or Known knows is offered at all, so that correctly
+	// spelled words do not come with noise. 0 (the default) offers them all.
+	KnownOfferConfidence float64
 	// KnownMargin is how many nats an alternative must out-score a word the
 	// lexicon or Known knows before it may be applied. Default 10.
 	KnownMargin float64
@@ -110,12 +114,12 @@ type Options struct {
 }
 
 func (o *Options) defaults() error {
-	for _, v := range []float64{o.MaxCost, o.LMWeight, o.ApplyThreshold, o.KnownMargin, o.SpaceCost} {
+	for _, v := range []float64{o.MaxCost, o.LMWeight, o.ApplyThreshold, o.KnownOfferConfidence, o.KnownMargin, o.SpaceCost} {
 		if v < 0 || math.IsNaN(v) || math.IsInf(v, 0) {
 			return fmt.Errorf("%w: negative or non-finite value %v", ErrOptions, v)
 		}
 	}
-	if o.ApplyThreshold > 1 || o.UnknownLogProb > 0 || math.IsNaN(o.UnknownLogProb) || math.IsInf(o.UnknownLogProb, 0) {
+	if o.ApplyThreshold > 1 || o.KnownOfferConfidence > 1 || o.UnknownLogProb > 0 || math.IsNaN(o.UnknownLogProb) || math.IsInf(o.UnknownLogProb, 0) {
 		return fmt.Errorf("%w: threshold above one or positive log-probability", ErrOptions)
 	}
 	def := func(v *float64, d float64) {
@@ -306,6 +310,9 @@ func (c *Corrector) Correct(typed string, context []uint32, max int, dst []Candi
 		return dst, Decision{}
 	}
 	conf := math.Exp(dst[0].Score-keep) / z
+	if known && conf < o.KnownOfferConfidence {
+		return dst[:0], Decision{} // a known word is left alone, not even offered
+	}
 	apply := conf >= o.ApplyThreshold
 	if known && (!inLex || dst[0].Score-keep < o.KnownMargin) {
 		apply = false // a user's own word is never replaced on space
