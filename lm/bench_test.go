@@ -48,14 +48,18 @@ func benchModel(b *testing.B, qbits int) built {
 }
 
 // BenchmarkTopK measures next-word prediction for 2-word contexts taken
-// from the test text, with and without a typed-prefix restriction.
+// from the test text, with and without a typed-prefix restriction, and a
+// bigram-context LogProb, for the version-2 layout (plain word IDs, the
+// baseline) and the current one (ranked records at the highest order).
 func BenchmarkTopK(b *testing.B) {
 	x := benchModel(b, 8)
 	test := strings.Fields(readFile(b, filepath.Join("testdata", "opticks-test.txt")))
 	var ctxs [][]uint32
+	var nexts []uint32
 	var prefixes [][2]uint32
 	for i := 2; i < len(test) && len(ctxs) < 512; i++ {
 		ctxs = append(ctxs, x.ids(b, test[i-2:i]))
+		nexts = append(nexts, x.ids(b, test[i:i+1])[0])
 		p := test[i][:min(2, len(test[i]))]
 		lo := sort.SearchStrings(x.b.Vocab, p)
 		hi := sort.Search(len(x.b.Vocab), func(j int) bool {
@@ -63,34 +67,53 @@ func BenchmarkTopK(b *testing.B) {
 		})
 		prefixes = append(prefixes, [2]uint32{uint32(lo), uint32(hi)})
 	}
-	V := uint32(x.m.VocabSize())
-	dst := make([]Scored, 0, MaxK)
-	b.Run("next-word/k=3", func(b *testing.B) {
-		b.ReportAllocs()
-		i := 0
-		for b.Loop() {
-			dst = x.m.TopK(ctxs[i%len(ctxs)], 0, V, 3, dst[:0])
-			i++
+	for _, ver := range []int{2, sectionVersion} {
+		sec, err := AppendSection(nil, x.b, LayoutOptions{QuantBits: 8, Version: ver})
+		if err != nil {
+			b.Fatal(err)
 		}
-	})
-	b.Run("prefix2/k=3", func(b *testing.B) {
-		b.ReportAllocs()
-		i := 0
-		for b.Loop() {
-			r := prefixes[i%len(prefixes)]
-			dst = x.m.TopK(ctxs[i%len(ctxs)], r[0], r[1], 3, dst[:0])
-			i++
+		m, err := LoadSection(sec)
+		if err != nil {
+			b.Fatal(err)
 		}
-	})
-	b.Run("logprob", func(b *testing.B) {
-		b.ReportAllocs()
-		i := 0
-		for b.Loop() {
-			c := ctxs[i%len(ctxs)]
-			x.m.LogProb(c[:1], c[1])
-			i++
-		}
-	})
+		V := uint32(m.VocabSize())
+		dst := make([]Scored, 0, MaxK)
+		b.Run(fmt.Sprintf("v%d/next-word/k=3", ver), func(b *testing.B) {
+			b.ReportAllocs()
+			i := 0
+			for b.Loop() {
+				dst = m.TopK(ctxs[i%len(ctxs)], 0, V, 3, dst[:0])
+				i++
+			}
+		})
+		b.Run(fmt.Sprintf("v%d/prefix2/k=3", ver), func(b *testing.B) {
+			b.ReportAllocs()
+			i := 0
+			for b.Loop() {
+				r := prefixes[i%len(prefixes)]
+				dst = m.TopK(ctxs[i%len(ctxs)], r[0], r[1], 3, dst[:0])
+				i++
+			}
+		})
+		b.Run(fmt.Sprintf("v%d/logprob", ver), func(b *testing.B) {
+			b.ReportAllocs()
+			i := 0
+			for b.Loop() {
+				c := ctxs[i%len(ctxs)]
+				m.LogProb(c[:1], c[1])
+				i++
+			}
+		})
+		b.Run(fmt.Sprintf("v%d/logprob-trigram", ver), func(b *testing.B) {
+			b.ReportAllocs()
+			i := 0
+			for b.Loop() {
+				j := i % len(ctxs)
+				m.LogProb(ctxs[j], nexts[j])
+				i++
+			}
+		})
+	}
 }
 
 // BenchmarkLayout reports the size of the n-gram section per stored n-gram.

@@ -33,7 +33,7 @@ func (m *Model) Check() error {
 		if err := checkCodes(l.probs, l.probBook, n, "probability"); err != nil {
 			return err
 		}
-		if n > 1 {
+		if n > 1 && !l.ranked { // ranks are checked with their groups
 			for p := range l.size {
 				if w := l.words.at(p); w >= uint64(V) {
 					return corrupt(0, "order %d entry %d: word id %d of %d", n, p, w, V)
@@ -101,9 +101,21 @@ func (m *Model) checkSuccessors(l *level) error {
 	if s := l.start.at(0); s != 0 {
 		return corrupt(0, "order %d: start array begins at %d", n, s)
 	}
-	if e := l.start.at(C); e != uint64(next.size) {
-		return corrupt(0, "order %d: start array ends at %d, order %d has %d entries", n, e, n+1, next.size)
+	end := uint64(next.size)
+	if next.ranked {
+		end = next.recBits
 	}
+	if e := l.start.at(C); e != end {
+		return corrupt(0, "order %d: start array ends at %d, order %d needs %d", n, e, n+1, end)
+	}
+	var keys []uint32 // this level's n-grams, to find the suffix groups of ranked records
+	if next.ranked {
+		var ok bool
+		if keys, ok = m.levelKeys(n); !ok {
+			return corrupt(0, "order %d: successor groups do not tile the levels", n)
+		}
+	}
+	records := 0
 	nb, err := checkRank(l.big, n, "top-list")
 	if err != nil {
 		return err
@@ -112,14 +124,39 @@ func (m *Model) checkSuccessors(l *level) error {
 		return corrupt(0, "order %d: top array holds %d offsets, want %d", n, l.top.n, want)
 	}
 	b := 0 // top lists seen
-	for c := range C {
+	nctx := 0
+	for e := range l.size {
+		if !l.has.get(e) {
+			continue
+		}
+		c := nctx
+		nctx++
 		lo64, hi64 := l.start.at(c), l.start.at(c+1)
-		if hi64 <= lo64 || hi64 > uint64(next.size) {
+		if hi64 <= lo64 || hi64 > end {
 			return corrupt(0, "order %d context %d: successor group [%d, %d)", n, c, lo64, hi64)
 		}
-		lo, hi := int(lo64), int(hi64)
+		var key []uint32
+		if next.ranked {
+			key = keys[e*n : (e+1)*n]
+		}
+		nd, ok := m.groupNode(l, e, key)
+		if !ok || nd.ctx != c {
+			return corrupt(0, "order %d context %d: successor group [%d, %d) cannot be read", n, c, lo64, hi64)
+		}
+		lo, hi := nd.lo, nd.hi
+		if nd.ranked {
+			records += hi - lo
+			for p := lo; p < hi; p++ {
+				if r := next.rankAt(&nd, p); r >= uint64(nd.sn) || (p > lo && r <= next.rankAt(&nd, p-1)) {
+					return corrupt(0, "order %d context %d: rank %d of record %d out of order or past its suffix's %d successors", n, c, r, p, nd.sn)
+				}
+				if code := bitsAt(next.recs, nd.base+uint64(p)*nd.rec+uint64(nd.rw), next.recCode); next.probBook != nil && code >= uint64(len(next.probBook)) {
+					return corrupt(0, "order %d context %d: record %d code %d, codebook has %d", n, c, p, code, len(next.probBook))
+				}
+			}
+		}
 		for p := lo + 1; p < hi; p++ {
-			if next.words.at(p-1) >= next.words.at(p) {
+			if m.wordAt(&nd, p-1) >= m.wordAt(&nd, p) {
 				return corrupt(0, "order %d entry %d: successors not sorted strictly by word", n+1, p)
 			}
 		}
@@ -142,11 +179,11 @@ func (m *Model) checkSuccessors(l *level) error {
 					return corrupt(0, "order %d context %d: top-list offset %d repeated", n, c, off)
 				}
 			}
-			if i > 0 && next.prob(listed[i]) > next.prob(listed[i-1]) {
+			if i > 0 && m.probAt(&nd, listed[i]) > m.probAt(&nd, listed[i-1]) {
 				return corrupt(0, "order %d context %d: top list not in probability order", n, c)
 			}
 		}
-		last := next.prob(listed[TopListLen-1])
+		last := m.probAt(&nd, listed[TopListLen-1])
 	scan:
 		for p := lo; p < hi; p++ {
 			for _, q := range listed {
@@ -154,11 +191,14 @@ func (m *Model) checkSuccessors(l *level) error {
 					continue scan
 				}
 			}
-			if next.prob(p) > last {
+			if m.probAt(&nd, p) > last {
 				return corrupt(0, "order %d context %d: entry %d is more probable than the top list's last", n, c, p)
 			}
 		}
 		b++
+	}
+	if next.ranked && records != next.size {
+		return corrupt(0, "order %d: groups hold %d ranked records, the count says %d", n+1, records, next.size)
 	}
 	return nil
 }

@@ -36,14 +36,14 @@ func (m *Model) Backoff(vocab []string) *Backoff {
 		l, next, cur := &m.lv[n-1], &m.lv[n], &b.Levels[n-1]
 		nl := Level{N: n + 1, IDs: make([]uint32, 0, next.size*(n+1)), LogP: make([]float64, 0, next.size)}
 		for e := range min(l.size, cur.Len()) {
-			lo, hi, c, ok := m.children(l, e)
-			if !ok || lo != len(nl.LogP) {
+			nd, ok := m.groupNode(l, e, cur.Key(e))
+			if !ok || (!nd.ranked && nd.lo != len(nl.LogP)) {
 				continue // a valid model's groups tile the next level in order
 			}
-			cur.Bow[e] = l.bowAt(c)
-			for p := lo; p < hi; p++ {
-				nl.IDs = append(append(nl.IDs, cur.Key(e)...), uint32(next.words.at(p)))
-				nl.LogP = append(nl.LogP, next.prob(p))
+			cur.Bow[e] = nd.bow
+			for p := nd.lo; p < nd.hi; p++ {
+				nl.IDs = append(append(nl.IDs, cur.Key(e)...), uint32(m.wordAt(&nd, p)))
+				nl.LogP = append(nl.LogP, m.probAt(&nd, p))
 			}
 		}
 		nl.Bow = make([]float64, len(nl.LogP))

@@ -20,6 +20,11 @@ type level struct {
 	size              int // number of entries (the vocabulary size at order 1)
 	probBook, bowBook codebook
 	words, probs      vec
+	// ranked records (version 3, highest order only): see ranked.go
+	ranked  bool
+	recs    []uint64
+	recBits uint64
+	recCode uint // probability code width inside a record
 	// successors of this level's entries in the next level
 	has   rankBits
 	start monoSeq
@@ -62,7 +67,11 @@ func (m *Model) children(l *level, e int) (lo, hi, c int, ok bool) {
 		return 0, 0, 0, false
 	}
 	lo, hi = int(l.start.at(c)), int(l.start.at(c+1))
-	if lo < 0 || hi > m.lv[l.n].size || lo > hi { // start values past 2^63 read as negative ints
+	limit := m.lv[l.n].size
+	if m.lv[l.n].ranked {
+		limit = int(m.lv[l.n].recBits) // starts are bit offsets into the records
+	}
+	if lo < 0 || hi > limit || lo > hi { // start values past 2^63 read as negative ints
 		return 0, 0, 0, false
 	}
 	return lo, hi, c, true
@@ -93,12 +102,20 @@ func (l *level) lowerBound(lo, hi int, w uint32) int {
 	return lo
 }
 
-// node is a context found in the model: its successor group and back-off weight.
+// node is a context found in the model: its successor group and back-off
+// weight. For a group of ranked records (ranked.go) lo, hi are positions
+// 0..count and the other fields locate the records and the suffix group.
 type node struct {
 	lo, hi int
 	bow    float64
 	lvl    int // level index of the successors
 	ctx    int // context index in the parent level
+
+	ranked  bool
+	base    uint64 // bit offset of the group's first record
+	rw      uint   // rank width
+	rec     uint64 // record width
+	slo, sn int    // suffix group: first entry and size, one level down
 }
 
 // contexts fills dst with the successor groups of every suffix of ctx that is
@@ -138,6 +155,12 @@ func (m *Model) contexts(ctx []uint32, dst *[MaxOrder]node) []node {
 		}
 		out = append(out, node{lo: lo, hi: hi, bow: l.bowAt(c), lvl: len(h), ctx: c})
 	}
+	// Only the longest context can own ranked records; its suffix is next.
+	if len(out) > 0 && m.lv[out[0].lvl].ranked {
+		if len(out) < 2 || out[1].lvl != out[0].lvl-1 || !m.rankedGroup(&out[0], &out[1]) {
+			out = append(out[:0], out[1:]...) // damaged section: drop the group
+		}
+	}
 	return out
 }
 
@@ -154,10 +177,10 @@ func (m *Model) LogProb(ctx []uint32, w uint32) float64 {
 
 func (m *Model) score(nodes []node, w uint32) float64 {
 	acc := 0.0
-	for _, nd := range nodes {
-		l := &m.lv[nd.lvl]
-		if p := l.search(nd.lo, nd.hi, w); p >= 0 {
-			return acc + l.prob(p)
+	for i := range nodes {
+		nd := &nodes[i]
+		if p := m.findIn(nd, w); p >= 0 {
+			return acc + m.probAt(nd, p)
 		}
 		acc += nd.bow
 	}

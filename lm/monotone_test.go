@@ -1,6 +1,7 @@
 package lm
 
 import (
+	"encoding/binary"
 	"math/rand/v2"
 	"slices"
 	"testing"
@@ -33,34 +34,57 @@ func TestMonoSeqRoundTrip(t *testing.T) {
 	}
 }
 
-// TestLayoutVersionsAgree checks that the current layout answers exactly as
-// the version-1 layout (plain starts) does.
+// TestLayoutVersionsAgree checks that every layout version answers exactly
+// as the version-1 layout (plain starts, plain word IDs) does, on every
+// (context, word) pair of the small model and on top-k with and without an
+// ID range, and that the newest layout is chosen for a suffix-closed model.
 func TestLayoutVersionsAgree(t *testing.T) {
-	x := buildText(t, smallText(t), 3, ScanOptions{Pretokenized: true}, 8)
-	var models [2]*Model
-	for i, ver := range []int{1, 0} {
-		sec, err := AppendSection(nil, x.b, LayoutOptions{QuantBits: 8, Version: ver})
-		if err != nil {
-			t.Fatal(err)
-		}
-		if models[i], err = LoadSection(sec); err != nil {
-			t.Fatal(err)
-		}
-		if err := models[i].Check(); err != nil {
-			t.Fatalf("version %d: Check: %v", ver, err)
-		}
-	}
-	V := uint32(models[0].VocabSize())
-	for _, ctx := range [][]uint32{nil, {1}, {5, 9}, {x.ids(t, []string{"the"})[0]}, x.ids(t, []string{"of", "the"})} {
-		for w := range V {
-			if a, b := models[0].LogProb(ctx, w), models[1].LogProb(ctx, w); a != b {
-				t.Fatalf("LogProb(%v, %d): version 1 %v, version 2 %v", ctx, w, a, b)
+	for _, order := range []int{3, 4} {
+		x := buildText(t, smallText(t), order, ScanOptions{Pretokenized: true}, 8)
+		versions := []int{1, 2, 3}
+		models := make([]*Model, len(versions))
+		for i, ver := range versions {
+			sec, err := AppendSection(nil, x.b, LayoutOptions{QuantBits: 8, Version: ver})
+			if err != nil {
+				t.Fatal(err)
+			}
+			if got := binary.LittleEndian.Uint32(sec); got != uint32(ver) {
+				t.Fatalf("order %d: asked for version %d, wrote %d", order, ver, got)
+			}
+			if models[i], err = LoadSection(sec); err != nil {
+				t.Fatal(err)
+			}
+			if err := models[i].Check(); err != nil {
+				t.Fatalf("order %d version %d: Check: %v", order, ver, err)
 			}
 		}
-		a := models[0].TopK(ctx, 0, V, 5, nil)
-		b := models[1].TopK(ctx, 0, V, 5, nil)
-		if !slices.Equal(a, b) {
-			t.Errorf("TopK(%v): version 1 %v, version 2 %v", ctx, a, b)
+		V := uint32(models[0].VocabSize())
+		the, of := x.ids(t, []string{"the"})[0], x.ids(t, []string{"of"})[0]
+		ctxs := [][]uint32{nil, {1}, {5, 9}, {the}, {of, the}, {the, of, the}}
+		for a := range min(V, 40) {
+			ctxs = append(ctxs, []uint32{a, the}, []uint32{of, a}, []uint32{the, a, of})
+		}
+		for _, m := range models[1:] {
+			for _, ctx := range ctxs {
+				for w := range V {
+					if a, b := models[0].LogProb(ctx, w), m.LogProb(ctx, w); a != b {
+						t.Fatalf("order %d LogProb(%v, %d): version 1 %v, newer %v", order, ctx, w, a, b)
+					}
+				}
+				for _, r := range [][2]uint32{{0, V}, {V / 4, V / 2}, {the, the + 30}} {
+					a := models[0].TopK(ctx, r[0], r[1], 5, nil)
+					b := m.TopK(ctx, r[0], r[1], 5, nil)
+					if !slices.Equal(a, b) {
+						t.Errorf("order %d TopK(%v, %v): version 1 %v, newer %v", order, ctx, r, a, b)
+					}
+				}
+			}
+			v1, vn := models[0].Backoff(x.b.Vocab), m.Backoff(x.b.Vocab)
+			for n := range order {
+				if !slices.Equal(v1.Levels[n].IDs, vn.Levels[n].IDs) || !slices.Equal(v1.Levels[n].LogP, vn.Levels[n].LogP) {
+					t.Errorf("order %d: Backoff level %d differs between version 1 and a newer layout", order, n+1)
+				}
+			}
 		}
 	}
 }
@@ -68,11 +92,18 @@ func TestLayoutVersionsAgree(t *testing.T) {
 // TestMonoDamageNoPanic flips every byte of a small current-layout section:
 // loading, queries and Check must never panic (bad bytes never panic).
 func TestMonoDamageNoPanic(t *testing.T) {
-	x := buildText(t, smallText(t), 2, ScanOptions{Pretokenized: true}, 4)
-	sec, err := AppendSection(nil, x.b, LayoutOptions{QuantBits: 4})
-	if err != nil {
-		t.Fatal(err)
+	for _, order := range []int{2, 3} {
+		x := buildText(t, smallText(t), order, ScanOptions{Pretokenized: true}, 4)
+		sec, err := AppendSection(nil, x.b, LayoutOptions{QuantBits: 4})
+		if err != nil {
+			t.Fatal(err)
+		}
+		damage(sec)
 	}
+}
+
+// damage flips every byte of sec in turn and runs loading, queries and Check.
+func damage(sec []byte) {
 	for i := range sec {
 		b := slices.Clone(sec)
 		b[i] ^= 0xa5

@@ -105,3 +105,48 @@ func buildRank(set []bool) (w []uint64, samples []uint64) {
 	}
 	return w, samples
 }
+
+// bitsAt returns the width bits (1..64) of w starting at bit off, least
+// significant first. The caller guarantees that off+width lies within the
+// words before the spare one.
+func bitsAt(w []uint64, off uint64, width uint) uint64 {
+	wi, sh := off>>6, uint(off&63)
+	x := w[wi] >> sh
+	if sh+width > 64 {
+		x |= w[wi+1] << (64 - sh)
+	}
+	if width < 64 {
+		x &= 1<<width - 1
+	}
+	return x
+}
+
+// bitStream collects values of varying widths into one packed bit stream.
+type bitStream struct {
+	w []uint64
+	n uint64 // bits written
+}
+
+func (s *bitStream) put(x uint64, width uint) {
+	for uint64(len(s.w))*64 < s.n+uint64(width)+64 {
+		s.w = append(s.w, 0)
+	}
+	if width < 64 {
+		x &= 1<<width - 1
+	}
+	wi, sh := s.n>>6, uint(s.n&63)
+	s.w[wi] |= x << sh
+	if sh+width > 64 {
+		s.w[wi+1] |= x >> (64 - sh)
+	}
+	s.n += uint64(width)
+}
+
+// words returns the stream with exactly one spare word after its last bit.
+func (s *bitStream) words() []uint64 {
+	need := int((s.n+63)/64) + 1
+	for len(s.w) < need {
+		s.w = append(s.w, 0)
+	}
+	return s.w[:need]
+}

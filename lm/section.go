@@ -16,9 +16,12 @@ import (
 //	directory 32 bytes per array: tag, width, count, offset, words
 //	arrays   8-byte aligned packed vectors (64-bit words, one spare word each)
 const (
-	// sectionVersion is the layout written; version 1 (plain successor
-	// starts) is still read.
-	sectionVersion = 2
+	// sectionVersion is the newest layout written: version 3 stores the
+	// highest order of a suffix-closed model as ranks among the successors
+	// of each context's suffix (ranked records). Version 2 (Elias-Fano
+	// successor starts, plain word IDs) is written for models that are not
+	// suffix-closed or of order below 3; versions 1 and 2 are still read.
+	sectionVersion = 3
 	headerSize     = 40
 	dirEntrySize   = 32
 	// TopListLen is the number of best successors kept in probability order
@@ -45,6 +48,8 @@ const (
 	tagBigRank   = 10
 	tagTop       = 11 // top lists: offsets inside the successor group
 	tagTree      = 16 // 16+level: unigram maximum tree
+	tagRecords   = 40 // highest order of a version-3 section: rank and probability code per entry
+	tagRecCount  = 41 // number of entries in the ranked records
 )
 
 func tag(kind, order int) uint32 { return uint32(kind<<8 | order) }
@@ -55,8 +60,10 @@ type LayoutOptions struct {
 	// 4..16 quantizes through per-order codebooks, 0 stores float64 values
 	// losslessly. The zero value means lossless; build tools default to 8.
 	QuantBits int
-	// Version selects the layout version: 0 means the current one; 1 writes
-	// the previous layout (plain successor starts), for compatibility tests.
+	// Version selects the layout version: 0 means the newest one the model
+	// allows (3 for a suffix-closed model of order ≥ 3, else 2); 1 and 2
+	// write the older layouts (plain successor starts; plain word IDs at
+	// every order), for compatibility tests.
 	Version int
 }
 
@@ -72,9 +79,9 @@ func AppendSection(dst []byte, b *Backoff, opts LayoutOptions) ([]byte, error) {
 	q := opts.QuantBits
 	version := uint32(sectionVersion)
 	switch opts.Version {
-	case 0:
-	case 1:
-		version = 1
+	case 0, 3:
+	case 1, 2:
+		version = uint32(opts.Version)
 	default:
 		return nil, fmt.Errorf("%w: layout version %d", ErrSectionVersion, opts.Version)
 	}
@@ -109,6 +116,17 @@ func AppendSection(dst []byte, b *Backoff, opts LayoutOptions) ([]byte, error) {
 			allCodes[n][i] = books[n].encode(x)
 		}
 	}
+	// Version 3: the highest order as ranked records, when the model allows.
+	var recs bitStream
+	var recStart []uint64
+	if version == 3 {
+		var ok bool
+		recs, recStart, ok = rankRecords(b, allCodes[N-1], books[N-1].width())
+		if !ok {
+			version = 2
+		}
+	}
+	ranked := version == 3
 	var unigramCodes []uint64
 	var probBook0 codebook
 	for n := 1; n <= N; n++ {
@@ -126,16 +144,22 @@ func AppendSection(dst []byte, b *Backoff, opts LayoutOptions) ([]byte, error) {
 			add(tag(tagProbBook, n), 64, floatBits(pb))
 			add(tag(tagBowBook, n), 64, floatBits(bb))
 		}
-		if n == 1 {
+		switch {
+		case n == 1:
 			unigramCodes, probBook0 = codes, pb
-		} else {
+		case n == N && ranked:
+			arrs = append(arrs, arr{tag: tag(tagRecords, n), width: 1, n: int(recs.n), words: recs.words()})
+			add(tag(tagRecCount, n), 64, []uint64{uint64(lv.Len())})
+		default:
 			ws := make([]uint64, lv.Len())
 			for i := range ws {
 				ws[i] = uint64(lv.Key(i)[n-1])
 			}
 			add(tag(tagWords, n), wbits, ws)
 		}
-		add(tag(tagProbs, n), pb.width(), codes)
+		if n < N || !ranked {
+			add(tag(tagProbs, n), pb.width(), codes)
+		}
 		if n == N {
 			continue
 		}
@@ -197,6 +221,9 @@ func AppendSection(dst []byte, b *Backoff, opts LayoutOptions) ([]byte, error) {
 			}
 		}
 		start = append(start, uint64(next.Len()))
+		if ranked && n == N-1 {
+			start = recStart // bit offsets of the groups in the ranked records
+		}
 		hw, hs := buildRank(has)
 		arrs = append(arrs, arr{tag: tag(tagHas, n), width: 1, n: len(has), words: hw})
 		add(tag(tagHasRank, n), 32, hs)
@@ -298,8 +325,8 @@ func LoadSection(b []byte) (*Model, error) {
 	for i := range h {
 		h[i] = le.Uint32(b[4*i:])
 	}
-	if h[0] != 1 && h[0] != sectionVersion {
-		return nil, fmt.Errorf("%w: section version %d, this library reads 1 and %d", ErrSectionVersion, h[0], sectionVersion)
+	if h[0] < 1 || h[0] > sectionVersion {
+		return nil, fmt.Errorf("%w: section version %d, this library reads 1 to %d", ErrSectionVersion, h[0], sectionVersion)
 	}
 	version := h[0]
 	N, V, q, topT := int(h[1]), int(h[2]), int(h[3]), int(h[4])
@@ -312,6 +339,8 @@ func LoadSection(b []byte) (*Model, error) {
 		return nil, corrupt(12, "quantization bits %d", q)
 	case topT != TopListLen:
 		return nil, corrupt(16, "top list length %d", topT)
+	case version == 3 && N < 3:
+		return nil, corrupt(4, "order %d in a version-3 section (ranked records need order 3 or more)", N)
 	case int(h[5]) >= V || int(h[6]) >= V || int(h[7]) >= V:
 		return nil, corrupt(20, "special token id out of range")
 	}
@@ -377,6 +406,21 @@ func LoadSection(b []byte) (*Model, error) {
 				return nil, err
 			}
 			l.size = V
+		} else if version == 3 && n == N {
+			rv, err := need(tag(tagRecords, n), -1, 1)
+			if err != nil {
+				return nil, err
+			}
+			cv, err := need(tag(tagRecCount, n), 1, 64)
+			if err != nil {
+				return nil, err
+			}
+			// A record holds at least one rank bit and its code.
+			if cnt := cv.at(0); cnt > uint64(rv.n)/(uint64(cw)+1) {
+				return nil, corrupt(0, "order %d: %d ranked records cannot fit %d bits", n, cnt, rv.n)
+			}
+			l.ranked, l.recs, l.recBits, l.recCode = true, rv.w, uint64(rv.n), cw
+			l.size = int(cv.at(0))
 		} else {
 			if l.words, err = need(tag(tagWords, n), -1, 0); err != nil {
 				return nil, err
@@ -445,8 +489,12 @@ func LoadSection(b []byte) (*Model, error) {
 	// Successor counts must agree with the next level's size.
 	for n := 1; n < N; n++ {
 		l := &m.lv[n-1]
-		if int(l.start.at(l.start.n-1)) != m.lv[n].size {
-			return nil, corrupt(0, "order %d: successor table ends at %d, order %d has %d entries", n, l.start.at(l.start.n-1), n+1, m.lv[n].size)
+		end := m.lv[n].size
+		if m.lv[n].ranked {
+			end = int(m.lv[n].recBits)
+		}
+		if int(l.start.at(l.start.n-1)) != end {
+			return nil, corrupt(0, "order %d: successor table ends at %d, order %d needs %d", n, l.start.at(l.start.n-1), n+1, end)
 		}
 	}
 	for lvl, size := 1, V; size > treeFanout; lvl++ {

@@ -25,8 +25,14 @@ func smallText(t testing.TB) string {
 // monotone_test.go and is fuzzed.
 func smallSection(t testing.TB, order, qbits int) ([]byte, *Backoff) {
 	t.Helper()
+	return smallSectionV(t, order, qbits, 1)
+}
+
+// smallSectionV is smallSection in a chosen layout version.
+func smallSectionV(t testing.TB, order, qbits, version int) ([]byte, *Backoff) {
+	t.Helper()
 	x := buildText(t, smallText(t), order, ScanOptions{Pretokenized: true}, qbits)
-	sec, err := AppendSection(nil, x.b, LayoutOptions{QuantBits: qbits, Version: 1})
+	sec, err := AppendSection(nil, x.b, LayoutOptions{QuantBits: qbits, Version: version})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -120,8 +126,9 @@ func isLoadError(err error) bool {
 // compress/flate's TestTruncatedStreams does for streams): each prefix must
 // be refused with ErrCorrupt, since the last array reaches the last byte.
 func TestLoadSectionTruncated(t *testing.T) {
-	for _, q := range []int{0, 8} {
-		sec, _ := smallSection(t, 3, q)
+	for _, c := range []struct{ q, version int }{{0, 1}, {8, 1}, {0, sectionVersion}, {8, sectionVersion}} {
+		q := c.q
+		sec, _ := smallSectionV(t, 3, q, c.version)
 		for i := range len(sec) {
 			m, err := LoadSection(sec[:i])
 			if !errors.Is(err, ErrCorrupt) {
@@ -140,9 +147,9 @@ func TestLoadSectionTruncated(t *testing.T) {
 // Loading must fail with a documented error or give a model that answers
 // every query without panicking.
 func TestLoadSectionFlipped(t *testing.T) {
-	for _, c := range []struct{ order, q int }{{3, 8}, {2, 0}, {2, 4}} {
-		t.Run(fmt.Sprintf("order%d/q%d", c.order, c.q), func(t *testing.T) {
-			sec, _ := smallSection(t, c.order, c.q)
+	for _, c := range []struct{ order, q, version int }{{3, 8, 1}, {2, 0, 1}, {2, 4, 1}, {3, 8, sectionVersion}, {3, 0, sectionVersion}} {
+		t.Run(fmt.Sprintf("order%d/q%d/v%d", c.order, c.q, c.version), func(t *testing.T) {
+			sec, _ := smallSectionV(t, c.order, c.q, c.version)
 			var refused, loaded, caught int
 			buf := make([]byte, len(sec))
 			for i := range sec {
@@ -185,7 +192,7 @@ func TestLoadSectionHeader(t *testing.T) {
 		spoil func([]byte)
 		want  error
 	}{
-		{"version 3", set32(0, 3), ErrSectionVersion},
+		{"newer version", set32(0, sectionVersion+1), ErrSectionVersion},
 		{"version 0", set32(0, 0), ErrSectionVersion},
 		{"order 0", set32(4, 0), ErrCorrupt},
 		{"order 6", set32(4, 6), ErrCorrupt},

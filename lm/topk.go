@@ -95,9 +95,8 @@ func (m *Model) TopK(ctx []uint32, lo, hi uint32, k int, dst []Scored) []Scored 
 		return true
 	}
 	// Candidates from each successor group.
-	for _, nd := range nodes {
-		l := &m.lv[nd.lvl]
-		m.groupTop(l, nd, lo, hi, k, addCand)
+	for i := range nodes {
+		m.groupTop(&nodes[i], lo, hi, k, addCand)
 	}
 	if lo == 0 && hi == uint32(m.vocab) && k <= len(m.uniTop) {
 		for _, id := range m.uniTop[:k] {
@@ -115,12 +114,12 @@ func (m *Model) TopK(ctx []uint32, lo, hi uint32, k int, dst []Scored) []Scored 
 }
 
 // groupTop calls add for the best k entries of a successor group whose words lie in [lo, hi).
-func (m *Model) groupTop(l *level, nd node, lo, hi uint32, k int, add func(uint32) bool) {
+func (m *Model) groupTop(nd *node, lo, hi uint32, k int, add func(uint32) bool) {
 	glo, ghi := nd.lo, nd.hi
 	whole := lo == 0 && hi >= uint32(m.vocab)
 	if !whole {
-		glo = l.lowerBound(nd.lo, nd.hi, lo)
-		ghi = l.lowerBound(glo, nd.hi, hi)
+		glo = m.lowerIn(nd, nd.lo, nd.hi, lo)
+		ghi = m.lowerIn(nd, glo, nd.hi, hi)
 	}
 	if glo >= ghi {
 		return
@@ -133,7 +132,7 @@ func (m *Model) groupTop(l *level, nd node, lo, hi uint32, k int, add func(uint3
 			got := 0
 			for i := 0; got < k && i < TopListLen && (b*TopListLen+i) < parent.top.n; i++ {
 				off := parent.top.at(b*TopListLen + i) // unsigned: a 64-bit value may not fit an int
-				if off < uint64(ghi-glo) && add(uint32(l.words.at(glo+int(off)))) {
+				if off < uint64(ghi-glo) && add(uint32(m.wordAt(nd, glo+int(off)))) {
 					got++
 				}
 			}
@@ -145,7 +144,7 @@ func (m *Model) groupTop(l *level, nd node, lo, hi uint32, k int, add func(uint3
 	var t topBuf
 	t.k = min(k+3, MaxK) // room for the special tokens, which add refuses
 	for p := glo; p < ghi; p++ {
-		t.push(Scored{ID: uint32(l.words.at(p)), LogP: l.prob(p)})
+		t.push(Scored{ID: uint32(m.wordAt(nd, p)), LogP: m.probAt(nd, p)})
 	}
 	for _, s := range t.buf[:t.n] {
 		add(s.ID)

@@ -1,0 +1,245 @@
+package lm
+
+import "slices"
+
+// Ranked records: the highest order of a version-3 section.
+//
+// In a suffix-closed model every n-gram (h, w) of the highest order N has its
+// suffix (h′, w) at order N − 1, where h′ is h without its oldest word. So w
+// is one of the successors of h′, and it can be stored as its rank among them
+// — a number below F(h′), the size of h′'s successor group — instead of as a
+// word ID below the vocabulary size. Most contexts of a large model end in
+// words with few successors, so the ranks are much narrower than IDs (the
+// context-based remapping of Pibiri & Venturini 2017, "Efficient data
+// structures for massive n-gram datasets", SIGIR).
+//
+// Each successor group of order N is a run of records of w + c bits, w =
+// bitsFor(F(h′) − 1) and c the probability code width: the rank (w bits)
+// then the probability code (c bits). Groups follow each other in context
+// order, and the parent level's successor starts hold the bit offset of
+// each group instead of its first entry, so a group's record count is its
+// bit length over w + c. Ranks rise strictly inside a group because suffix
+// groups are sorted by word.
+
+// rankRecords lays out the highest order of b as ranked records with the
+// given probability codes of code width cw. It returns the stream and the
+// bit offset of each successor group (plus the total), or ok = false when b
+// is not suffix-closed or its order is below 3.
+func rankRecords(b *Backoff, codes []uint64, cw uint) (recs bitStream, starts []uint64, ok bool) {
+	N := b.Order()
+	if N < 3 {
+		return bitStream{}, nil, false
+	}
+	top, mid := &b.Levels[N-1], &b.Levels[N-2]
+	for g := 0; g < top.Len(); {
+		h := top.Key(g)[:N-1]
+		e := g
+		for e < top.Len() && equalIDs(top.Key(e)[:N-1], h) {
+			e++
+		}
+		slo, shi := keyPrefixRange(mid, h[1:])
+		if slo == shi {
+			return bitStream{}, nil, false
+		}
+		w := bitsFor(uint64(shi - slo - 1))
+		starts = append(starts, recs.n)
+		for i := g; i < e; i++ {
+			s := mid.Find(top.Key(i)[1:])
+			if s < slo || s >= shi {
+				return bitStream{}, nil, false
+			}
+			recs.put(uint64(s-slo), w)
+			recs.put(codes[i], cw)
+		}
+		g = e
+	}
+	return recs, append(starts, recs.n), true
+}
+
+// prefixRange returns the entries [lo, hi) of l whose keys begin with p.
+func keyPrefixRange(l *Level, p []uint32) (lo, hi int) {
+	n := len(p)
+	lo = searchKeys(l, func(k []uint32) bool { return slices.Compare(k[:n], p) >= 0 })
+	hi = searchKeys(l, func(k []uint32) bool { return slices.Compare(k[:n], p) > 0 })
+	return lo, hi
+}
+
+// searchKeys returns the first entry of l whose key satisfies f (f is
+// monotone over the sorted keys), or l.Len().
+func searchKeys(l *Level, f func([]uint32) bool) int {
+	lo, hi := 0, l.Len()
+	for lo < hi {
+		mid := int(uint(lo+hi) >> 1)
+		if f(l.Key(mid)) {
+			hi = mid
+		} else {
+			lo = mid + 1
+		}
+	}
+	return lo
+}
+
+// rankedGroup completes a context node whose successors are ranked records:
+// sfx is the node of the context's suffix, whose group (one level down)
+// holds the words the ranks point to. It returns false when the group's bit
+// range does not divide into records (only a damaged section does that).
+func (m *Model) rankedGroup(nd *node, sfx *node) bool {
+	l := &m.lv[nd.lvl]
+	F := sfx.hi - sfx.lo
+	if F <= 0 {
+		return false
+	}
+	w := bitsFor(uint64(F - 1))
+	rec := uint64(w + l.recCode)
+	bitsLen := uint64(nd.hi - nd.lo)
+	if bitsLen%rec != 0 {
+		return false
+	}
+	nd.ranked = true
+	nd.base = uint64(nd.lo)
+	nd.rw, nd.rec = w, rec
+	nd.slo, nd.sn = sfx.lo, F
+	nd.lo, nd.hi = 0, int(bitsLen/rec)
+	return true
+}
+
+// rankAt returns the rank stored in record p of a ranked node.
+func (l *level) rankAt(nd *node, p int) uint64 {
+	return bitsAt(l.recs, nd.base+uint64(p)*nd.rec, nd.rw)
+}
+
+// wordAt returns the word ID of entry p (a position in [nd.lo, nd.hi)) of
+// a node's successor group. A damaged rank gives an ID ≥ the vocabulary
+// size, which every caller rejects.
+func (m *Model) wordAt(nd *node, p int) uint64 {
+	l := &m.lv[nd.lvl]
+	if !nd.ranked {
+		return l.words.at(p)
+	}
+	r := l.rankAt(nd, p)
+	if r >= uint64(nd.sn) {
+		return uint64(m.vocab)
+	}
+	return m.lv[nd.lvl-1].words.at(nd.slo + int(r))
+}
+
+// probAt returns ln p of entry p of a node's successor group.
+func (m *Model) probAt(nd *node, p int) float64 {
+	l := &m.lv[nd.lvl]
+	if !nd.ranked {
+		return l.prob(p)
+	}
+	return l.probBook.value(bitsAt(l.recs, nd.base+uint64(p)*nd.rec+uint64(nd.rw), l.recCode))
+}
+
+// lowerIn returns the first position in [lo, hi) of a node's group whose
+// word is ≥ w.
+func (m *Model) lowerIn(nd *node, lo, hi int, w uint32) int {
+	l := &m.lv[nd.lvl]
+	if !nd.ranked {
+		return l.lowerBound(lo, hi, w)
+	}
+	// The first suffix successor ≥ w, as a rank; ranks ascend with words.
+	r := uint64(m.lv[nd.lvl-1].lowerBound(nd.slo, nd.slo+nd.sn, w) - nd.slo)
+	for lo < hi {
+		mid := int(uint(lo+hi) >> 1)
+		if l.rankAt(nd, mid) < r {
+			lo = mid + 1
+		} else {
+			hi = mid
+		}
+	}
+	return lo
+}
+
+// findIn returns the position of word w in a node's group, or -1.
+func (m *Model) findIn(nd *node, w uint32) int {
+	p := m.lowerIn(nd, nd.lo, nd.hi, w)
+	if p < nd.hi && m.wordAt(nd, p) == uint64(w) {
+		return p
+	}
+	return -1
+}
+
+// entryOf returns the entry of the n-gram h (n = len(h) ≥ 1) at its level.
+func (m *Model) entryOf(h []uint32) (int, bool) {
+	if len(h) == 0 || len(h) > m.order || h[0] >= uint32(m.vocab) {
+		return 0, false
+	}
+	e := int(h[0])
+	for j := 1; j < len(h); j++ {
+		lo, hi, _, ok := m.children(&m.lv[j-1], e)
+		if !ok || m.lv[j].ranked {
+			return 0, false
+		}
+		if e = m.lv[j].search(lo, hi, h[j]); e < 0 {
+			return 0, false
+		}
+	}
+	return e, true
+}
+
+// groupNode returns the successor group of entry e of level l as a node.
+// key is the entry's n-gram, needed only when the next level holds ranked
+// records (to find the suffix group).
+func (m *Model) groupNode(l *level, e int, key []uint32) (node, bool) {
+	lo, hi, c, ok := m.children(l, e)
+	if !ok {
+		return node{}, false
+	}
+	nd := node{lo: lo, hi: hi, bow: l.bowAt(c), lvl: l.n, ctx: c}
+	if !m.lv[l.n].ranked {
+		return nd, true
+	}
+	if len(key) != l.n || l.n < 2 {
+		return node{}, false
+	}
+	se, ok := m.entryOf(key[1:])
+	if !ok {
+		return node{}, false
+	}
+	sl := &m.lv[l.n-2]
+	slo, shi, sc, ok := m.children(sl, se)
+	if !ok {
+		return node{}, false
+	}
+	sfx := node{lo: slo, hi: shi, lvl: sl.n, ctx: sc}
+	if !m.rankedGroup(&nd, &sfx) {
+		return node{}, false
+	}
+	return nd, true
+}
+
+// levelKeys returns the n-grams of order n (< the ranked order), n IDs
+// each, flattened, by walking the successor groups from the unigrams. ok is
+// false when the groups do not tile the levels (a damaged section).
+func (m *Model) levelKeys(n int) (keys []uint32, ok bool) {
+	keys = make([]uint32, m.vocab)
+	for i := range keys {
+		keys[i] = uint32(i)
+	}
+	for j := 1; j < n; j++ {
+		l, next := &m.lv[j-1], &m.lv[j]
+		if next.ranked {
+			return nil, false
+		}
+		nk := make([]uint32, 0, next.size*(j+1))
+		for e := range l.size {
+			lo, hi, _, has := m.children(l, e)
+			if !has {
+				continue
+			}
+			if lo != len(nk)/(j+1) {
+				return nil, false
+			}
+			for p := lo; p < hi; p++ {
+				nk = append(append(nk, keys[e*j:(e+1)*j]...), uint32(next.words.at(p)))
+			}
+		}
+		if len(nk) != next.size*(j+1) {
+			return nil, false
+		}
+		keys = nk
+	}
+	return keys, true
+}
