@@ -10,7 +10,9 @@ import (
 // Scores holds, for every n-gram of order 2 and up of a model, the increase
 // in training-set relative entropy that removing that n-gram alone would
 // cause: the pruning criterion of Stolcke (1998), "Entropy-based pruning of
-// backoff language models". Score computes it; Prune and PruneScored use it.
+// backoff language models", with the history weights and, given counts, the
+// leave-one-out weighting that ScoreOptions choose. Score computes it; Prune
+// and PruneScored use it.
 type Scores struct {
 	// Delta[n-1][i] is the criterion D of n-gram i of order n (in nats).
 	// Delta[0] is nil: unigrams are never pruned. +Inf marks an n-gram whose
@@ -25,6 +27,16 @@ type ScoreOptions struct {
 	// Progress, if not nil, is called now and then with the n-grams scored
 	// and their total.
 	Progress func(done, total int)
+	// Counts, if not nil, are the counts the model was estimated from (or a
+	// superset of its n-grams over the same vocabulary). The history weights
+	// p(h) are then relative frequencies, and the criteria of the top order
+	// get leave-one-out weighting (see Score). ChainHistory is ignored.
+	Counts *Counts
+	// ChainHistory selects the history weights of Stolcke (1998) as
+	// published, the chain rule over the model's own probabilities, instead
+	// of the model's marginal word distribution (see Score). Used only
+	// without Counts.
+	ChainHistory bool
 }
 
 // Score computes Stolcke's criterion for every n-gram (h,w) of order ≥ 2 of
@@ -33,18 +45,40 @@ type ScoreOptions struct {
 //	α'(h) = (1 − Σ_{v∈S(h),v≠w} p(v|h)) / (1 − Σ_{v∈S(h),v≠w} p(v|h′))
 //	D     = −p(h)·{ p(w|h)·[ln p(w|h′) + ln α'(h) − ln p(w|h)] + [ln α'(h) − ln α(h)]·(1 − Σ_{v∈S(h)} p(v|h)) }
 //
-// where S(h) are the explicit successors of h, h′ is h without its first word,
-// α(h) is h's back-off weight and p(h) is the history's probability under the
-// model by the chain rule, p(h₁…hₖ) = Π p(hᵢ | h₁…hᵢ₋₁), with a leading <s>
-// counted as certain (as a sentence start is). D is the Kullback-Leibler
-// divergence of the model's distribution after the removal from the one
-// before, over histories of h's length weighted by p(h).
+// where S(h) are the explicit successors of h, h′ is h without its first word
+// and α(h) is h's back-off weight. D is the Kullback-Leibler divergence of
+// the model's distribution after the removal from the one before, over
+// histories of h's length weighted by p(h). The history weight p(h) is, by
+// the options:
+//
+//   - by default, π(h₁)·Π p(hᵢ | h₁…hᵢ₋₁), where π is the stationary word
+//     distribution of the model read as a Markov chain over words (</s> is
+//     followed by <s>): how often the model itself expects h₁ to occur.
+//     Stolcke uses the model's unigram p(h₁) instead; a Kneser-Ney model's
+//     unigrams are continuation probabilities, which misjudge how often a
+//     history occurs (see Chelba et al. 2010 in prune_history.go).
+//   - with ChainHistory, Stolcke's p(h₁)·Π p(hᵢ | h₁…hᵢ₋₁) with the model's
+//     unigram p(h₁), a leading <s> counted as certain.
+//   - with Counts, the relative frequency c(h)/Σ_g c(g) over the counted
+//     n-grams g of h's length.
+//
+// With Counts, D of a top-order n-gram seen c times is also multiplied by
+// (c − 1 + 0.001)/c: leave-one-out weighting, the share of its occurrences
+// that a model estimated without that very occurrence would still have
+// seen. The training-set criterion rewards an n-gram seen once for
+// predicting the one occurrence it was estimated from; on new text such an
+// n-gram rarely helps, so under this weighting n-grams seen once go first
+// (in the order of their D) and the others follow by D·(c−1)/c. Lower
+// orders are estimated from continuation counts, not occurrences, and keep
+// D as it is.
 //
 // When a sum reaches 1 so that α'(h) is undefined (only possible for a model
 // read back from a quantized file, or one whose explicit successors of h
 // cover the whole vocabulary), D is +Inf and the n-gram is never pruned.
-// Cost: O(n-grams · log successors) time; 16 bytes per n-gram (the
-// criterion and an index of successor groups that PruneScored reuses).
+// Cost: O(n-grams · log successors) time, plus O(vocabulary + bigrams) per
+// step of the marginal's power iteration (at most 200 steps; 24 to 26 on
+// the project's texts), or O(n-grams) to match Counts; 16 bytes per n-gram (the criterion
+// and an index of successor groups that PruneScored reuses).
 func Score(ctx context.Context, b *Backoff, opts ScoreOptions) (*Scores, error) {
 	if err := checkShape(b); err != nil {
 		return nil, err
@@ -58,11 +92,20 @@ func Score(ctx context.Context, b *Backoff, opts ScoreOptions) (*Scores, error) 
 	if err != nil {
 		return nil, err
 	}
-	hist, err := historyLogProbs(ctx, b, first)
+	var hist [][]float64
+	var loo []float64
+	switch {
+	case opts.Counts != nil:
+		hist, loo, err = countHistory(ctx, b, opts.Counts)
+	case opts.ChainHistory:
+		hist, err = historyLogProbs(ctx, b, first)
+	default:
+		hist, err = marginalHistory(ctx, b, first)
+	}
 	if err != nil {
 		return nil, err
 	}
-	sc, err := scoreWith(ctx, b, first, hist, opts, total)
+	sc, err := scoreWith(ctx, b, first, hist, loo, opts, total)
 	if err != nil {
 		return nil, err
 	}
@@ -70,7 +113,10 @@ func Score(ctx context.Context, b *Backoff, opts ScoreOptions) (*Scores, error) 
 	return sc, nil
 }
 
-func scoreWith(ctx context.Context, b *Backoff, first [][]int, hist [][]float64, opts ScoreOptions, total int) (*Scores, error) {
+// scoreWith computes the criteria with the history weights hist (ln p(h)
+// per n-gram of orders 1..N−1) and, if loo is not nil, multiplies those of
+// the top order by loo.
+func scoreWith(ctx context.Context, b *Backoff, first [][]int, hist [][]float64, loo []float64, opts ScoreOptions, total int) (*Scores, error) {
 	N := b.Order()
 	s := &Scores{Delta: make([][]float64, N)}
 	key := make([]uint32, 0, N)
@@ -86,6 +132,10 @@ func scoreWith(ctx context.Context, b *Backoff, first [][]int, hist [][]float64,
 			}
 			lnAlpha := parent.Bow[j]
 			ph := math.Exp(hist[n-2][j])
+			if ph == 0 { // a history the weights never reach: nothing changes
+				done += e - g
+				continue
+			}
 			lower = b.lowerLogProbs(first, n, g, e, key, lower[:0])
 			var sumP, sumQ float64
 			for i := g; i < e; i++ {
@@ -107,6 +157,9 @@ func scoreWith(ctx context.Context, b *Backoff, first [][]int, hist [][]float64,
 					t += p * (lq + lnAlpha2 - lp)
 				}
 				d[i] = -ph * t
+				if n == N && loo != nil {
+					d[i] *= loo[i]
+				}
 			}
 			done += e - g
 			if j&4095 == 4095 {
@@ -133,6 +186,10 @@ type PruneOptions struct {
 	Threshold float64
 	// Progress, if not nil, is called while scoring (see ScoreOptions).
 	Progress func(done, total int)
+	// Counts and ChainHistory choose the history weights and leave-one-out
+	// weighting of the criterion, as in ScoreOptions.
+	Counts       *Counts
+	ChainHistory bool
 }
 
 // Prune removes from b every n-gram of order ≥ 2 whose relative-entropy
@@ -141,8 +198,16 @@ type PruneOptions struct {
 // are recomputed so that every context still sums to one. An n-gram that is
 // the context of a kept longer n-gram is kept, and so are all unigrams. b is
 // not changed; the result shares no storage with it.
+//
+// The criterion weighs each context by how often it occurs. By default that
+// weight comes from the model alone (its marginal word distribution; see
+// Score), which suits Kneser-Ney models better than Stolcke's chain rule
+// (ChainHistory). Given the counts b was estimated from (Counts), the
+// weights are relative frequencies and n-grams of the top order seen once go
+// before any seen more often: on held-out text this beats count cut-offs of
+// equal size, which the other two do not reliably do (see BENCHMARKS.md).
 func Prune(ctx context.Context, b *Backoff, opts PruneOptions) (*Backoff, error) {
-	s, err := Score(ctx, b, ScoreOptions{Progress: opts.Progress})
+	s, err := Score(ctx, b, ScoreOptions{Progress: opts.Progress, Counts: opts.Counts, ChainHistory: opts.ChainHistory})
 	if err != nil {
 		return nil, err
 	}
@@ -520,36 +585,6 @@ func (b *Backoff) logProbInto(key, h []uint32, w uint32) float64 {
 		}
 	}
 	return math.Inf(-1)
-}
-
-// historyLogProbs returns, for the n-grams of orders 1..N−1 seen as
-// histories, ln p(h) by the chain rule (a leading <s> counts as certain).
-// The model is prefix-closed, so every factor is an explicit n-gram.
-func historyLogProbs(ctx context.Context, b *Backoff, first [][]int) ([][]float64, error) {
-	N := b.Order()
-	out := make([][]float64, max(N-1, 0))
-	if N < 2 {
-		return out, nil
-	}
-	u := slices.Clone(b.Levels[0].LogP)
-	if bos, ok := b.ID(BOS); ok {
-		u[bos] = 0
-	}
-	out[0] = u
-	for n := 2; n < N; n++ {
-		lv, fs := &b.Levels[n-1], first[n-2]
-		h := make([]float64, lv.Len())
-		for j := range b.Levels[n-2].Len() {
-			for i := fs[j]; i < fs[j+1]; i++ {
-				h[i] = out[n-2][j] + lv.LogP[i]
-			}
-		}
-		out[n-1] = h
-		if err := ctx.Err(); err != nil {
-			return nil, err
-		}
-	}
-	return out, nil
 }
 
 // checkShape checks the lengths of b's levels (not their order or content).

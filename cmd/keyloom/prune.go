@@ -84,11 +84,14 @@ func runPrune(ctx context.Context, e *env, args []string) error {
 	fs := newFlags(e, "prune", "--model M (--max-bytes SIZE --out FILE | --sweep SIZE,SIZE,...)",
 		"Shrinks a model file to a byte budget. n-grams are removed by relative entropy (Stolcke 1998:\n"+
 			"those whose removal least changes the model's distribution go first, the back-off weights\n"+
-			"are recomputed so every context still sums to one); the threshold is found by bisection on\n"+
-			"its logarithm so that the whole written file is at most the budget and as close to it as\n"+
-			"the search allows. If pruning alone cannot fit, fewer quantization bits are tried (from\n"+
-			"--max-bits down to --min-bits), then a smaller vocabulary (the rarest words by unigram\n"+
-			"probability go first, their probability moves to <unk>; words in --keep always stay).\n"+
+			"are recomputed so every context still sums to one; each context is weighted by how often\n"+
+			"the model itself expects it, from its marginal word distribution, rather than by its\n"+
+			"unigram, which for Kneser-Ney models measures diversity, not frequency); the threshold\n"+
+			"is found by bisection on its logarithm so that the whole written file is at most the\n"+
+			"budget and as close to it as the search allows. If pruning alone cannot fit, fewer\n"+
+			"quantization bits are tried (from --max-bits down to --min-bits), then a smaller\n"+
+			"vocabulary (the rarest words by unigram probability go first, their probability moves\n"+
+			"to <unk>; words in --keep always stay).\n"+
 			"A budget below the unigrams of --min-vocab words at --min-bits is an error that names the\n"+
 			"smallest size this model can reach. With --test, reports perplexity and keystroke savings\n"+
 			"on held-out text; --sweep measures several budgets and --plot draws the size curve.")
