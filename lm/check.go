@@ -16,8 +16,9 @@ import (
 //     context has at least one successor) and ends at the next order's size;
 //   - each successor group is sorted strictly by word;
 //   - a context has a top list exactly when its group is longer than
-//     TopListLen, the top-list bits agree with their rank directory and the
-//     lists fill the top array; each list holds distinct offsets inside its
+//     the threshold (TopListLen before version 3, 32 since), the
+//     top-list bits agree with their rank directory and the lists fill
+//     the top array; each list holds distinct offsets inside its
 //     group, in non-increasing probability, and no successor outside it is
 //     more probable than its last entry;
 //   - each node of the unigram maximum tree holds the largest value below it.
@@ -161,7 +162,7 @@ func (m *Model) checkSuccessors(l *level) error {
 			}
 		}
 		isBig := l.big.get(c)
-		if isBig != (hi-lo > TopListLen) {
+		if isBig != (hi-lo > m.topMin) {
 			return corrupt(0, "order %d context %d: top-list bit %v for a group of %d", n, c, isBig, hi-lo)
 		}
 		if !isBig {

@@ -7,8 +7,9 @@ import (
 
 // EstimateCutoff estimates a model from c as Estimate does and then applies
 // count cut-offs: an n-gram of order n ≥ 2 whose raw count is below
-// minCount[n-1] is removed, unless it is the context of a kept longer n-gram,
-// and the back-off weights are recomputed so every context still sums to one.
+// minCount[n-1] is removed, unless it is the context or the suffix of a
+// kept longer n-gram, and the back-off weights are recomputed so every
+// context still sums to one.
 // minCount[0] is ignored (all unigrams are kept) and orders past the end of
 // minCount have cut-off 1.
 //

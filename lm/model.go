@@ -13,6 +13,7 @@ type Model struct {
 	lv           []level
 	tree         []vec    // unigram maximum tree, finest level first
 	uniTop       []uint32 // the most probable words, best first (computed at load)
+	topMin       int      // a group longer than this has a top list
 }
 
 type level struct {

@@ -196,7 +196,8 @@ type PruneOptions struct {
 // criterion (Score) is below opts.Threshold, as Stolcke (1998) does: every
 // candidate is judged against the original model, then the back-off weights
 // are recomputed so that every context still sums to one. An n-gram that is
-// the context of a kept longer n-gram is kept, and so are all unigrams. b is
+// the context or the suffix of a kept longer n-gram is kept (so the result
+// stays suffix-closed), and so are all unigrams. b is
 // not changed; the result shares no storage with it.
 //
 // The criterion weighs each context by how often it occurs. By default that
@@ -385,16 +386,35 @@ func PruneVocab(ctx context.Context, b *Backoff, size int, mustKeep []string) (*
 
 // subset returns the model made of b's unigrams, the n-grams marked in keep
 // (keep[n-1][i] for n-gram i of order n; keep[0] is ignored) and every n-gram
-// that is the context of a kept one, with the back-off weights recomputed.
+// that is the context or the suffix of a kept one, with the back-off
+// weights recomputed.
 func subset(ctx context.Context, b *Backoff, first [][]int, keep [][]bool) (*Backoff, error) {
 	N := b.Order()
-	// Close under prefixes, longest order first.
+	// Close under prefixes and suffixes, longest order first: the context of
+	// a kept n-gram is kept (the back-off structure needs it), and so is its
+	// suffix (the n-gram without its oldest word), so that the result stays
+	// suffix-closed as every estimated model is — the compact layout of the
+	// highest order relies on that (see ranked.go), and a pruned model
+	// keeps the property that a word seen after a long context is also
+	// explicit after the shorter one.
 	for n := N; n >= 3; n-- {
 		k, pk, fs := keep[n-1], keep[n-2], first[n-2]
 		for j := range pk {
 			if !pk[j] && slices.Contains(k[fs[j]:fs[j+1]], true) {
 				pk[j] = true
 			}
+		}
+		lv, lower := &b.Levels[n-1], &b.Levels[n-2]
+		for i, x := range k {
+			if !x {
+				continue
+			}
+			if j := lower.Find(lv.Key(i)[1:]); j >= 0 {
+				pk[j] = true
+			}
+		}
+		if err := ctx.Err(); err != nil {
+			return nil, err
 		}
 	}
 	nb := &Backoff{Vocab: b.Vocab, Surface: b.Surface, Discounts: b.Discounts, Tokens: b.Tokens, Levels: make([]Level, N)}

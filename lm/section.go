@@ -27,6 +27,10 @@ const (
 	// TopListLen is the number of best successors kept in probability order
 	// for every context with more successors than that.
 	TopListLen = 8
+	// topListMin is the group length above which a version-3 context has a
+	// top list (versions 1 and 2: TopListLen). Shorter groups are scanned,
+	// which costs little next to the lists' bytes.
+	topListMin = 32
 	// treeFanout is the branching factor of the unigram maximum tree.
 	treeFanout = 32
 )
@@ -127,6 +131,10 @@ func AppendSection(dst []byte, b *Backoff, opts LayoutOptions) ([]byte, error) {
 		}
 	}
 	ranked := version == 3
+	topMin := TopListLen
+	if version == 3 {
+		topMin = topListMin
+	}
 	var unigramCodes []uint64
 	var probBook0 codebook
 	for n := 1; n <= N; n++ {
@@ -198,7 +206,7 @@ func AppendSection(dst []byte, b *Backoff, opts LayoutOptions) ([]byte, error) {
 			gi++
 			start = append(start, uint64(g.lo))
 			bows = append(bows, bb.encode(lv.Bow[p]))
-			isBig := g.hi-g.lo > TopListLen
+			isBig := g.hi-g.lo > topMin
 			big = append(big, isBig)
 			if isBig {
 				idx := make([]int, g.hi-g.lo)
@@ -264,7 +272,7 @@ func AppendSection(dst []byte, b *Backoff, opts LayoutOptions) ([]byte, error) {
 	off = (off + 7) &^ 7
 	var hdr [headerSize]byte
 	le := binary.LittleEndian
-	for i, v := range []uint32{version, uint32(N), uint32(V), uint32(q), TopListLen, bos, eos, unk, uint32(len(arrs)), 0} {
+	for i, v := range []uint32{version, uint32(N), uint32(V), uint32(q), TopListLen, bos, eos, unk, uint32(len(arrs)), headerTopMin(version, topMin)} {
 		le.PutUint32(hdr[4*i:], v)
 	}
 	dst = append(dst, hdr[:]...)
@@ -339,6 +347,8 @@ func LoadSection(b []byte) (*Model, error) {
 		return nil, corrupt(12, "quantization bits %d", q)
 	case topT != TopListLen:
 		return nil, corrupt(16, "top list length %d", topT)
+	case version == 3 && h[9] != topListMin:
+		return nil, corrupt(36, "top-list threshold %d (want %d)", h[9], topListMin)
 	case version == 3 && N < 3:
 		return nil, corrupt(4, "order %d in a version-3 section (ranked records need order 3 or more)", N)
 	case int(h[5]) >= V || int(h[6]) >= V || int(h[7]) >= V:
@@ -373,7 +383,10 @@ func LoadSection(b []byte) (*Model, error) {
 		w := format.Uint64s(b[off : off+words*8])
 		arrays[t] = newVec(w, int(n), width)
 	}
-	m := &Model{order: N, vocab: V, qbits: q, bos: h[5], eos: h[6], unk: h[7]}
+	m := &Model{order: N, vocab: V, qbits: q, bos: h[5], eos: h[6], unk: h[7], topMin: TopListLen}
+	if version == 3 {
+		m.topMin = int(h[9])
+	}
 	m.lv = make([]level, N)
 	need := func(t uint32, n int, width uint) (vec, error) {
 		v, ok := arrays[t]
@@ -531,4 +544,13 @@ func loadBook(need func(uint32, int, uint) (vec, error), t uint32, q int) (codeb
 		}
 	}
 	return cb, nil
+}
+
+// headerTopMin is the header's last field: the top-list threshold in
+// version 3, zero (reserved) before.
+func headerTopMin(version uint32, topMin int) uint32 {
+	if version < 3 {
+		return 0
+	}
+	return uint32(topMin)
 }

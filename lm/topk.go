@@ -143,11 +143,13 @@ func (m *Model) groupTop(nd *node, lo, hi uint32, k int, add func(uint32) bool) 
 	}
 	var t topBuf
 	t.k = min(k+3, MaxK) // room for the special tokens, which add refuses
+	// Positions ascend with word IDs inside a group, so ranking positions
+	// breaks ties as ranking IDs would; only the winners are turned into IDs.
 	for p := glo; p < ghi; p++ {
-		t.push(Scored{ID: uint32(m.wordAt(nd, p)), LogP: m.probAt(nd, p)})
+		t.push(Scored{ID: uint32(p), LogP: m.probAt(nd, p)})
 	}
 	for _, s := range t.buf[:t.n] {
-		add(s.ID)
+		add(uint32(m.wordAt(nd, int(s.ID))))
 	}
 }
 
