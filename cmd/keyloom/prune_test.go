@@ -13,6 +13,7 @@ import (
 	"testing"
 
 	"github.com/keyloom/keyloom"
+	"github.com/keyloom/keyloom/lm"
 )
 
 // TestPruneFitsBudgets runs `keyloom prune --max-bytes B` for 20 budgets from
@@ -32,7 +33,7 @@ func TestPruneFitsBudgets(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	s, err := newPruneSearch(context.Background(), &env{stdout: io.Discard, stderr: io.Discard}, raw)
+	s, err := newPruneSearch(context.Background(), &env{stdout: io.Discard, stderr: io.Discard}, raw, "")
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -160,5 +161,61 @@ func TestPruneUsage(t *testing.T) {
 	}
 	if n := eng.Lexicon().Len(); n >= 4660 {
 		t.Errorf("vocabulary %d words: not pruned", n)
+	}
+}
+
+// TestPruneWithCounts builds a model from count shards, prunes it with
+// --counts pointing at those shards, and checks that the file fits its budget
+// and opens; counts of another text are refused with an error that says so.
+// Whether count weighting lowers held-out perplexity is checked in lm
+// (TestEntropyPruningVersusCountCutoffs).
+func TestPruneWithCounts(t *testing.T) {
+	dir := t.TempDir()
+	shardDir := func(name, text string) string {
+		t.Helper()
+		c, err := lm.NewCounter(3)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if err := c.AddText(context.Background(), strings.NewReader(text), lm.ScanOptions{Pretokenized: true}, nil); err != nil {
+			t.Fatal(err)
+		}
+		d := filepath.Join(dir, name)
+		if err := os.Mkdir(d, 0o755); err != nil {
+			t.Fatal(err)
+		}
+		f, err := os.Create(filepath.Join(d, "part-00000"))
+		if err != nil {
+			t.Fatal(err)
+		}
+		defer f.Close()
+		if err := c.WriteShard(f); err != nil {
+			t.Fatal(err)
+		}
+		return d
+	}
+	lines := strings.SplitAfter(readTestFile(t, filepath.Join(refDir, "opticks-train.txt")), "\n")
+	own := shardDir("own", strings.Join(lines[:1500], ""))
+	other := shardDir("other", strings.Join(lines[1500:2000], ""))
+	model := filepath.Join(dir, "c.klm")
+	if code, _, errs := runCmd(t, dir, "build", "--from-counts", own, "--out", model); code != 0 {
+		t.Fatal(errs)
+	}
+	out := filepath.Join(dir, "small.klm")
+	const budget = 60_000
+	if code, _, errs := runCmd(t, dir, "prune", "--model", model, "--counts", own, "--max-bytes", fmt.Sprint(budget), "--out", out); code != 0 {
+		t.Fatalf("prune --counts: %d %s", code, errs)
+	}
+	if st, err := os.Stat(out); err != nil || st.Size() > budget {
+		t.Fatalf("pruned file: %v, %v bytes for a budget of %d", err, st, budget)
+	}
+	eng, err := keyloom.Open(out, keyloom.Options{VerifyChecksums: true})
+	if err != nil {
+		t.Fatalf("pruned file does not open: %v", err)
+	}
+	eng.Close()
+	code, _, errs := runCmd(t, dir, "prune", "--model", model, "--counts", other, "--max-bytes", fmt.Sprint(budget), "--out", out)
+	if code == 0 || !strings.Contains(errs, "counts") {
+		t.Errorf("prune with another text's counts: code %d, %q; want an error about the counts", code, errs)
 	}
 }
