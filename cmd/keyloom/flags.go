@@ -32,8 +32,7 @@ func parse(fs *flag.FlagSet, args []string) ([]string, error) {
 	for {
 		if err := fs.Parse(args); err != nil {
 			if errors.Is(err, flag.ErrHelp) {
-				fs.Usage()
-				return nil, errHelp
+				return nil, errHelp // the flag package has printed the usage
 			}
 			return nil, fmt.Errorf("%w: %v", errUsage, err)
 		}

@@ -25,8 +25,8 @@ const refDir = "../../lm/testdata"
 func TestHelp(t *testing.T) {
 	for _, args := range [][]string{{"help"}, {"--help"}, {"build", "--help"}, {"suggest", "-h"}, {"eval", "--help"}, {"inspect", "--help"}, {"demo", "--help"}} {
 		code, out, _ := runCmd(t, t.TempDir(), args...)
-		if code != 0 || !strings.Contains(out, "usage") {
-			t.Errorf("keyloom %v: code %d, output %q", args, code, out)
+		if code != 0 || strings.Count(out, "usage:") != 1 {
+			t.Errorf("keyloom %v: code %d, want the usage once, output %q", args, code, out)
 		}
 	}
 	if code, _, _ := runCmd(t, t.TempDir(), "frobnicate"); code != 2 {
