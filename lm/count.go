@@ -51,10 +51,10 @@ type Counter struct {
 	index  map[string]uint32
 	words  []string
 	casing []caseTally
-	uni    []uint64            // raw unigram counts by temporary id
-	short  []map[uint64]uint32 // orders 2..3, index n-2
-	long   []map[key2]uint32   // orders 4..5, index n-4
-	list   []float64           // word-count list counts by temporary id
+	uni    []uint64          // raw unigram counts by temporary id
+	short  []*countMap       // orders 2..3, index n-2
+	long   []map[key2]uint32 // orders 4..5, index n-4
+	list   []float64         // word-count list counts by temporary id
 	tokens int64
 	sents  int64
 	ids    []uint32
@@ -71,7 +71,7 @@ func NewCounter(order int) (*Counter, error) {
 	}
 	for n := 2; n <= order; n++ {
 		if n <= 3 {
-			c.short = append(c.short, make(map[uint64]uint32))
+			c.short = append(c.short, newCountMap())
 		} else {
 			c.long = append(c.long, make(map[key2]uint32))
 		}
@@ -134,23 +134,22 @@ func (c *Counter) AddSentence(folded, surfaces [][]byte) error {
 	for _, id := range ids {
 		c.uni[id]++
 	}
-	for n := 2; n <= c.order; n++ {
-		switch n {
-		case 2:
-			m := c.short[0]
-			for i := 0; i+2 <= len(ids); i++ {
-				m[uint64(ids[i])<<21|uint64(ids[i+1])]++
-			}
-		case 3:
-			m := c.short[1]
-			for i := 0; i+3 <= len(ids); i++ {
-				m[uint64(ids[i])<<42|uint64(ids[i+1])<<21|uint64(ids[i+2])]++
-			}
-		default:
-			m := c.long[n-4]
-			for i := 0; i+n <= len(ids); i++ {
-				m[packLong(ids[i:i+n])]++
-			}
+	if c.order >= 2 {
+		m := c.short[0]
+		for i := 0; i+2 <= len(ids); i++ {
+			m.add(uint64(ids[i])<<21|uint64(ids[i+1]), 1)
+		}
+	}
+	if c.order >= 3 {
+		m := c.short[1]
+		for i := 0; i+3 <= len(ids); i++ {
+			m.add(uint64(ids[i])<<42|uint64(ids[i+1])<<21|uint64(ids[i+2]), 1)
+		}
+	}
+	for n := 4; n <= c.order; n++ {
+		m := c.long[n-4]
+		for i := 0; i+n <= len(ids); i++ {
+			m[packLong(ids[i:i+n])]++
 		}
 	}
 	return nil
@@ -430,12 +429,12 @@ func (c *Counter) Merge(o *Counter) error {
 	for i, m := range o.short {
 		dst := c.short[i]
 		n := i + 2
-		for k, v := range m {
+		for k, v := range m.all {
 			var nk uint64
 			for j := n - 1; j >= 0; j-- {
 				nk = nk<<21 | uint64(remap[(k>>(21*uint(j)))&m21])
 			}
-			dst[nk] += v
+			dst.add(nk, uint32(v))
 		}
 	}
 	var buf [MaxOrder]uint32
@@ -497,32 +496,11 @@ func (t *table) find(k []uint32) int {
 // snapshot converts the counts to final IDs (lexicographic ranks of the
 // words) and returns the sorted vocabulary and per-order tables.
 func (c *Counter) snapshot() (vocab []string, rank []uint32, tabs []table) {
-	vocab, rank, order := c.ranks()
+	vocab, rank, _ = c.ranks()
 	tabs = make([]table, c.order)
 	tabs[0] = c.uniTable(rank)
-	const m21 = 1<<21 - 1
 	for i, m := range c.short {
-		n := i + 2
-		keys := make([]uint64, 0, len(m))
-		for k := range m {
-			var nk uint64
-			for j := n - 1; j >= 0; j-- {
-				nk = nk<<21 | uint64(rank[(k>>(21*uint(j)))&m21])
-			}
-			keys = append(keys, nk)
-		}
-		slices.Sort(keys)
-		t := table{n: n, ids: make([]uint32, 0, len(keys)*n), cnt: make([]uint64, len(keys))}
-		for e, nk := range keys {
-			var ok uint64
-			for j := n - 1; j >= 0; j-- {
-				id := uint32(nk>>(21*uint(j))) & m21
-				t.ids = append(t.ids, id)
-				ok = ok<<21 | uint64(order[id])
-			}
-			t.cnt[e] = uint64(m[ok])
-		}
-		tabs[n-1] = t
+		tabs[i+1] = buildTable(i+2, []gramSource{{grams: m, to: rank}}, len(rank), 1)
 	}
 	var buf [MaxOrder]uint32
 	for i, m := range c.long {

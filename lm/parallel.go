@@ -19,7 +19,7 @@ type TallyOptions struct {
 	Order int
 	// Workers is the number of goroutines that count text; 0 means 1.
 	Workers int
-	// MemBudget bounds, in bytes, the n-gram maps of all workers together
+	// MemBudget bounds, in bytes, the n-gram tables of all workers together
 	// (charged at a fixed cost per n-gram that includes the sort buffer of a
 	// spill). Past it a worker writes its n-grams to disk as sorted runs.
 	// 0 means no bound: runs stay in memory.
@@ -103,9 +103,10 @@ func (t *Tally) AddWordList(r io.Reader, weight float64) error { return t.main.A
 
 // worker is one counting goroutine's private state.
 type worker struct {
-	c   *Counter
-	gid []uint32 // worker temporary ID → Tally temporary ID
-	tmp []ent
+	c       *Counter
+	gid     []uint32 // worker temporary ID → Tally temporary ID
+	tmp     []ent    // sort buffer of a spill (orders above 3)
+	p, ptmp []uint64 // sort buffers of a spill (orders 2..3, see spillPacked)
 }
 
 // AddText tokenizes r and counts every sentence in it with the Tally's
@@ -291,12 +292,28 @@ func (t *Tally) flush(w *worker) error {
 	c.tokens, c.sents = 0, 0
 	t.mu.Unlock()
 	for n := 2; n <= t.order; n++ {
-		var ents []ent
-		if t.opts.MemBudget > 0 {
-			ents = c.drain(n, w.gid, w.tmp)
+		budget := t.opts.MemBudget > 0
+		switch {
+		case !budget && n <= 3:
+			// No budget: this is the worker's last flush. Its table
+			// becomes the run as it is; Counts renames and sorts it.
+			t.mu.Lock()
+			t.runs[n-2] = append(t.runs[n-2], run{grams: c.short[n-2], gid: w.gid})
+			t.mu.Unlock()
+			c.short[n-2] = newCountMap()
+			continue
+		case budget && n <= 3:
+			done, err := t.spillPacked(w, n)
+			if err != nil {
+				return err
+			}
+			if done {
+				continue
+			}
+		}
+		ents := c.drain(n, w.gid, w.tmp, budget)
+		if budget {
 			w.tmp = ents[:0]
-		} else {
-			ents = c.drain(n, w.gid, nil)
 		}
 		if err := t.addRun(n, ents); err != nil {
 			return err
@@ -307,6 +324,14 @@ func (t *Tally) flush(w *worker) error {
 
 // Counts merges everything counted into final-ID form. The runs are
 // consumed: the Tally holds no n-grams afterwards (Close it).
+//
+// Without a memory budget the in-memory runs of each order (the workers'
+// tables) are renamed to final IDs, sorted once and summed: the orders side
+// by side, and each order's renaming and radix sort split among Workers
+// goroutines, so that little of the work is left to one core. With a budget
+// the run files of each order are merged one order after the other, so that
+// only one order's entries are in memory at a time besides the tables
+// already made.
 func (t *Tally) Counts(ctx context.Context) (*Counts, error) {
 	if t.shardLines > 0 && t.shardMax < t.order {
 		return nil, fmt.Errorf("%w: shards hold n-grams up to order %d, the build asks for order %d", ErrShard, t.shardMax, t.order)
@@ -317,6 +342,35 @@ func (t *Tally) Counts(ctx context.Context) (*Counts, error) {
 	vocab, rank, _ := t.main.ranks()
 	tabs := make([]table, t.order)
 	tabs[0] = t.main.uniTable(rank)
+	if t.opts.MemBudget <= 0 {
+		sem := make(chan struct{}, t.opts.Workers)
+		var wg sync.WaitGroup
+		for n := 2; n <= t.order; n++ {
+			runs := t.runs[n-2]
+			t.runs[n-2] = nil
+			sem <- struct{}{}
+			wg.Go(func() {
+				defer func() { <-sem }()
+				srcs := make([]gramSource, len(runs))
+				for i, r := range runs {
+					srcs[i] = gramSource{ents: r.mem, grams: r.grams, to: rank}
+					if r.grams != nil {
+						to := make([]uint32, len(r.gid))
+						for id, g := range r.gid {
+							to[id] = rank[g]
+						}
+						srcs[i].to = to
+					}
+				}
+				tabs[n-1] = buildTable(n, srcs, len(rank), t.opts.Workers)
+			})
+		}
+		wg.Wait()
+		if err := ctx.Err(); err != nil {
+			return nil, err
+		}
+		return t.main.finalCounts(vocab, rank, tabs), nil
+	}
 	for n := 2; n <= t.order; n++ {
 		ents, err := mergeRuns(ctx, t.runs[n-2], nil)
 		if err != nil {

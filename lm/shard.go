@@ -173,8 +173,8 @@ func (c *Counter) WriteShard(w io.Writer) error {
 	}
 	var buf [MaxOrder]uint32
 	for i, m := range c.short {
-		for k, v := range m {
-			if err := put(unpackKey(key2{k, 0}, i+2, buf[:0]), uint64(v)); err != nil {
+		for k, v := range m.all {
+			if err := put(unpackKey(key2{k, 0}, i+2, buf[:0]), v); err != nil {
 				return err
 			}
 		}
@@ -310,13 +310,15 @@ func (t *Tally) addCaseRecord(words [][]byte, cnt uint64, intern func([]byte) (u
 	return nil
 }
 
-// flushShards files the n-grams read from shards as sorted runs.
+// flushShards files the n-grams read from shards as runs (see addRun).
 func (t *Tally) flushShards() error {
 	for i, ents := range t.shardEnts {
 		if len(ents) == 0 {
 			continue
 		}
-		sortEnts(ents)
+		if t.opts.MemBudget > 0 {
+			sortEnts(ents) // run files must be sorted; Counts sorts in-memory runs
+		}
 		if err := t.addRun(i+2, ents); err != nil {
 			return err
 		}

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"context"
 	"errors"
+	"fmt"
 	"path/filepath"
 	"slices"
 	"strings"
@@ -141,6 +142,48 @@ func TestAddShardsErrors(t *testing.T) {
 			}
 			if !errors.Is(err, ErrShard) {
 				t.Errorf("AddShards(%q) then Counts = %v, want ErrShard", tc.in, err)
+			}
+		})
+	}
+}
+
+// TestAddShardsRepeatedKeys checks that an n-gram given on several shard
+// lines gets the sum of their counts, with and without a memory budget, as
+// SHARDS.md specifies ("keys may repeat; their counts add up"). Expected
+// counts are worked by hand from the input. Without a budget the repeated
+// key used to stay two entries of the table.
+func TestAddShardsRepeatedKeys(t *testing.T) {
+	const in = "a\t2\nb\t2\na b\t1\nb a\t1\na b\t1\n"
+	for _, mem := range []int64{0, 1 << 20} {
+		t.Run(fmt.Sprintf("mem=%d", mem), func(t *testing.T) {
+			tl, err := NewTally(TallyOptions{Order: 2, MemBudget: mem, TempDir: t.TempDir()})
+			if err != nil {
+				t.Fatal(err)
+			}
+			defer tl.Close()
+			if err := tl.AddShards(context.Background(), strings.NewReader(in)); err != nil {
+				t.Fatal(err)
+			}
+			cs, err := tl.Counts(context.Background())
+			if err != nil {
+				t.Fatal(err)
+			}
+			id := func(w string) uint32 {
+				i, ok := slices.BinarySearch(cs.vocab, w)
+				if !ok {
+					t.Fatalf("word %q missing from the vocabulary", w)
+				}
+				return uint32(i)
+			}
+			bi := cs.tabs[1]
+			want := map[[2]string]uint64{{"a", "b"}: 2, {"b", "a"}: 1}
+			if bi.len() != len(want) {
+				t.Fatalf("Counts has %d bigrams, want %d", bi.len(), len(want))
+			}
+			for k, c := range want {
+				if i := bi.find([]uint32{id(k[0]), id(k[1])}); i < 0 || bi.cnt[i] != c {
+					t.Errorf("count(%s %s) at index %d, want %d", k[0], k[1], i, c)
+				}
 			}
 		})
 	}

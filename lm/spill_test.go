@@ -231,3 +231,78 @@ func TestRunTruncated(t *testing.T) {
 		}
 	}
 }
+
+// TestSpillPacked checks the run file spillPacked writes from a worker's
+// trigram table against the table's n-grams renamed one ID at a time and
+// sorted with the standard library (the reference), and that it declines,
+// leaving the table as it was, when the largest ID and count need more than
+// 64 bits together.
+func TestSpillPacked(t *testing.T) {
+	for _, tc := range []struct {
+		name   string
+		top    uint32 // largest Tally ID
+		maxCnt int
+		packed bool
+	}{
+		{"small-vocab", 5000, 100, true},
+		{"full-vocab-count-1", MaxVocab - 1, 1, true}, // 63 + 1 bits
+		{"full-vocab-count-2", MaxVocab - 1, 2, false},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			tl, err := NewTally(TallyOptions{Order: 3, MemBudget: 1 << 20, TempDir: t.TempDir()})
+			if err != nil {
+				t.Fatal(err)
+			}
+			defer tl.Close()
+			c, _ := NewCounter(3)
+			w := &worker{c: c, gid: make([]uint32, 64)}
+			rng := rand.New(rand.NewPCG(3, uint64(tc.top)))
+			for i := range w.gid {
+				w.gid[i] = tc.top - uint32(rng.IntN(int(min(tc.top, 1000))))
+			}
+			m := c.short[1]
+			want := map[key2]uint64{}
+			for range 2000 {
+				var ids [3]uint32
+				for j := range ids {
+					ids[j] = uint32(rng.IntN(len(w.gid)))
+				}
+				k := packLong(ids[:])
+				if m.get(k[0]) >= uint32(tc.maxCnt) {
+					continue
+				}
+				m.add(k[0], 1)
+				want[packLong([]uint32{w.gid[ids[0]], w.gid[ids[1]], w.gid[ids[2]]})]++
+			}
+			before := m.len()
+			done, err := tl.spillPacked(w, 3)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if done != tc.packed {
+				t.Fatalf("spillPacked = %v, want %v", done, tc.packed)
+			}
+			if !done {
+				if m.len() != before {
+					t.Fatalf("declined spillPacked left %d n-grams, want %d", m.len(), before)
+				}
+				return
+			}
+			if m.len() != 0 || len(tl.runs[1]) != 1 {
+				t.Fatalf("after spillPacked: %d n-grams in the table, %d runs; want 0, 1", m.len(), len(tl.runs[1]))
+			}
+			var wantEnts []ent
+			for k, c := range want {
+				wantEnts = append(wantEnts, ent{k, c})
+			}
+			slices.SortFunc(wantEnts, cmpEnt)
+			got, err := mergeRuns(context.Background(), []run{tl.runs[1][0], {}}, nil)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if !slices.Equal(got, wantEnts) {
+				t.Fatalf("run holds %d entries, want %d (or other keys or counts)", len(got), len(wantEnts))
+			}
+		})
+	}
+}
