@@ -12,6 +12,7 @@ import (
 	"testing"
 
 	"github.com/blevesearch/vellum"
+	"github.com/keyloom/keyloom/trie"
 )
 
 // flatLex is a test lexicon: a plain trie in flat arrays with the same
@@ -126,6 +127,14 @@ func (l *flatLex) Step(s int, b byte) (int, uint64, bool) {
 		}
 	}
 	return 0, 0, false
+}
+
+// AppendEdges implements EdgeLister.
+func (l *flatLex) AppendEdges(dst []Edge, s int) []Edge {
+	for i := l.first[s]; i < l.first[s+1]; i++ {
+		dst = append(dst, Edge{Byte: l.label[i], Next: int(l.dest[i]), Out: uint64(l.out[i])})
+	}
+	return dst
 }
 func (l *flatLex) Final(s int) (bool, uint64) { return l.final[s], 0 }
 func (l *flatLex) CanMatch(s int) bool        { return s >= 0 && s < len(l.final) }
@@ -288,4 +297,39 @@ func devCorrector(t testing.TB, opts Options) (*Corrector, *flatLex, *corpusData
 		t.Fatalf("New: %v", err)
 	}
 	return c, lex, d
+}
+
+// trieLex adapts the project's lexicon section (a vellum FST read by the
+// trie package's own decoder, as the engine uses it) to Lexicon and
+// EdgeLister.
+type trieLex struct {
+	*trie.Lexicon
+	words []string
+}
+
+func newTrieLex(t testing.TB, words []string) *trieLex {
+	t.Helper()
+	words = sortedUnique(words)
+	entries := make([]trie.Entry, len(words))
+	for i, w := range words {
+		entries[i] = trie.Entry{Word: w}
+	}
+	b, err := trie.AppendSection(nil, entries)
+	if err != nil {
+		t.Fatalf("trie.AppendSection: %v", err)
+	}
+	l, err := trie.LoadSection(b)
+	if err != nil {
+		t.Fatalf("trie.LoadSection: %v", err)
+	}
+	return &trieLex{Lexicon: l, words: words}
+}
+
+// AppendEdges implements EdgeLister.
+func (l *trieLex) AppendEdges(dst []Edge, state int) []Edge {
+	var buf [64]trie.Transition
+	for _, tr := range l.AppendTransitions(buf[:0], state) {
+		dst = append(dst, Edge{Byte: tr.Byte, Next: tr.Next, Out: tr.Out})
+	}
+	return dst
 }

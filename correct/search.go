@@ -65,8 +65,10 @@ type search struct {
 	extra     []float32
 	path      []byte
 	ins       []float32
-	subQ      []float32 // subQ[j<<8|c]: intended c typed as t[j]; 0 when equal
-	rules     []appRule // sorted by cost
+	subC      []float32   // subC[c*n+j]: intended c typed as t[j]; 0 when equal
+	pos       [256]uint64 // bit j: t[j] is the byte
+	rules     []appRule   // sorted by cost
+	ruleMask  [][4]uint64 // ruleMask[i]: first intended bytes of rules[:i+1]
 	first     [256][]int32
 	usedFirst []byte
 	act       []partial // partial rule matches, stacked by depth
@@ -78,7 +80,19 @@ type search struct {
 	limit     int // states this search may visit (0 = no limit)
 	el        EdgeLister
 	edges     [][]Edge // per depth
+	rk        *ranker  // if not nil, takes the words found instead of hits
+	prepCh    *channel // channel the typed-word tables were prepared for
 }
+
+// plainByte marks the bytes the search tries as intended letters wherever
+// the lexicon has them (alphabet); other bytes only where a typed byte, a
+// cheap edit or a rule suggests them (see allowed).
+var plainByte = func() (m [4]uint64) {
+	for _, c := range alphabet {
+		m[c>>6] |= 1 << (c & 63)
+	}
+	return m
+}()
 
 // Edge is one transition of the lexicon automaton.
 type Edge struct {
@@ -98,8 +112,11 @@ type EdgeLister interface {
 // Intended words are followed to depth maxDepth.
 func (s *search) reset(ch *channel, lex Lexicon, typed string, budget float32, maxDepth int) {
 	s.ch, s.lex, s.budget = ch, lex, budget
-	s.t = s.t[:0]
-	s.t = append(s.t, typed...)
+	same := s.prepCh == ch && string(s.t) == typed
+	if !same {
+		s.t = s.t[:0]
+		s.t = append(s.t, typed...)
+	}
 	s.n = len(typed)
 	s.w = s.n + 1
 	s.maxDepth = maxDepth
@@ -110,7 +127,6 @@ func (s *search) reset(ch *channel, lex Lexicon, typed string, budget float32, m
 	s.rows = s.rows[:need]
 	s.mins = grow(s.mins, s.maxDepth+1)
 	s.extra = grow(s.extra, s.w)
-	s.ins = grow(s.ins, s.n)
 	if cap(s.path) < s.maxDepth+1 {
 		s.path = make([]byte, s.maxDepth+1)
 	}
@@ -122,33 +138,8 @@ func (s *search) reset(ch *channel, lex Lexicon, typed string, budget float32, m
 	for len(s.edges) < s.maxDepth+1 {
 		s.edges = append(s.edges, make([]Edge, 0, 8))
 	}
-	ch.insCosts(s.t, s.ins)
-	s.subQ = grow(s.subQ, s.n<<8)
-	for j, tj := range s.t {
-		q := s.subQ[j<<8 : (j+1)<<8]
-		copy(q, ch.sub[tj][:])
-		q[tj] = 0
-	}
-	// Rules whose typed side occurs in the word, with their end positions.
-	for _, c := range s.usedFirst {
-		s.first[c] = s.first[c][:0]
-	}
-	s.usedFirst = s.usedFirst[:0]
-	s.rules = s.rules[:0]
-	for _, lb := range ch.betaLens {
-		for e := lb; e <= s.n; e++ {
-			for _, ri := range ch.byBeta[string(s.t[e-lb:e])] {
-				s.addRule(ri, e)
-			}
-		}
-	}
-	sortRules(s.rules)
-	for i := range s.rules {
-		c := s.rules[i].alpha[0]
-		if len(s.first[c]) == 0 {
-			s.usedFirst = append(s.usedFirst, c)
-		}
-		s.first[c] = append(s.first[c], int32(i))
+	if !same {
+		s.prepare(ch)
 	}
 	s.act = s.act[:0]
 	if cap(s.actEnd) < s.maxDepth+1 {
@@ -167,6 +158,80 @@ func (s *search) reset(ch *channel, lex Lexicon, typed string, budget float32, m
 		r[j] = r[j-1] + s.ins[j-1]
 	}
 	s.mins[0] = 0
+}
+
+// prepare fills the tables that depend only on the channel and the typed
+// word (s.t), so that the passes of one Correct call compute them once.
+func (s *search) prepare(ch *channel) {
+	s.prepCh = ch
+	s.ins = grow(s.ins, s.n)
+	ch.insCosts(s.t, s.ins)
+	n := s.n
+	s.subC = grow(s.subC, n<<8)
+	for c := 0; c < 256; c++ {
+		q := s.subC[c*n : c*n+n]
+		for j, tj := range s.t {
+			q[j] = ch.sub[tj][c]
+		}
+		s.pos[c] = 0
+	}
+	for j, tj := range s.t {
+		s.subC[int(tj)*n+j] = 0
+		s.pos[tj] |= 1 << j
+	}
+	if ch.lead > 0 && n > 0 {
+		s.leadFirst()
+	}
+	// Rules whose typed side occurs in the word, with their end positions.
+	for _, c := range s.usedFirst {
+		s.first[c] = s.first[c][:0]
+	}
+	s.usedFirst = s.usedFirst[:0]
+	s.rules = s.rules[:0]
+	for _, lb := range ch.betaLens {
+		for e := lb; e <= s.n; e++ {
+			for _, ri := range ch.byBeta[string(s.t[e-lb:e])] {
+				s.addRule(ri, e)
+			}
+		}
+	}
+	sortRules(s.rules)
+	s.ruleMask = s.ruleMask[:0]
+	var rm [4]uint64
+	for i := range s.rules {
+		c := s.rules[i].alpha[0]
+		rm[c>>6] |= 1 << (c & 63)
+		s.ruleMask = append(s.ruleMask, rm)
+		if len(s.first[c]) == 0 {
+			s.usedFirst = append(s.usedFirst, c)
+		}
+		s.first[c] = append(s.first[c], int32(i))
+	}
+}
+
+// leadFirst adds the first-letter surcharge (leadCost) to the spelling
+// explanations of edits at the first typed byte; keyboard slips there cost
+// what they cost anywhere.
+func (s *search) leadFirst() {
+	ch, n, t0 := s.ch, s.n, s.t[0]
+	for c := 0; c < 256; c++ {
+		if c == int(t0) {
+			continue
+		}
+		v := s.subC[c*n] + ch.lead
+		if t0 < 128 && c < 128 {
+			v = min(v, ch.slipSub[t0][c])
+		}
+		s.subC[c*n] = v
+	}
+	v := s.ins[0] + ch.lead
+	if n > 1 {
+		if t0 == s.t[1] {
+			v = min(v, ch.slipRep)
+		}
+		v = min(v, ch.insNear[t0][s.t[1]])
+	}
+	s.ins[0] = v
 }
 
 func grow(b []float32, n int) []float32 {
@@ -210,21 +275,87 @@ func (s *search) run() {
 	s.visit(0, st, 0)
 }
 
+// visit explores the lexicon below state, reached at depth d with output
+// sum acc.
 func (s *search) visit(d int, state int, acc uint64) {
 	if s.limit > 0 && s.visited >= s.limit {
 		return // out of time: keep what was found
 	}
 	s.visited++
 	w := s.w
-	row := s.rows[d*w : (d+1)*w]
-	if ok, fo := s.lex.Final(state); ok && row[s.n] <= s.budget {
-		s.hits = append(s.hits, hit{id: uint32(acc + fo), cost: row[s.n]})
+	budget := s.budget
+	if c := s.rows[d*w+s.n]; c <= budget {
+		if ok, fo := s.lex.Final(state); ok {
+			if s.rk != nil {
+				s.rk.add(uint32(acc+fo), c)
+			} else {
+				s.hits = append(s.hits, hit{id: uint32(acc + fo), cost: c})
+			}
+		}
 	}
 	if d >= s.maxDepth {
 		return
 	}
+	var edges []Edge
+	var set [4]uint64
+	haveSet := false
+	if s.el != nil {
+		edges = s.el.AppendEdges(s.edges[d][:0], state)
+		if len(edges) >= setMinEdges {
+			set, haveSet = s.allowed(d), true
+		}
+	} else {
+		set, haveSet = s.allowed(d), true
+		edges = s.edges[d][:0]
+		for wi, word := range set {
+			for word != 0 {
+				c := byte(wi<<6 | bits.TrailingZeros64(word))
+				word &= word - 1
+				next, out, ok := s.lex.Step(state, c)
+				if ok && s.lex.CanMatch(next) {
+					edges = append(edges, Edge{Byte: c, Next: next, Out: out})
+				}
+			}
+		}
+	}
+	s.edges[d] = edges
+	for i := range edges {
+		e := &edges[i]
+		c := e.Byte
+		if haveSet || plainByte[c>>6]&(1<<(c&63)) == 0 {
+			// A byte outside the alphabet is tried only where the typed
+			// word, a cheap edit or a rule suggests it.
+			if !haveSet {
+				set, haveSet = s.allowed(d), true
+			}
+			if set[c>>6]&(1<<(c&63)) == 0 {
+				continue
+			}
+		}
+		s.path[d] = c
+		base := s.advance(d, c)
+		if s.computeRow(d+1) <= budget || s.actEnd[d+1] > base {
+			s.visit(d+1, e.Next, acc+e.Out)
+		}
+		s.act = s.act[:base]
+	}
+}
+
+// setMinEdges is the number of edges from which a state's edges are
+// filtered through allowed before their rows are computed: the set costs
+// about as much as a few rows (measured, this project).
+const setMinEdges = 4
+
+// allowed returns the set of intended bytes worth trying after depth d:
+// every byte whose row can stay within budget by a match, a listed
+// substitution or deletion, a transposition or a rule. Alphabet letters
+// are listed with all their costs, so for them the set only saves work;
+// other bytes are tried only when it holds them.
+func (s *search) allowed(d int) [4]uint64 {
 	var set [4]uint64
 	add := func(c byte) { set[c>>6] |= 1 << (c & 63) }
+	w := s.w
+	row := s.rows[d*w : (d+1)*w]
 	budget := s.budget
 	ch := s.ch
 	for j := 0; j < s.n; j++ {
@@ -262,46 +393,25 @@ func (s *search) visit(d int, state int, acc uint64) {
 	for _, p := range s.act[s.actStart[d]:s.actEnd[d]] {
 		add(s.rules[p.rule].alpha[p.k])
 	}
-	for i := range s.rules {
-		if m+s.rules[i].cost > budget {
-			break
-		}
-		add(s.rules[i].alpha[0])
-	}
-	if s.el != nil {
-		edges := s.el.AppendEdges(s.edges[d][:0], state)
-		s.edges[d] = edges
-		for _, e := range edges {
-			c := e.Byte
-			if set[c>>6]&(1<<(c&63)) == 0 {
-				continue
-			}
-			s.path[d] = c
-			base := s.advance(d, c)
-			if s.computeRow(d+1) <= budget || s.actEnd[d+1] > base {
-				s.visit(d+1, e.Next, acc+e.Out)
-			}
-			s.act = s.act[:base]
-		}
-		return
-	}
-	for wi, word := range set {
-		for word != 0 {
-			b := bits.TrailingZeros64(word)
-			word &= word - 1
-			c := byte(wi<<6 | b)
-			next, out, ok := s.lex.Step(state, c)
-			if !ok || !s.lex.CanMatch(next) {
-				continue
-			}
-			s.path[d] = c
-			base := s.advance(d, c)
-			if s.computeRow(d+1) <= budget || s.actEnd[d+1] > base {
-				s.visit(d+1, next, acc+out)
-			}
-			s.act = s.act[:base]
+	// Rules are sorted by cost: the first k within budget contribute their
+	// first bytes, accumulated in ruleMask[k-1].
+	lo, hi := 0, len(s.rules)
+	for lo < hi {
+		mid := int(uint(lo+hi) >> 1)
+		if m+s.rules[mid].cost > budget {
+			hi = mid
+		} else {
+			lo = mid + 1
 		}
 	}
+	k := lo
+	if k > 0 {
+		rm := &s.ruleMask[k-1]
+		for i := range set {
+			set[i] |= rm[i]
+		}
+	}
+	return set
 }
 
 // advance extends the partial rule matches of depth d by byte c into
@@ -310,7 +420,13 @@ func (s *search) visit(d int, state int, acc uint64) {
 func (s *search) advance(d int, c byte) int {
 	base := len(s.act)
 	s.done = s.done[:0]
-	for i := s.actStart[d]; i < s.actEnd[d]; i++ {
+	lo, hi := s.actStart[d], s.actEnd[d]
+	first := s.first[c]
+	if lo == hi && len(first) == 0 {
+		s.actStart[d+1], s.actEnd[d+1] = base, base
+		return base
+	}
+	for i := lo; i < hi; i++ {
 		p := s.act[i]
 		r := &s.rules[p.rule]
 		if r.alpha[p.k] != c {
@@ -324,7 +440,7 @@ func (s *search) advance(d int, c byte) int {
 		}
 	}
 	m := s.mins[d]
-	for _, ri := range s.first[c] {
+	for _, ri := range first {
 		r := &s.rules[ri]
 		if m+r.cost > s.budget {
 			break // first[c] is sorted by cost
@@ -341,7 +457,8 @@ func (s *search) advance(d int, c byte) int {
 }
 
 // computeRow fills row d from the rows above it, path[:d] and the rules in
-// s.done, stores and returns its minimum.
+// s.done, stores and returns its minimum. Cost: O(typed length), with a
+// plain loop when no transposition or rule applies.
 func (s *search) computeRow(d int) float32 {
 	w, n, ch := s.w, s.n, s.ch
 	c := s.path[d-1]
@@ -351,49 +468,75 @@ func (s *search) computeRow(d int) float32 {
 	}
 	P := s.rows[(d-1)*w : d*w]
 	R := s.rows[d*w : (d+1)*w]
+	R = R[:len(P)]
+	sub := s.subC[int(c)*n : int(c)*n+n]
+	ins := s.ins[:n]
 	dc := ch.del[c]
 	if d >= 2 && pc == c {
 		dc = min(dc, ch.delDbl)
 	}
-	hasRules := len(s.done) > 0
-	if hasRules {
-		E := s.extra
-		for j := range E {
-			E[j] = inf
+	if d == 1 && ch.lead > 0 {
+		dc = min(ch.slipDel, dc+ch.lead) // del is min(slip, spelling)
+	}
+	// tm has bit j set where typed bytes j-2, j-1 are c, pc swapped.
+	var tm uint64
+	if d >= 2 && c != pc {
+		tm = (s.pos[c] << 2) & (s.pos[pc] << 1)
+	}
+	if len(s.done) == 0 && tm == 0 {
+		v := P[0] + dc
+		R[0] = v
+		m := v
+		for j := 1; j <= n; j++ {
+			x := P[j-1] + sub[j-1]
+			if y := P[j] + dc; y < x {
+				x = y
+			}
+			if y := v + ins[j-1]; y < x {
+				x = y
+			}
+			R[j] = x
+			v = x
+			if x < m {
+				m = x
+			}
 		}
-		for _, p := range s.done {
-			r := &s.rules[p.rule]
-			base := s.rows[int(p.from)*w : (int(p.from)+1)*w]
-			for ends := r.ends; ends != 0; ends &= ends - 1 {
-				e := bits.TrailingZeros64(ends)
-				if v := base[e-r.lb] + r.cost; v < E[e] {
-					E[e] = v
-				}
+		s.mins[d] = m
+		return m
+	}
+	E := s.extra[:len(P)]
+	for j := range E {
+		E[j] = inf
+	}
+	for _, p := range s.done {
+		r := &s.rules[p.rule]
+		base := s.rows[int(p.from)*w : (int(p.from)+1)*w]
+		for ends := r.ends; ends != 0; ends &= ends - 1 {
+			e := bits.TrailingZeros64(ends)
+			v := base[e-r.lb] + r.cost
+			if p.from == 0 && e == r.lb && (r.lb == 0 || r.alpha[0] != s.t[0]) {
+				v += ch.lead
+			}
+			if v < E[e] {
+				E[e] = v
 			}
 		}
 	}
-	v0 := P[0] + dc
-	if hasRules {
-		v0 = min(v0, s.extra[0])
-	}
-	R[0] = v0
-	m := v0
 	var T []float32
 	if d >= 2 {
 		T = s.rows[(d-2)*w : (d-1)*w]
 	}
-	subQ := s.subQ
+	v := min(P[0]+dc, E[0])
+	R[0] = v
+	m := v
 	for j := 1; j <= n; j++ {
-		tj := s.t[j-1]
-		v := min(P[j-1]+subQ[(j-1)<<8|int(c)], P[j]+dc, R[j-1]+s.ins[j-1])
-		if T != nil && j >= 2 && c == s.t[j-2] && pc == tj && c != pc {
-			v = min(v, T[j-2]+ch.trans)
+		x := min(P[j-1]+sub[j-1], P[j]+dc, v+ins[j-1], E[j])
+		if tm&(1<<j) != 0 {
+			x = min(x, T[j-2]+ch.trans)
 		}
-		if hasRules {
-			v = min(v, s.extra[j])
-		}
-		R[j] = v
-		m = min(m, v)
+		R[j] = x
+		v = x
+		m = min(m, x)
 	}
 	s.mins[d] = m
 	return m

@@ -2,6 +2,7 @@ package correct
 
 import (
 	"fmt"
+	"math"
 	"sort"
 	"testing"
 
@@ -12,7 +13,9 @@ import (
 // TestSearchMatchesVellumLevenshtein checks the lexicon walk against
 // vellum's Levenshtein automaton (github.com/blevesearch/vellum/levenshtein,
 // a reference implementation): with unit costs, the words found within
-// distance 1 and 2 are the same set, with and without transpositions.
+// distance 1 and 2 are the same set, with and without transpositions,
+// whether the walk probes bytes one at a time (vellum's own FST) or lists
+// each state's edges (the trie package's reader and the flat test trie).
 func TestSearchMatchesVellumLevenshtein(t *testing.T) {
 	d := corpus(t)
 	var words []string
@@ -31,6 +34,15 @@ func TestSearchMatchesVellumLevenshtein(t *testing.T) {
 		}
 	}
 	lex := newVellumLex(t, words)
+	walks := []struct {
+		name string
+		lex  Lexicon
+		word func([]byte, uint32) []byte
+	}{
+		{"vellum", lex, lex.AppendWord},
+		{"trie", newTrieLex(t, words), newTrieLex(t, words).AppendWord},
+		{"flat", newFlatLex(words), newFlatLex(words).AppendWord},
+	}
 	queries := []string{"teh", "recieve", "wierd", "becuase", "definately", "a", "xq", "seperate", "thier", "freind"}
 	for _, transpose := range []bool{false, true} {
 		ch := unitChannel(transpose)
@@ -56,17 +68,19 @@ func TestSearchMatchesVellumLevenshtein(t *testing.T) {
 					if err != vellum.ErrIteratorDone {
 						t.Fatalf("vellum search: %v", err)
 					}
-					var s search
-					s.reset(ch, lex, q, float32(dist), len(q)+int(dist))
-					s.run()
-					var got []string
-					for _, h := range s.hits {
-						got = append(got, string(lex.AppendWord(nil, h.id)))
-					}
-					sort.Strings(got)
 					sort.Strings(want)
-					if fmt.Sprint(got) != fmt.Sprint(want) {
-						t.Errorf("search(%q, %d) = %v\nwant %v", q, dist, got, want)
+					for _, wk := range walks {
+						var s search
+						s.reset(ch, wk.lex, q, float32(dist), len(q)+int(dist))
+						s.run()
+						var got []string
+						for _, h := range s.hits {
+							got = append(got, string(wk.word(nil, h.id)))
+						}
+						sort.Strings(got)
+						if fmt.Sprint(got) != fmt.Sprint(want) {
+							t.Errorf("%s search(%q, %d) = %v\nwant %v", wk.name, q, dist, got, want)
+						}
 					}
 					total += len(want)
 				})
@@ -96,5 +110,47 @@ func TestFlatLexIDs(t *testing.T) {
 		if !ok || acc+fo != uint64(want) {
 			t.Errorf("walk(%q) = %d,%v, want %d", w, acc+fo, ok, want)
 		}
+	}
+}
+
+// TestLeadCost checks the first-letter surcharge (leadCost, derived in
+// channel.go from the misspellings list and the first-letter finding of
+// Pollock and Zamora 1983, from memory): a spelling edit of the first
+// letter costs leadCost more than the same edit further in, while a swap
+// of the first two letters and a slip to a neighbouring key cost the same
+// wherever they are.
+func TestLeadCost(t *testing.T) {
+	kb, err := LayoutQWERTY.Keyboard()
+	if err != nil {
+		t.Fatal(err)
+	}
+	em, err := BuiltinErrorModel()
+	if err != nil {
+		t.Fatal(err)
+	}
+	ch := newChannel(kb, em)
+	// k and l are neighbours on QWERTY, z and p far apart: the slip
+	// explains k for l best, and z for p worse than a spelling error.
+	if ch.slipSub['k']['l'] > ch.sub['k']['l'] || ch.slipSub['z']['p'] < ch.sub['z']['p']+leadCost {
+		t.Fatalf("slip costs k-l %v, z-p %v; want the first cheapest, the second dearer than %v", ch.slipSub['k']['l'], ch.slipSub['z']['p'], ch.sub['z']['p']+leadCost)
+	}
+	tests := []struct {
+		name                 string
+		first, firstIntended string // edit at the first letter
+		mid, midIntended     string // the same edit further in
+		extra                float32
+	}{
+		{"far substitution", "zat", "pat", "azt", "apt", leadCost},
+		{"neighbour slip", "kove", "love", "okve", "olve", 0},
+		{"swap", "wvab", "vwab", "awvb", "avwb", 0},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			a := ch.distance(tc.first, tc.firstIntended)
+			b := ch.distance(tc.mid, tc.midIntended)
+			if diff := a - b; math.Abs(float64(diff-tc.extra)) > 1e-4 {
+				t.Errorf("distance(%q,%q) − distance(%q,%q) = %v, want %v", tc.first, tc.firstIntended, tc.mid, tc.midIntended, diff, tc.extra)
+			}
+		})
 	}
 }
