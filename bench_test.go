@@ -14,13 +14,14 @@ import (
 	"testing"
 	"time"
 
+	"github.com/keyloom/keyloom/corpora"
 	"github.com/keyloom/keyloom/internal/bundle"
 )
 
 // syntheticModel builds a model file of roughly the given size from random
 // Zipf-distributed word sequences over the Opticks vocabulary, so that
 // n-grams keep growing with the text (fixed seed).
-func syntheticModel(b *testing.B, tokens int) (string, []byte) {
+func syntheticModel(b testing.TB, tokens int) (string, []byte) {
 	b.Helper()
 	raw, err := os.ReadFile("lm/testdata/opticks-train.txt")
 	if err != nil {
@@ -175,4 +176,127 @@ func BenchmarkSuggest(b *testing.B) {
 			b.ReportMetric(float64(times[len(times)*99/100].Nanoseconds())/1e3, "p99-µs")
 		})
 	}
+}
+
+// suggestInputs returns the text before the cursor at every keystroke of
+// the first 39 Opticks test sentences.
+func suggestInputs(b *testing.B) []string {
+	b.Helper()
+	raw, err := os.ReadFile("lm/testdata/opticks-test.txt")
+	if err != nil {
+		b.Fatal(err)
+	}
+	var inputs []string
+	text := ""
+	for _, line := range strings.SplitN(string(raw), "\n", 40)[:39] {
+		for _, w := range strings.Fields(line) {
+			for i := 0; i <= len(w); i++ {
+				inputs = append(inputs, text+w[:i])
+			}
+			text += w + " "
+		}
+		text = ""
+	}
+	return inputs
+}
+
+// BenchmarkSuggestOverlay types the keystrokes of BenchmarkSuggest into two
+// engines on the same synthetic model, one without a user overlay and one
+// whose overlay has learned the invented demo corpus and the Opticks
+// training text (about 40 k n-grams, many words the model lacks), timing
+// both on the same keystroke in turn so that both see the same machine
+// load. It reports each one's median and their ratio (target: ≤ 1.5).
+func BenchmarkSuggestOverlay(b *testing.B) {
+	_, data := syntheticModel(b, 300_000)
+	inputs := suggestInputs(b)
+	plain, err := OpenBytes(data, Options{})
+	if err != nil {
+		b.Fatal(err)
+	}
+	defer plain.Close()
+	user, err := OpenBytes(data, Options{MaxUserEntries: 60_000})
+	if err != nil {
+		b.Fatal(err)
+	}
+	defer user.Close()
+	raw, err := os.ReadFile("lm/testdata/opticks-train.txt")
+	if err != nil {
+		b.Fatal(err)
+	}
+	for _, text := range []string{corpora.DemoText(), string(raw)} {
+		for line := range strings.Lines(text) {
+			if err := user.Learn(line); err != nil {
+				b.Fatal(err)
+			}
+		}
+	}
+	b.ReportAllocs()
+	var tPlain, tUser []time.Duration
+	i := 0
+	for b.Loop() {
+		in := inputs[i%len(inputs)]
+		t0 := time.Now()
+		if _, err := plain.Suggest(in); err != nil {
+			b.Fatal(err)
+		}
+		t1 := time.Now()
+		if _, err := user.Suggest(in); err != nil {
+			b.Fatal(err)
+		}
+		t2 := time.Now()
+		if len(tPlain) < 1<<16 {
+			tPlain = append(tPlain, t1.Sub(t0))
+			tUser = append(tUser, t2.Sub(t1))
+		}
+		i++
+	}
+	slices.Sort(tPlain)
+	slices.Sort(tUser)
+	mp, mu := tPlain[len(tPlain)/2], tUser[len(tUser)/2]
+	b.ReportMetric(float64(mp.Nanoseconds())/1e3, "plain-median-µs")
+	b.ReportMetric(float64(mu.Nanoseconds())/1e3, "overlay-median-µs")
+	b.ReportMetric(float64(mu)/float64(mp), "median-ratio")
+	b.ReportMetric(float64(tUser[len(tUser)*99/100].Nanoseconds())/1e3, "overlay-p99-µs")
+	b.ReportMetric(float64(user.UserEntries()), "user-ngrams")
+}
+
+// BenchmarkSaveOverlay saves a user overlay of about 10 k n-grams (the
+// demo corpus learned under a cap of 11 k entries): "encode" builds the
+// file's bytes (SaveBytes), "save" writes them atomically with fsync of
+// the file and the directory (Save). Target: ≤ 20 ms.
+func BenchmarkSaveOverlay(b *testing.B) {
+	_, data := syntheticModel(b, 300_000)
+	e, err := OpenBytes(data, Options{MaxUserEntries: 11_000})
+	if err != nil {
+		b.Fatal(err)
+	}
+	defer e.Close()
+	for line := range strings.Lines(corpora.DemoText()) {
+		if err := e.Learn(line); err != nil {
+			b.Fatal(err)
+		}
+	}
+	path := filepath.Join(b.TempDir(), "user.klo")
+	b.Run("encode", func(b *testing.B) {
+		b.ReportAllocs()
+		n := 0
+		for b.Loop() {
+			out, err := e.SaveBytes()
+			if err != nil {
+				b.Fatal(err)
+			}
+			n = len(out)
+		}
+		b.ReportMetric(float64(e.UserEntries()), "ngrams")
+		b.ReportMetric(float64(n), "bytes")
+	})
+	b.Run("save", func(b *testing.B) {
+		b.ReportAllocs()
+		for b.Loop() {
+			if err := e.Save(path); err != nil {
+				b.Fatal(err)
+			}
+		}
+		b.ReportMetric(float64(e.UserEntries()), "ngrams")
+	})
 }

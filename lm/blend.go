@@ -96,6 +96,11 @@ type query struct {
 	wCache  float64
 	invGrow float64
 	invC    float64
+	// Witten-Bell weights of the user model's levels (unigram, bigram
+	// context, trigram context): β·N and the denominator T/grow + β·N;
+	// on[i] is false for a level that is absent.
+	bn, den [3]float64
+	on      [3]bool
 }
 
 func (v *OverlayView) prepare(ctx []uint32, q *query) {
@@ -133,45 +138,80 @@ func (v *OverlayView) prepare(ctx []uint32, q *query) {
 		}
 	}
 	q.wBase = 1 - q.wUser - q.wCache
+	beta := cfg.beta
+	q.on = [3]bool{}
+	if v.uniTypes > 0 {
+		q.on[0] = true
+		q.bn[0] = beta * float64(v.uniTypes)
+		q.den[0] = v.uniTotal*q.invGrow + q.bn[0]
+	}
+	for i, nd := range [2]*ovNode{q.n2, q.n3} {
+		if nd != nil && nd.n > 0 {
+			q.on[i+1] = true
+			q.bn[i+1] = beta * float64(nd.n)
+			q.den[i+1] = nd.total*q.invGrow + q.bn[i+1]
+		}
+	}
+}
+
+// evidence is what the user side knows of one word: its counts in the user
+// unigram, bigram context and trigram context (stored units) and its cache
+// weights as a unigram and after the last word (cache units).
+type evidence struct {
+	c     [3]float64
+	cu    float64
+	cb    float64
+	typed uint32 // times typed (from the unigram entry)
+	uni   bool   // the word has a user unigram entry
+}
+
+// evidenceOf looks up the user-side evidence of w for the prepared history.
+func (v *OverlayView) evidenceOf(q *query, w uint32) evidence {
+	var ev evidence
+	if e := v.uniEntry(w); e != nil {
+		ev.c[0], ev.typed, ev.uni = e.cnt, e.typed, true
+	}
+	if e := q.n2.find(w); e != nil {
+		ev.c[1] = e.cnt
+	}
+	if e := q.n3.find(w); e != nil {
+		ev.c[2] = e.cnt
+	}
+	if q.wCache > 0 {
+		ev.cu = cacheFind(v.cache.uni, noPrev, w)
+		if q.cBiTot > 0 && q.hasB {
+			ev.cb = cacheFind(v.cache.bi[q.cLo:q.cHi], q.b, w)
+		}
+	}
+	return ev
 }
 
 // prob returns the blended probability of w given the prepared history and
 // p_base(w | h).
 func (v *OverlayView) prob(q *query, w uint32, pb float64) float64 {
-	beta := v.cfg.beta
+	ev := v.evidenceOf(q, w)
+	return v.blendProb(q, pb, &ev)
+}
+
+// blendProb returns the blended probability of a word with base
+// probability pb and the given evidence. It is monotone (never decreasing)
+// in pb and in every count, operation by operation, which the exact top-k
+// search relies on.
+func (v *OverlayView) blendProb(q *query, pb float64, ev *evidence) float64 {
 	// User model: unigram, then bigram, then trigram context.
 	pu := pb
-	if v.uniTypes > 0 {
-		c := 0.0
-		if e := v.uniEntry(w); e != nil {
-			c = e.cnt
+	for i := range 3 {
+		if q.on[i] {
+			pu = (ev.c[i]*q.invGrow + q.bn[i]*pu) / q.den[i]
 		}
-		bn := beta * float64(v.uniTypes)
-		pu = (c*q.invGrow + bn*pu) / (v.uniTotal*q.invGrow + bn)
-	}
-	for _, nd := range [2]*ovNode{q.n2, q.n3} {
-		if nd == nil || len(nd.list) == 0 {
-			continue
-		}
-		c := 0.0
-		if i := nd.find(w); i >= 0 {
-			c = nd.list[i].cnt
-		}
-		bn := beta * float64(len(nd.list))
-		pu = (c*q.invGrow + bn*pu) / (nd.total*q.invGrow + bn)
 	}
 	p := q.wBase*pb + q.wUser*pu
 	if q.wCache > 0 {
-		cs := v.cache.sum
-		pc1 := cacheFind(v.cache.uni, noPrev, w) / cs
+		pc1 := ev.cu / v.cache.sum
 		pc := pc1
 		if q.cBiTot > 0 {
-			cb := 0.0
-			if q.hasB {
-				cb = cacheFind(v.cache.bi[q.cLo:q.cHi], q.b, w)
-			}
 			k := v.cfg.kappa
-			pc = (cb*q.invC + k*pc1) / (q.cBiTot*q.invC + k)
+			pc = (ev.cb*q.invC + k*pc1) / (q.cBiTot*q.invC + k)
 		}
 		p += q.wCache * pc
 	}
@@ -193,204 +233,6 @@ func (v *OverlayView) LogProb(ctx []uint32, w uint32) float64 {
 		pb = math.Exp(v.base.score(q.nb[:q.nn], w))
 	}
 	return math.Log(v.prob(&q, w, pb))
-}
-
-// candSet collects distinct candidate IDs, remembering base log-probabilities when known.
-type candSet struct {
-	n   int
-	ids [8 * MaxK]uint32
-	lp  [8 * MaxK]float64 // NaN: not computed
-}
-
-func (c *candSet) add(id uint32, lp float64) {
-	for i := range c.n {
-		if c.ids[i] == id {
-			return
-		}
-	}
-	if c.n < len(c.ids) {
-		c.ids[c.n], c.lp[c.n] = id, lp
-		c.n++
-	}
-}
-
-// TopK appends to dst the k most probable next words under the blend after
-// ctx (extended IDs, oldest first) that complete the typed prefix, best
-// first. prefix is the folded typed part of the word ("" for next-word
-// prediction); [lo, hi) is the base vocabulary's ID range of the words that
-// start with it (0, VocabSize of the base model when prefix is ""), as the
-// lexicon gives it. Words only the user has typed are matched against
-// prefix by the view itself and are offered once typed MinTyped times.
-// Results carry extended IDs; the special tokens are never returned; k is
-// capped at MaxK.
-//
-// Candidates are the base model's best k in the range, and the best k+2 of
-// each user-side source: the user's successors of the last two words and of
-// the last word, the user's most counted words in the range, and the
-// recency cache's bigram successors and unigrams; each is scored exactly
-// under the blend. A word with no user or cache evidence ranks under the
-// blend as under the base model, so only words with weak evidence in
-// several sources at once can be missed: the result matched scoring every
-// word on 145 of 147 test queries (TestOverlayTopKMatchesBruteForce). It
-// does not allocate when dst has room for k results.
-func (v *OverlayView) TopK(ctx []uint32, prefix string, lo, hi uint32, k int, dst []Scored) []Scored {
-	if k > MaxK {
-		k = MaxK
-	}
-	if hi > v.V {
-		hi = v.V
-	}
-	if k <= 0 {
-		return dst
-	}
-	var q query
-	v.prepare(ctx, &q)
-	// Each user-side source offers more than k words, since a word with
-	// evidence from several sources can outrank words stronger in each one.
-	wide := min(k+2, MaxK)
-	var cs candSet
-	var bt [MaxK]Scored
-	if lo < hi {
-		for _, s := range v.base.TopK(q.base[:q.nctx], lo, hi, k, bt[:0]) {
-			cs.add(s.ID, s.LogP)
-		}
-	}
-	nan := math.NaN()
-	whole := prefix == ""
-	// The user's successors of the history.
-	for _, nd := range [2]*ovNode{q.n3, q.n2} {
-		if nd == nil {
-			continue
-		}
-		if whole && wide <= nd.nbest {
-			for _, i := range nd.best[:wide] {
-				cs.add(nd.list[i].tok, nan)
-			}
-			continue
-		}
-		var tb topBuf
-		tb.k = wide
-		v.rangeTop(&tb, nd.list, prefix, lo, hi)
-		for _, s := range tb.buf[:tb.n] {
-			cs.add(s.ID, nan)
-		}
-	}
-	// The user's most counted words in the range.
-	{
-		var tb topBuf
-		tb.k = wide
-		if whole {
-			for _, s := range v.top[:v.nTop] {
-				tb.push(Scored{ID: s.tok, LogP: s.cnt})
-			}
-		} else {
-			if lo < hi {
-				for bkt := lo >> ovBucketShift; bkt <= (hi-1)>>ovBucketShift; bkt++ {
-					if nd := v.lookup(tagUni<<62 | uint64(bkt)); nd != nil {
-						v.rangeTop(&tb, nd.list, prefix, lo, hi)
-					}
-				}
-			}
-			// User words with the prefix: a run of byStr.
-			p, _ := v.findUser(prefix)
-			for ; p < len(v.byStr) && strings.HasPrefix(v.words[v.byStr[p]], prefix); p++ {
-				if e := v.uniEntry(v.V + v.byStr[p]); e != nil {
-					tb.push(Scored{ID: e.tok, LogP: e.cnt})
-				}
-			}
-		}
-		for _, s := range tb.buf[:tb.n] {
-			cs.add(s.ID, nan)
-		}
-	}
-	// The recency cache.
-	if q.wCache > 0 {
-		var tb topBuf
-		tb.k = wide
-		if q.hasB {
-			v.cacheTop(&tb, v.cache.bi[q.cLo:q.cHi], prefix, lo, hi)
-		}
-		for _, s := range tb.buf[:tb.n] {
-			cs.add(s.ID, nan)
-		}
-		tb.n = 0
-		if whole && wide <= v.cache.nbest {
-			for _, e := range v.cache.best[:wide] {
-				cs.add(e.tok, nan)
-			}
-		} else {
-			v.cacheTop(&tb, v.cache.uni, prefix, lo, hi)
-			for _, s := range tb.buf[:tb.n] {
-				cs.add(s.ID, nan)
-			}
-		}
-	}
-	var res topBuf
-	res.k = k
-	for i := range cs.n {
-		id := cs.ids[i]
-		if id >= v.V {
-			e := v.uniEntry(id)
-			if e == nil || !v.suggestible(id, e.typed) {
-				continue
-			}
-		} else if !v.suggestible(id, 0) || id < lo || id >= hi {
-			continue
-		}
-		pb := 0.0
-		if id < v.V {
-			lp := cs.lp[i]
-			if lp != lp { // NaN: not from the base TopK
-				lp = v.base.score(q.nb[:q.nn], id)
-			}
-			pb = math.Exp(lp)
-		}
-		res.push(Scored{ID: id, LogP: math.Log(v.prob(&q, id, pb))})
-	}
-	return append(dst, res.buf[:res.n]...)
-}
-
-// rangeTop pushes the entries of a token-sorted list that lie in the base
-// range [lo, hi) or are user words starting with prefix, scored by count.
-func (v *OverlayView) rangeTop(tb *topBuf, list []ovEntry, prefix string, lo, hi uint32) {
-	if prefix == "" {
-		for _, e := range list {
-			tb.push(Scored{ID: e.tok, LogP: e.cnt})
-		}
-		return
-	}
-	a := entryLower(list, lo)
-	b := a + entryLower(list[a:], hi)
-	for _, e := range list[a:b] {
-		tb.push(Scored{ID: e.tok, LogP: e.cnt})
-	}
-	for _, e := range list[a+entryLower(list[a:], v.V):] { // user words sort last
-		if v.hasPrefix(e.tok, prefix) {
-			tb.push(Scored{ID: e.tok, LogP: e.cnt})
-		}
-	}
-}
-
-// cacheTop is rangeTop for cache entries with one prev, sorted by tok.
-func (v *OverlayView) cacheTop(tb *topBuf, list []cacheEnt, prefix string, lo, hi uint32) {
-	if prefix == "" {
-		for _, e := range list {
-			tb.push(Scored{ID: e.tok, LogP: e.w})
-		}
-		return
-	}
-	a := cacheLower(list, lo)
-	for _, e := range list[a:] {
-		if e.tok >= hi {
-			break
-		}
-		tb.push(Scored{ID: e.tok, LogP: e.w})
-	}
-	for _, e := range list[a+cacheLower(list[a:], v.V):] {
-		if v.hasPrefix(e.tok, prefix) {
-			tb.push(Scored{ID: e.tok, LogP: e.w})
-		}
-	}
 }
 
 func (v *OverlayView) hasPrefix(tok uint32, prefix string) bool {

@@ -105,8 +105,49 @@ func (c ovCache) add(toks []uint32, bos uint32, tau float64, scratch []cacheEnt)
 	out.grow = g
 	out.uni, out.sum = mergeCache(c.uni, ups[len(ups)-n:], floor)
 	out.bi, _ = mergeCache(c.bi, ups[:len(ups)-n], floor)
-	out.rank()
+	// The heaviest unigrams: weights only grow between merges, so the old
+	// list stays exact with the changed words noted, unless a listed word
+	// fell below the floor or the weights were rescaled.
+	fresh := c.nbest == 0 || g == 1
+	for _, e := range c.best[:c.nbest] {
+		if e.w < floor {
+			fresh = true
+		}
+	}
+	if fresh {
+		out.rank()
+		return out, ups
+	}
+	out.best, out.nbest = c.best, c.nbest
+	for _, u := range ups[len(ups)-n:] {
+		out.noteBest(cacheEnt{prev: noPrev, tok: u.tok, w: cacheFind(out.uni, noPrev, u.tok)})
+	}
 	return out, ups
+}
+
+// noteBest keeps the heaviest list exact after the weight of e.tok grew to e.w.
+func (c *ovCache) noteBest(e cacheEnt) {
+	heavier := func(a, b cacheEnt) bool { return a.w > b.w || a.w == b.w && a.tok < b.tok }
+	nb := c.nbest
+	i := 0
+	for i < nb && c.best[i].tok != e.tok {
+		i++
+	}
+	if i == nb {
+		if nb == cacheBest {
+			if !heavier(e, c.best[nb-1]) {
+				return
+			}
+			i = nb - 1
+		} else {
+			c.nbest++
+		}
+	}
+	for i > 0 && heavier(e, c.best[i-1]) {
+		c.best[i] = c.best[i-1]
+		i--
+	}
+	c.best[i] = e
 }
 
 func scaleCache(s []cacheEnt, f float64) []cacheEnt {
@@ -119,30 +160,47 @@ func scaleCache(s []cacheEnt, f float64) []cacheEnt {
 }
 
 // mergeCache merges sorted new weights into a sorted list, dropping entries
-// below floor. It returns the new list and the sum of its weights.
+// below floor. It returns the new list and the sum of its weights. An old
+// entry comes before a new one with the same key; the new weight is added
+// to it, or starts the entry afresh when the old one was dropped. The sum
+// adds the weights in output order. Runs of old entries between two new
+// ones are found by binary search and copied in a tight loop.
 func mergeCache(old, add []cacheEnt, floor float64) ([]cacheEnt, float64) {
 	out := make([]cacheEnt, 0, len(old)+len(add))
 	sum := 0.0
-	push := func(e cacheEnt) {
-		if n := len(out); n > 0 && out[n-1].prev == e.prev && out[n-1].tok == e.tok {
-			out[n-1].w += e.w
-			sum += e.w
-			return
+	i := 0
+	for j := 0; j <= len(add); j++ {
+		end := len(old)
+		if j < len(add) { // old entries up to and including add[j]'s key
+			a := add[j]
+			lo, hi := i, len(old)
+			for lo < hi {
+				m := int(uint(lo+hi) >> 1)
+				if cmpCache(old[m], a) <= 0 {
+					lo = m + 1
+				} else {
+					hi = m
+				}
+			}
+			end = lo
 		}
-		if e.w < floor {
-			return
+		for _, e := range old[i:end] { // distinct keys, none equal to out's last
+			if e.w >= floor {
+				out = append(out, e)
+				sum += e.w
+			}
 		}
-		out = append(out, e)
-		sum += e.w
-	}
-	i, j := 0, 0
-	for i < len(old) || j < len(add) {
-		if j == len(add) || i < len(old) && cmpCache(old[i], add[j]) <= 0 {
-			push(old[i])
-			i++
-		} else {
-			push(add[j])
-			j++
+		i = end
+		if j == len(add) {
+			break
+		}
+		a := add[j]
+		if n := len(out); n > 0 && out[n-1].prev == a.prev && out[n-1].tok == a.tok {
+			out[n-1].w += a.w
+			sum += a.w
+		} else if a.w >= floor {
+			out = append(out, a)
+			sum += a.w
 		}
 	}
 	return out, sum

@@ -42,7 +42,7 @@ func (o *Overlay) AppendSection(dst []byte) []byte { return o.View().AppendSecti
 
 // AppendSection appends the view's state as an overlay section (see Overlay.AppendSection).
 func (v *OverlayView) AppendSection(dst []byte) []byte {
-	grams := v.flatten(nil)
+	grams := v.flatten(make([]gram, 0, v.entries))
 	name := func(t uint32) string {
 		switch {
 		case t == v.bos:
@@ -54,46 +54,44 @@ func (v *OverlayView) AppendSection(dst []byte) []byte {
 		}
 		return v.words[t-v.V]
 	}
-	// String table.
-	idx := make(map[string]uint32)
-	var strs []string
-	note := func(s string) {
-		if _, ok := idx[s]; !ok {
-			idx[s] = 0
-			strs = append(strs, s)
-		}
-	}
-	type sg struct {
-		g    gram
-		name [3]string
-	}
-	named := make([]sg, 0, len(grams))
+	// Distinct tokens, named once each (a base word's name may cost an
+	// allocation), then the string table: every name and rejected string,
+	// sorted and without repeats.
+	keep := grams[:0]
+	var toks []uint32
 	for _, g := range grams {
-		x := sg{g: g}
-		ok := g.cnt >= minCount && !math.IsInf(g.cnt, 0)
-		for j, t := range g.toks[:g.n] {
-			x.name[j] = name(t)
-			if x.name[j] == "" || len(x.name[j]) > 255 {
-				ok = false
-			}
+		if g.cnt >= minCount && !math.IsInf(g.cnt, 0) {
+			keep = append(keep, g)
+			toks = append(toks, g.toks[:g.n]...)
 		}
-		if !ok {
-			continue
+	}
+	slices.Sort(toks)
+	toks = slices.Compact(toks)
+	names := make([]string, len(toks))
+	strs := make([]string, 0, len(toks)+2*len(v.rejects))
+	for i, t := range toks {
+		names[i] = name(t)
+		if names[i] != "" && len(names[i]) <= 255 {
+			strs = append(strs, names[i])
 		}
-		for _, s := range x.name[:g.n] {
-			note(s)
-		}
-		named = append(named, x)
 	}
 	for _, r := range v.rejects {
 		if len(r.orig) <= 255 && len(r.corr) <= 255 {
-			note(r.orig)
-			note(r.corr)
+			strs = append(strs, r.orig, r.corr)
 		}
 	}
 	slices.Sort(strs)
-	for i, s := range strs {
-		idx[s] = uint32(i)
+	strs = slices.Compact(strs)
+	strIndex := func(s string) uint32 {
+		i, _ := slices.BinarySearch(strs, s)
+		return uint32(i)
+	}
+	tokIndex := make([]uint32, len(toks)) // string index of each distinct token; MaxUint32: not storable
+	for i, nm := range names {
+		tokIndex[i] = math.MaxUint32
+		if nm != "" && len(nm) <= 255 {
+			tokIndex[i] = strIndex(nm)
+		}
 	}
 	surface := func(s string) string {
 		if pos, ok := v.findUser(s); ok {
@@ -108,15 +106,21 @@ func (v *OverlayView) AppendSection(dst []byte) []byte {
 		k [3]uint32
 		g gram
 	}
-	rows := make([]row, len(named))
+	rows := make([]row, 0, len(keep))
 	var counts [3]int
-	for i, x := range named {
-		r := row{n: x.g.n, g: x.g}
-		for j := range x.g.n {
-			r.k[j] = idx[x.name[j]]
+	for _, g := range keep {
+		r := row{n: g.n, g: g}
+		ok := true
+		for j, t := range g.toks[:g.n] {
+			i, _ := slices.BinarySearch(toks, t)
+			if r.k[j] = tokIndex[i]; r.k[j] == math.MaxUint32 {
+				ok = false
+			}
 		}
-		rows[i] = r
-		counts[x.g.n-1]++
+		if ok {
+			rows = append(rows, r)
+			counts[g.n-1]++
+		}
 	}
 	slices.SortFunc(rows, func(a, b row) int {
 		if c := cmp.Compare(a.n, b.n); c != 0 {
@@ -131,6 +135,17 @@ func (v *OverlayView) AppendSection(dst []byte) []byte {
 		}
 	}
 
+	size := overlayHeaderSize + 12*len(rej)
+	for _, s := range strs {
+		size += 2 + 2*len(s)
+	}
+	for _, r := range rows {
+		size += 4*r.n + 12
+		if r.n == 1 {
+			size += 4
+		}
+	}
+	dst = slices.Grow(dst, size)
 	le := binary.LittleEndian
 	dst = append(dst, overlayMagic...)
 	dst = le.AppendUint16(dst, overlayVersion)
@@ -162,8 +177,8 @@ func (v *OverlayView) AppendSection(dst []byte) []byte {
 		dst = le.AppendUint64(dst, math.Float64bits(r.g.cnt))
 	}
 	for _, r := range rej {
-		dst = le.AppendUint32(dst, idx[r.orig])
-		dst = le.AppendUint32(dst, idx[r.corr])
+		dst = le.AppendUint32(dst, strIndex(r.orig))
+		dst = le.AppendUint32(dst, strIndex(r.corr))
 		dst = le.AppendUint32(dst, uint32(r.day))
 	}
 	return dst

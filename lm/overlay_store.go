@@ -10,13 +10,19 @@ import (
 // replaced as a whole on every change. To keep a change cheap, the n-gram
 // counts are spread over ovShardCount shards chosen by a hash of the
 // context; a change copies the shard pointer array once, then only the
-// shards and context nodes it touches (copy-on-write). Everything reachable
-// from a published view is never written again.
+// shards, context nodes and chunks it touches (copy-on-write). Everything
+// reachable from a published view is never written again.
 //
 // A context node holds the successors of one context, sorted by token:
 // the n-grams "a b w" of the trigram context (a, b), "b w" of the bigram
 // context b, and, for unigrams, the words of one bucket of 1<<ovBucketShift
 // consecutive tokens (so that a prefix's token range is a run of buckets).
+// The successors are kept in chunks of at most ovChunkMax entries (a node
+// of at most ovSmall entries holds its one chunk inline), so a change to a
+// context with a thousand successors copies one chunk and the chunk table,
+// not the list; a node of more than ovNodeBest entries also keeps its
+// highest counts in order, updated as counts grow (they only grow between
+// rebuilds), for the top-k search.
 const (
 	ovShardBits   = 10
 	ovShardCount  = 1 << ovShardBits
@@ -25,7 +31,7 @@ const (
 	tagUni        = uint64(0)
 	tagBi         = uint64(1)
 	tagTri        = uint64(2)
-	uniTopLen     = 24
+	uniTopLen     = 64
 )
 
 // ovEntry is one counted n-gram: its last word, its count and when it was last used.
@@ -36,47 +42,172 @@ type ovEntry struct {
 	cnt   float64 // count in stored units (see OverlayView.grow)
 }
 
-// ovNode holds the successors of one context (or one unigram bucket), sorted by tok.
+// ovNode holds the successors of one context (or one unigram bucket),
+// sorted by tok, in chunks of at most ovChunkMax entries, so that a change
+// copies one chunk and the chunk table instead of the whole list.
 type ovNode struct {
 	key   uint64
-	total float64 // Σ cnt over list
-	list  []ovEntry
-	best  [ovNodeBest]uint32 // positions in list of the highest counts, best first
-	nbest int
+	total float64 // Σ cnt over the node
+	n     int     // number of entries
+	parts [][]ovEntry
+	one   [1][]ovEntry     // backing of parts for a node of one chunk
+	small [ovSmall]ovEntry // backing of the chunk of a node of at most ovSmall entries
+	top   *ovBest          // the highest counts, for a node of more than ovNodeBest entries
 }
 
-// ovNodeBest is the number of best successors a node keeps in order.
-const ovNodeBest = 8
+// ovSmall is the size of the chunk a node holds inline (most contexts have
+// one or two successors).
+const ovSmall = 2
 
-// rank fills the node's best list (O(len(list))).
+// ovBest lists a node's highest counts, best first (ties: lower tok).
+type ovBest struct {
+	e [ovNodeBest]topEntry
+	n int
+}
+
+const (
+	// ovNodeBest is the number of best successors a node keeps in order.
+	ovNodeBest = 16
+	// ovChunkMax is the largest chunk; a fuller one is split in halves.
+	ovChunkMax = 32
+	// ovChunkFill is the chunk size a rebuild lays out.
+	ovChunkFill = 24
+)
+
+// setParts points the node at its chunks.
+func (n *ovNode) setParts(parts [][]ovEntry) {
+	if len(parts) == 1 {
+		n.one[0] = parts[0]
+		n.parts = n.one[:]
+		return
+	}
+	n.parts = parts
+}
+
+// rank fills the node's best list from scratch (O(n)); small nodes keep none.
 func (n *ovNode) rank() {
-	var tb topBuf
-	tb.k = ovNodeBest
-	for i, e := range n.list {
-		if tb.n == tb.k && e.cnt <= tb.buf[tb.n-1].LogP {
-			continue
-		}
-		tb.push(Scored{ID: uint32(i), LogP: e.cnt})
+	n.top = nil
+	if n.n <= ovNodeBest {
+		return
 	}
-	n.nbest = tb.n
-	for i, s := range tb.buf[:tb.n] {
-		n.best[i] = s.ID
+	n.top = new(ovBest)
+	for _, p := range n.parts {
+		for _, e := range p {
+			n.top.note(e.tok, e.cnt)
+		}
 	}
 }
 
-func (n *ovNode) find(tok uint32) int {
-	if n == nil {
-		return -1
+// maxCnt returns the largest count of the node (0 when empty).
+func (n *ovNode) maxCnt() float64 {
+	if n.top != nil {
+		return n.top.e[0].cnt
 	}
-	i, ok := slices.BinarySearchFunc(n.list, tok, func(e ovEntry, t uint32) int { return cmp.Compare(e.tok, t) })
-	if !ok {
-		return -1
+	m := 0.0
+	for _, p := range n.parts {
+		for _, e := range p {
+			m = max(m, e.cnt)
+		}
 	}
-	return i
+	return m
+}
+
+// note keeps the list exact after the count of tok grew to cnt (counts
+// only grow between rebuilds, so a word outside the list can only enter it
+// through such a change).
+func (b *ovBest) note(tok uint32, cnt float64) {
+	nb := b.n
+	i := 0
+	for i < nb && b.e[i].tok != tok {
+		i++
+	}
+	if i == nb { // not listed: enter at the end if there is room or it beats the last
+		if nb == ovNodeBest {
+			last := b.e[nb-1]
+			if !(cnt > last.cnt || cnt == last.cnt && tok < last.tok) {
+				return
+			}
+			i = nb - 1
+		} else {
+			i = nb
+			b.n++
+		}
+	}
+	for i > 0 && (cnt > b.e[i-1].cnt || cnt == b.e[i-1].cnt && tok < b.e[i-1].tok) {
+		b.e[i] = b.e[i-1]
+		i--
+	}
+	b.e[i] = topEntry{tok: tok, cnt: cnt}
+}
+
+// chunkOf returns the index of the chunk that holds tok or would receive it.
+func (n *ovNode) chunkOf(tok uint32) int {
+	ps := n.parts
+	lo, hi := 1, len(ps)
+	for lo < hi {
+		m := int(uint(lo+hi) >> 1)
+		if ps[m][0].tok <= tok {
+			lo = m + 1
+		} else {
+			hi = m
+		}
+	}
+	return lo - 1
+}
+
+// find returns the entry of tok, or nil.
+func (n *ovNode) find(tok uint32) *ovEntry {
+	if n == nil || n.n == 0 {
+		return nil
+	}
+	p := n.parts[n.chunkOf(tok)]
+	i := entryLower(p, tok)
+	if i < len(p) && p[i].tok == tok {
+		return &p[i]
+	}
+	return nil
+}
+
+// span returns the position of the first entry with tok ≥ t: a chunk index
+// and an index inside it (len(parts), 0 past the end).
+func (n *ovNode) span(t uint32) (int, int) {
+	if n.n == 0 {
+		return len(n.parts), 0
+	}
+	c := n.chunkOf(t)
+	i := entryLower(n.parts[c], t)
+	if i == len(n.parts[c]) {
+		return c + 1, 0
+	}
+	return c, i
 }
 
 // ovShard holds context nodes sorted by key.
-type ovShard struct{ nodes []*ovNode }
+type ovShard struct {
+	slots []ovSlot
+}
+
+// ovSlot is a node with its key beside the pointer, so that a lookup's
+// binary search does not follow pointers.
+type ovSlot struct {
+	key uint64
+	nd  *ovNode
+}
+
+// search returns the position of key in the shard, or where it would go.
+func (sh *ovShard) search(key uint64) (int, bool) {
+	sl := sh.slots
+	lo, hi := 0, len(sl)
+	for lo < hi {
+		m := int(uint(lo+hi) >> 1)
+		if sl[m].key < key {
+			lo = m + 1
+		} else {
+			hi = m
+		}
+	}
+	return lo, lo < len(sl) && sl[lo].key == key
+}
 
 func uniKey(tok uint32) uint64  { return tagUni<<62 | uint64(tok>>ovBucketShift) }
 func biKey(b uint32) uint64     { return tagBi<<62 | uint64(b) }
@@ -93,29 +224,15 @@ func (v *OverlayView) lookup(key uint64) *ovNode {
 	if sh == nil {
 		return nil
 	}
-	nodes := sh.nodes
-	lo, hi := 0, len(nodes)
-	for lo < hi {
-		m := int(uint(lo+hi) >> 1)
-		if nodes[m].key < key {
-			lo = m + 1
-		} else {
-			hi = m
-		}
-	}
-	if lo < len(nodes) && nodes[lo].key == key {
-		return nodes[lo]
+	if i, ok := sh.search(key); ok {
+		return sh.slots[i].nd
 	}
 	return nil
 }
 
 // uniEntry returns the unigram entry of tok, or nil.
 func (v *OverlayView) uniEntry(tok uint32) *ovEntry {
-	n := v.lookup(uniKey(tok))
-	if i := n.find(tok); i >= 0 {
-		return &n.list[i]
-	}
-	return nil
+	return v.lookup(uniKey(tok)).find(tok)
 }
 
 // ovUpdate is one count change waiting to be applied.
@@ -146,7 +263,7 @@ func (w *writer) shardFor(i int) *ovShard {
 	}
 	sh := &ovShard{}
 	if old := w.v.shards[i]; old != nil {
-		sh.nodes = slices.Clone(old.nodes)
+		sh.slots = slices.Clone(old.slots)
 	}
 	w.v.shards[i] = sh
 	w.owned[i] = w.batch
@@ -161,7 +278,6 @@ func (w *writer) apply(ups []ovUpdate) {
 		}
 		return cmp.Compare(a.tok, b.tok)
 	})
-	v := w.v
 	for g := 0; g < len(ups); {
 		e := g + 1
 		for e < len(ups) && ups[e].key == ups[g].key {
@@ -169,29 +285,66 @@ func (w *writer) apply(ups []ovUpdate) {
 		}
 		key := ups[g].key
 		sh := w.shardFor(shardOf(key))
-		pos, found := slices.BinarySearchFunc(sh.nodes, key, func(n *ovNode, k uint64) int { return cmp.Compare(n.key, k) })
+		pos, found := sh.search(key)
 		var old *ovNode
 		if found {
-			old = sh.nodes[pos]
+			old = sh.slots[pos].nd
 		}
-		nn := &ovNode{key: key}
-		if old != nil {
-			nn.total = old.total
-			nn.list = make([]ovEntry, 0, len(old.list)+e-g)
+		nn := w.update(old, key, ups[g:e])
+		if found {
+			sh.slots[pos].nd = nn
 		} else {
-			nn.list = make([]ovEntry, 0, e-g)
+			sh.slots = slices.Insert(sh.slots, pos, ovSlot{key, nn})
 		}
-		// Merge the sorted updates into the sorted list.
+		g = e
+	}
+}
+
+// update returns a copy of the node old (nil: a new node) with the updates
+// of one key (sorted by tok) added. Only the chunks the updates fall in are
+// copied.
+func (w *writer) update(old *ovNode, key uint64, ups []ovUpdate) *ovNode {
+	v := w.v
+	nn := &ovNode{key: key}
+	isUni := keyTag(key) == tagUni
+	var oldParts [][]ovEntry
+	if old != nil {
+		nn.total, nn.n = old.total, old.n
+		oldParts = old.parts
+	}
+	if len(oldParts) == 0 {
+		oldParts = [][]ovEntry{nil}
+	}
+	// Chunk index of each update, non-decreasing since ups are sorted.
+	var parts [][]ovEntry
+	if len(oldParts) > 1 {
+		parts = make([][]ovEntry, 0, len(oldParts)+1)
+	} else {
+		parts = nn.one[:0]
+	}
+	c := 0
+	for u := 0; u < len(ups); {
+		cu := 0
+		if old != nil && old.n > 0 {
+			cu = old.chunkOf(ups[u].tok)
+		}
+		parts = append(parts, oldParts[c:cu]...)
+		ue := u + 1
+		for ue < len(ups) && (old == nil || old.n == 0 || old.chunkOf(ups[ue].tok) == cu) {
+			ue++
+		}
+		ol := oldParts[cu]
+		var chunk []ovEntry
+		if len(oldParts) == 1 && len(ol)+ue-u <= ovSmall {
+			chunk = nn.small[:0]
+		} else {
+			chunk = make([]ovEntry, 0, len(ol)+ue-u)
+		}
 		i := 0
-		var ol []ovEntry
-		if old != nil {
-			ol = old.list
-		}
-		isUni := keyTag(key) == tagUni
-		for u := g; u < e; {
-			t := ups[u].tok
+		for x := u; x < ue; {
+			t := ups[x].tok
 			for i < len(ol) && ol[i].tok < t {
-				nn.list = append(nn.list, ol[i])
+				chunk = append(chunk, ol[i])
 				i++
 			}
 			var ent ovEntry
@@ -200,36 +353,54 @@ func (w *writer) apply(ups []ovUpdate) {
 				i++
 			} else {
 				ent.tok = t
+				nn.n++
 				v.entries++
 				if isUni {
 					v.uniTypes++
 				}
 			}
-			for ; u < e && ups[u].tok == t; u++ {
-				ent.cnt += ups[u].delta
-				nn.total += ups[u].delta
+			for ; x < ue && ups[x].tok == t; x++ {
+				ent.cnt += ups[x].delta
+				nn.total += ups[x].delta
 				if isUni {
-					v.uniTotal += ups[u].delta
+					v.uniTotal += ups[x].delta
 				}
-				if s := ent.typed + ups[u].typed; s >= ent.typed {
+				if s := ent.typed + ups[x].typed; s >= ent.typed {
 					ent.typed = s
 				}
 			}
 			ent.day = v.day
-			nn.list = append(nn.list, ent)
+			chunk = append(chunk, ent)
 			if isUni {
 				w.noteTop(ent)
 			}
 		}
-		nn.list = append(nn.list, ol[i:]...)
-		nn.rank()
-		if found {
-			sh.nodes[pos] = nn
+		chunk = append(chunk, ol[i:]...)
+		if len(chunk) > ovChunkMax {
+			h := len(chunk) / 2
+			parts = append(parts, chunk[:h:h], chunk[h:])
 		} else {
-			sh.nodes = slices.Insert(sh.nodes, pos, nn)
+			parts = append(parts, chunk)
 		}
-		g = e
+		c = cu + 1
+		u = ue
 	}
+	parts = append(parts, oldParts[c:]...)
+	nn.setParts(parts)
+	switch {
+	case nn.n <= ovNodeBest:
+	case old == nil || old.top == nil:
+		nn.rank()
+	default:
+		b := *old.top
+		for _, u := range ups {
+			if e := nn.find(u.tok); e != nil {
+				b.note(e.tok, e.cnt)
+			}
+		}
+		nn.top = &b
+	}
+	return nn
 }
 
 // noteTop keeps v.top, the most counted suggestible unigrams, up to date
@@ -283,19 +454,22 @@ func (v *OverlayView) flatten(dst []gram) []gram {
 		if sh == nil {
 			continue
 		}
-		for _, nd := range sh.nodes {
+		for _, sl := range sh.slots {
+			nd := sl.nd
 			a, b := keyTokens(nd.key)
-			for _, e := range nd.list {
-				g := gram{typed: e.typed, day: e.day, cnt: e.cnt * inv}
-				switch keyTag(nd.key) {
-				case tagUni:
-					g.n, g.toks = 1, [3]uint32{e.tok}
-				case tagBi:
-					g.n, g.toks = 2, [3]uint32{b, e.tok}
-				default:
-					g.n, g.toks = 3, [3]uint32{a, b, e.tok}
+			for _, p := range nd.parts {
+				for _, e := range p {
+					g := gram{typed: e.typed, day: e.day, cnt: e.cnt * inv}
+					switch keyTag(nd.key) {
+					case tagUni:
+						g.n, g.toks = 1, [3]uint32{e.tok}
+					case tagBi:
+						g.n, g.toks = 2, [3]uint32{b, e.tok}
+					default:
+						g.n, g.toks = 3, [3]uint32{a, b, e.tok}
+					}
+					dst = append(dst, g)
 				}
-				dst = append(dst, g)
 			}
 		}
 	}
@@ -370,33 +544,48 @@ func (v *OverlayView) rebuild(grams []gram) *OverlayView {
 		return cmp.Compare(a.toks[a.n-1], b.toks[b.n-1])
 	})
 	var cur *ovNode
+	var list []ovEntry
+	flush := func() {
+		if cur == nil {
+			return
+		}
+		var parts [][]ovEntry
+		for len(list) > 0 {
+			n := min(len(list), ovChunkFill)
+			parts = append(parts, list[:n:n])
+			list = list[n:]
+		}
+		cur.setParts(parts)
+		cur.rank()
+	}
 	for _, g := range keep {
 		key := gramKey(g)
 		if cur == nil || cur.key != key {
+			flush()
 			cur = &ovNode{key: key}
+			list = nil
 			i := shardOf(key)
 			if nv.shards[i] == nil {
 				nv.shards[i] = &ovShard{}
 			}
-			nv.shards[i].nodes = append(nv.shards[i].nodes, cur)
+			nv.shards[i].slots = append(nv.shards[i].slots, ovSlot{key, cur})
 		}
-		if n := len(cur.list); n > 0 && cur.list[n-1].tok == g.toks[g.n-1] {
+		if n := len(list); n > 0 && list[n-1].tok == g.toks[g.n-1] {
 			continue // duplicate n-gram: keep the first
 		}
-		cur.list = append(cur.list, ovEntry{tok: g.toks[g.n-1], typed: g.typed, day: g.day, cnt: g.cnt})
+		list = append(list, ovEntry{tok: g.toks[g.n-1], typed: g.typed, day: g.day, cnt: g.cnt})
 		cur.total += g.cnt
+		cur.n++
 		nv.entries++
 		if g.n == 1 {
 			nv.uniTypes++
 			nv.uniTotal += g.cnt
 		}
 	}
+	flush()
 	for _, sh := range nv.shards {
 		if sh != nil {
-			for _, nd := range sh.nodes {
-				nd.rank()
-			}
-			slices.SortFunc(sh.nodes, func(a, b *ovNode) int { return cmp.Compare(a.key, b.key) })
+			slices.SortFunc(sh.slots, func(a, b ovSlot) int { return cmp.Compare(a.key, b.key) })
 		}
 	}
 	nv.cache = v.cache.remap(V, func(t uint32) uint32 {

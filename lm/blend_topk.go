@@ -1,0 +1,617 @@
+package lm
+
+import (
+	"math"
+	"strings"
+)
+
+// The exact blended top-k search.
+//
+// For a prepared history the blend of a word w is, up to rounding, linear
+// in what is known about w (see blendProb):
+//
+//	p(w) = α·p_base(w) + γ₁·c₁(w) + γ₂·c₂(w) + γ₃·c₃(w) + γᵤ·cᵤ(w) + γ_b·c_b(w)
+//
+// with c₁, c₂, c₃ the user's counts of w as a unigram, after the last word
+// and after the last two words, cᵤ and c_b the recency cache's weights of w
+// as a unigram and after the last word, and α, γ non-negative weights of
+// the history (see coefficients). A word with no user or cache evidence
+// scores α·p_base(w), so among such words the blend ranks as the base
+// model does. The search is the threshold algorithm of Fagin, Lotem & Naor
+// (2003) over six lists sorted by value: the base model's top list and the
+// five evidence sources, each read best first. Every word met is either
+// scored exactly or dropped because an upper bound of its blend (its value
+// in the list it was met in, the next unread value of every other list) is
+// below the k-th score found; the search stops once the bound of every
+// unread word, α·(next base probability) + Σ γ·(next value of each list),
+// is below the k-th score. Bounds carry a relative margin of 1e-9 over the
+// rounding of the exact computation (at most a few ulps, ~1e-15).
+//
+// Words with no evidence that the base list did not reach all score at most
+// as its last word b does, with ties only possible at b's own base
+// probability; the search asks for the base list one longer than k so that
+// the k-th result can be checked against b strictly. When a check fails
+// (ties at the boundary, or an evidence list that keeps too few entries in
+// order), the base list is read deeper once, and as a last resort every
+// word in the range is scored (topKExhaustive). The result is then the same
+// as scoring every word: same words, same order, same scores.
+
+// boundMargin is the relative margin of the linear upper bounds over the
+// rounding of blendProb (a few ulps; 1e-9 leaves six orders of magnitude).
+const boundMargin = 1 + 1e-9
+
+// coef holds the linear weights of the blend for one prepared history.
+type coef struct {
+	alpha float64
+	gamma [nStreams]float64 // by stream: user uni, user bi, user tri, cache uni, cache bi
+}
+
+const (
+	stUni = iota
+	stBi
+	stTri
+	stCacheUni
+	stCacheBi
+	nStreams
+)
+
+// coefficients expands the nested Witten-Bell formula of blendProb into
+// its linear weights.
+func (v *OverlayView) coefficients(q *query) coef {
+	var a, b [3]float64 // p_k = a_k·c_k + b_k·p_{k−1}
+	for i := range 3 {
+		a[i], b[i] = 0, 1
+		if q.on[i] {
+			a[i], b[i] = q.invGrow/q.den[i], q.bn[i]/q.den[i]
+		}
+	}
+	var c coef
+	c.alpha = q.wBase + q.wUser*b[2]*b[1]*b[0]
+	c.gamma[stUni] = q.wUser * b[2] * b[1] * a[0]
+	c.gamma[stBi] = q.wUser * b[2] * a[1]
+	c.gamma[stTri] = q.wUser * a[2]
+	if q.wCache > 0 {
+		if q.cBiTot > 0 {
+			d := q.cBiTot*q.invC + v.cfg.kappa
+			c.gamma[stCacheBi] = q.wCache * q.invC / d
+			c.gamma[stCacheUni] = q.wCache * v.cfg.kappa / (v.cache.sum * d)
+		} else {
+			c.gamma[stCacheUni] = q.wCache / v.cache.sum
+		}
+	}
+	return c
+}
+
+// bound returns the linear form of the blend for base probability pb and evidence ev.
+func (c *coef) bound(pb float64, ev *evidence) float64 {
+	return c.alpha*pb + c.gamma[stUni]*ev.c[0] + c.gamma[stBi]*ev.c[1] + c.gamma[stTri]*ev.c[2] +
+		c.gamma[stCacheUni]*ev.cu + c.gamma[stCacheBi]*ev.cb
+}
+
+// stream is one evidence source. It starts as a bound of its largest value
+// (stage 0); then its entries in the range from the source's list of best
+// entries are read in order (stage 1); then the best MaxK of its entries in
+// the range, found by a scan (stage 2); and when even that is not enough,
+// every entry of the source in the range is met once, in any order (stage 3).
+type stream struct {
+	buf   topBuf // stage 1: LogP holds the value
+	pos   int
+	tail  float64 // bound of the values of the range's entries not in buf
+	max   float64 // bound of every value (stage 0)
+	stage int8
+}
+
+// frontier returns an upper bound of the value of any entry not yet met.
+func (s *stream) frontier() float64 {
+	switch {
+	case s.stage == 0:
+		return s.max
+	case s.stage == 3:
+		return 0
+	case s.pos < s.buf.n:
+		return s.buf.buf[s.pos].LogP
+	}
+	return s.tail
+}
+
+// inRange reports whether tok may be a result of the query range.
+func (v *OverlayView) inRange(tok uint32, r *rangeQ) bool {
+	if tok < v.V {
+		return tok >= r.lo && tok < r.hi && tok != v.bos && tok != v.eos && tok != v.unk
+	}
+	return v.hasPrefix(tok, r.prefix)
+}
+
+// bestList fills s (stage 1) from a list of best entries, best first, of
+// which the source has more when full is set.
+func (v *OverlayView) bestList(s *stream, r *rangeQ, toks []topEntry, more bool) {
+	s.buf.k = MaxK
+	s.tail = 0
+	s.stage = 1
+	if r.whole { // already in order: copy the first MaxK
+		n := min(len(toks), MaxK)
+		for i, e := range toks[:n] {
+			s.buf.buf[i] = Scored{ID: e.tok, LogP: e.cnt}
+		}
+		s.buf.n = n
+		if n < len(toks) {
+			s.tail = toks[n].cnt
+		} else if more && n > 0 {
+			s.tail = toks[n-1].cnt
+		}
+		return
+	}
+	for _, e := range toks {
+		if v.inRange(e.tok, r) {
+			s.buf.push(Scored{ID: e.tok, LogP: e.cnt})
+		}
+	}
+	if more && len(toks) > 0 {
+		s.tail = toks[len(toks)-1].cnt
+	}
+}
+
+// nodeRange calls f for each entry of nd with lo ≤ tok < hi.
+func (v *OverlayView) nodeRange(nd *ovNode, lo, hi uint32, f func(uint32, float64)) {
+	c, i := nd.span(lo)
+	for ; c < len(nd.parts); c, i = c+1, 0 {
+		p := nd.parts[c]
+		for ; i < len(p); i++ {
+			if p[i].tok >= hi {
+				return
+			}
+			f(p[i].tok, p[i].cnt)
+		}
+	}
+}
+
+// scanNode calls f for each entry of nd in the query range.
+func (v *OverlayView) scanNode(nd *ovNode, r *rangeQ, f func(uint32, float64)) {
+	if nd == nil || nd.n == 0 {
+		return
+	}
+	if r.lo < r.hi {
+		v.nodeRange(nd, r.lo, r.hi, f)
+	}
+	v.nodeRange(nd, v.V, math.MaxUint32, func(tok uint32, val float64) {
+		if v.hasPrefix(tok, r.prefix) {
+			f(tok, val)
+		}
+	})
+}
+
+// scanCache calls f for each cache entry (one prev, sorted by tok) in the query range.
+func (v *OverlayView) scanCache(list []cacheEnt, r *rangeQ, f func(uint32, float64)) {
+	a := cacheLower(list, r.lo)
+	for _, e := range list[a:] {
+		if e.tok >= r.hi {
+			break
+		}
+		f(e.tok, e.w)
+	}
+	for _, e := range list[a+cacheLower(list[a:], v.V):] {
+		if v.hasPrefix(e.tok, r.prefix) {
+			f(e.tok, e.w)
+		}
+	}
+}
+
+// scanUni calls f for each user unigram count in the query range.
+func (v *OverlayView) scanUni(r *rangeQ, f func(uint32, float64)) {
+	if r.lo < r.hi {
+		for bkt := r.lo >> ovBucketShift; bkt <= (r.hi-1)>>ovBucketShift; bkt++ {
+			if nd := v.lookup(tagUni<<62 | uint64(bkt)); nd != nil {
+				v.nodeRange(nd, r.lo, r.hi, f)
+			}
+		}
+	}
+	// User words with the prefix: a run of byStr.
+	p, _ := v.findUser(r.prefix)
+	for ; p < len(v.byStr) && strings.HasPrefix(v.words[v.byStr[p]], r.prefix); p++ {
+		if e := v.uniEntry(v.V + v.byStr[p]); e != nil {
+			f(e.tok, e.cnt)
+		}
+	}
+}
+
+// rangeQ is the word range of a query.
+type rangeQ struct {
+	prefix string
+	lo, hi uint32 // base IDs
+	whole  bool   // every word (next-word prediction)
+}
+
+// idSet is a small set of word IDs.
+type idSet struct {
+	n   int
+	ids [8 * MaxK]uint32
+}
+
+func (s *idSet) has(id uint32) bool {
+	for _, x := range s.ids[:s.n] {
+		if x == id {
+			return true
+		}
+	}
+	return false
+}
+
+// add records id; it reports false when the set is full.
+func (s *idSet) add(id uint32) bool {
+	if s.n == len(s.ids) {
+		return false
+	}
+	s.ids[s.n] = id
+	s.n++
+	return true
+}
+
+// TopK appends to dst the k most probable next words under the blend after
+// ctx (extended IDs, oldest first) that complete the typed prefix, best
+// first (ties: lower ID first). prefix is the folded typed part of the word
+// ("" for next-word prediction); [lo, hi) is the base vocabulary's ID range
+// of the words that start with it (0, VocabSize of the base model when
+// prefix is ""), as the lexicon gives it. Words only the user has typed are
+// matched against prefix by the view itself and are offered once typed
+// MinTyped times. Results carry extended IDs; the special tokens are never
+// returned; k is capped at MaxK.
+//
+// The result is exact: the same words, order and scores as ranking every
+// word by LogProb (see the comment at the top of blend_topk.go for the
+// search). It costs the base model's TopK for k+1 words plus a few exact
+// scorings; it does not allocate when dst has room for k results.
+func (v *OverlayView) TopK(ctx []uint32, prefix string, lo, hi uint32, k int, dst []Scored) []Scored {
+	if k > MaxK {
+		k = MaxK
+	}
+	if hi > v.V {
+		hi = v.V
+	}
+	if k <= 0 {
+		return dst
+	}
+	var q query
+	v.prepare(ctx, &q)
+	r := rangeQ{prefix: prefix, lo: lo, hi: hi, whole: prefix == "" && lo == 0 && hi == v.V}
+	var res topBuf
+	res.k = k
+	if v.threshold(&q, &r, k, min(k+1, MaxK), &res) || v.threshold(&q, &r, k, MaxK, &res) {
+		return append(dst, res.buf[:res.n]...)
+	}
+	return v.topKExhaustive(&q, &r, k, dst)
+}
+
+// threshold runs the threshold search with a base list of m words. It
+// fills res and reports whether the result is proven exact.
+//
+// The list read next is always the one whose bound weighs most; a list
+// moves to its next stage (see stream) when its bound keeps the search
+// from stopping and it has nothing left to read in order.
+func (v *OverlayView) threshold(q *query, r *rangeQ, k, m int, res *topBuf) bool {
+	t := thresholdSearch{v: v, q: q, r: r, k: k, res: res, c: v.coefficients(q)}
+	return t.run(m)
+}
+
+// thresholdSearch is the state of one threshold search.
+type thresholdSearch struct {
+	v       *OverlayView
+	q       *query
+	r       *rangeQ
+	k       int
+	res     *topBuf
+	c       coef
+	st      [nStreams]stream
+	seen    idSet // words met: scored, or dropped by a bound
+	scored  idSet // words scored (a subset of seen while seen has room)
+	full    bool  // seen overflowed: bounds no longer use the lists' frontiers
+	pbBound float64
+	kth     float64 // probability of the k-th result (0 until there are k)
+	failed  bool
+}
+
+func (t *thresholdSearch) run(m int) bool {
+	v, q, r, k, res := t.v, t.q, t.r, t.k, t.res
+	res.n = 0
+	var bt [MaxK]Scored
+	var base []Scored
+	if r.lo < r.hi {
+		base = v.base.TopK(q.base[:q.nctx], r.lo, r.hi, m, bt[:0])
+	}
+	baseDone := len(base) < m // every base word of the range is in base
+	if !baseDone {
+		t.pbBound = math.Exp(base[len(base)-1].LogP)
+	}
+	for _, s := range base {
+		t.seen.add(s.ID)
+		t.scored.add(s.ID)
+		ev := v.evidenceOf(q, s.ID)
+		res.push(Scored{ID: s.ID, LogP: math.Log(v.blendProb(q, math.Exp(s.LogP), &ev))})
+	}
+	if res.n == k {
+		t.kth = math.Exp(res.buf[k-1].LogP)
+	}
+	for si := range t.st {
+		t.st[si].max = v.streamBound(si, q)
+		if t.st[si].max == 0 {
+			t.st[si].stage = 3
+		}
+	}
+	for !t.failed {
+		// Bound of every word not met yet that has some evidence.
+		bound := t.c.alpha * t.pbBound
+		pick, heaviest := -1, 0.0
+		for si := range t.st {
+			w := t.c.gamma[si] * t.st[si].frontier()
+			bound += w
+			if w > heaviest {
+				pick, heaviest = si, w
+			}
+		}
+		if res.n == k && bound*boundMargin < t.kth || pick < 0 {
+			break
+		}
+		s := &t.st[pick]
+		switch {
+		case s.stage == 0 && pick != stCacheBi:
+			v.stage1(pick, s, q, r)
+		case (s.stage == 1 || s.stage == 2) && s.pos < s.buf.n:
+			e := s.buf.buf[s.pos]
+			s.pos++
+			t.consider(pick, e.ID, e.LogP)
+		case s.stage <= 1:
+			// The best MaxK entries in the range, in order.
+			s.stage, s.pos, s.buf.n, s.buf.k = 2, 0, 0, MaxK
+			n := 0
+			v.scan(pick, q, r, func(tok uint32, val float64) {
+				s.buf.push(Scored{ID: tok, LogP: val})
+				n++
+			})
+			s.tail = 0
+			if n > s.buf.k {
+				s.tail = s.buf.buf[s.buf.n-1].LogP
+			}
+		default:
+			s.stage = 3
+			v.scan(pick, q, r, func(tok uint32, val float64) { t.consider(pick, tok, val) })
+		}
+	}
+	if t.failed {
+		return false
+	}
+	// Words with no evidence beyond the base list.
+	if baseDone {
+		return true
+	}
+	if res.n < k {
+		return false
+	}
+	var none evidence
+	last := math.Log(v.blendProb(q, t.pbBound, &none))
+	return res.buf[res.n-1].LogP > last
+}
+
+// consider meets word tok with value val in list si: it is dropped when a
+// bound shows it cannot reach the k-th score, else scored.
+func (t *thresholdSearch) consider(si int, tok uint32, val float64) {
+	v, q, c := t.v, t.q, &t.c
+	if t.failed || !t.r.whole && !v.inRange(tok, t.r) || tok == v.bos || tok == v.eos || tok == v.unk {
+		return
+	}
+	pbUB := 0.0
+	if tok < v.V {
+		pbUB = t.pbBound
+	}
+	// Bounds: the word's value in this list, and in every other list that
+	// list's largest value or, for a word not met before, its frontier.
+	own := c.alpha*pbUB + c.gamma[si]*val
+	if t.res.n == t.k {
+		ub := own
+		for sj := range t.st {
+			if sj != si {
+				ub += c.gamma[sj] * t.st[sj].max
+			}
+		}
+		if ub*boundMargin < t.kth {
+			return
+		}
+	}
+	if t.seen.has(tok) || t.full && t.scored.has(tok) {
+		return
+	}
+	if !t.full && !t.seen.add(tok) {
+		t.full = true // from now on a word may have been met before without a record
+	}
+	// Look the word up list by list, heaviest bound first, replacing each
+	// bound by the exact value, and drop it as soon as the bound falls
+	// below the k-th score.
+	var ev evidence
+	var bnd [nStreams]float64
+	ub := own
+	for sj := range t.st {
+		if sj != si {
+			b := t.st[sj].max
+			if !t.full {
+				b = t.st[sj].frontier()
+			}
+			bnd[sj] = c.gamma[sj] * b
+			ub += bnd[sj]
+		}
+	}
+	ev.set(si, val)
+	done := uint8(1) << si
+	for range nStreams - 1 {
+		if t.res.n == t.k && ub*boundMargin < t.kth {
+			return
+		}
+		pick := -1
+		for sj := range t.st {
+			if done&(1<<sj) == 0 && (pick < 0 || bnd[sj] > bnd[pick]) {
+				pick = sj
+			}
+		}
+		done |= 1 << pick
+		x := v.evidenceIn(q, pick, tok, &ev)
+		ub += c.gamma[pick]*x - bnd[pick]
+	}
+	if si == stUni && tok >= v.V {
+		v.evidenceIn(q, stUni, tok, &ev) // for the typed count
+	}
+	if tok >= v.V && !(ev.uni && v.suggestible(tok, ev.typed)) {
+		return
+	}
+	if t.res.n == t.k && c.bound(pbUB, &ev)*boundMargin < t.kth {
+		return // the exact evidence with the base bound cannot reach the k-th
+	}
+	if t.full && !t.scored.add(tok) {
+		t.failed = true
+		return
+	} else if !t.full {
+		t.scored.add(tok)
+	}
+	pb := 0.0
+	if tok < v.V {
+		pb = math.Exp(v.base.score(q.nb[:q.nn], tok))
+	}
+	t.res.push(Scored{ID: tok, LogP: math.Log(v.blendProb(q, pb, &ev))})
+	if t.res.n == t.k {
+		t.kth = math.Exp(t.res.buf[t.k-1].LogP)
+	}
+}
+
+// set records the value of w in list si.
+func (ev *evidence) set(si int, x float64) {
+	switch si {
+	case stUni, stBi, stTri:
+		ev.c[si-stUni] = x
+	case stCacheUni:
+		ev.cu = x
+	case stCacheBi:
+		ev.cb = x
+	}
+}
+
+// evidenceIn looks up w's value in list si, records it in ev and returns it.
+func (v *OverlayView) evidenceIn(q *query, si int, w uint32, ev *evidence) float64 {
+	x := 0.0
+	switch si {
+	case stUni:
+		if e := v.uniEntry(w); e != nil {
+			x, ev.typed, ev.uni = e.cnt, e.typed, true
+		}
+	case stBi:
+		if e := q.n2.find(w); e != nil {
+			x = e.cnt
+		}
+	case stTri:
+		if e := q.n3.find(w); e != nil {
+			x = e.cnt
+		}
+	case stCacheUni:
+		if q.wCache > 0 {
+			x = cacheFind(v.cache.uni, noPrev, w)
+		}
+	case stCacheBi:
+		if q.wCache > 0 && q.cBiTot > 0 && q.hasB {
+			x = cacheFind(v.cache.bi[q.cLo:q.cHi], q.b, w)
+		}
+	}
+	ev.set(si, x)
+	return x
+}
+
+// streamBound returns a cheap upper bound of the values of evidence list
+// si over every word (0 when the list is empty or has no weight).
+func (v *OverlayView) streamBound(si int, q *query) float64 {
+	switch si {
+	case stUni:
+		if v.nTop > 0 { // the most counted suggestible word
+			return v.top[0].cnt
+		}
+	case stBi, stTri:
+		nd := q.n2
+		if si == stTri {
+			nd = q.n3
+		}
+		if nd != nil {
+			return nd.maxCnt()
+		}
+	case stCacheUni:
+		if q.wCache > 0 && v.cache.nbest > 0 {
+			return v.cache.best[0].w
+		}
+	case stCacheBi:
+		if q.wCache > 0 && q.cBiTot > 0 && q.hasB {
+			return q.cBiTot
+		}
+	}
+	return 0
+}
+
+// stage1 reads list si's best entries in the range into s.
+func (v *OverlayView) stage1(si int, s *stream, q *query, r *rangeQ) {
+	switch si {
+	case stUni:
+		// v.top lists the most counted suggestible words; the others are
+		// never returned, so their counts need no bound.
+		v.bestList(s, r, v.top[:v.nTop], v.nTop == uniTopLen)
+	case stBi, stTri:
+		nd := q.n2
+		if si == stTri {
+			nd = q.n3
+		}
+		if nd.top == nil { // a small node: read it whole in order
+			s.stage, s.buf.k = 2, MaxK
+			v.scanNode(nd, r, func(tok uint32, val float64) { s.buf.push(Scored{ID: tok, LogP: val}) })
+			return
+		}
+		v.bestList(s, r, nd.top.e[:nd.top.n], nd.n > nd.top.n)
+	case stCacheUni:
+		var top [cacheBest]topEntry
+		for i, e := range v.cache.best[:v.cache.nbest] {
+			top[i] = topEntry{tok: e.tok, cnt: e.w}
+		}
+		v.bestList(s, r, top[:v.cache.nbest], len(v.cache.uni) > v.cache.nbest)
+	}
+}
+
+// scan calls f for every entry of list si in the range.
+func (v *OverlayView) scan(si int, q *query, r *rangeQ, f func(uint32, float64)) {
+	switch si {
+	case stUni:
+		v.scanUni(r, f)
+	case stBi:
+		v.scanNode(q.n2, r, f)
+	case stTri:
+		v.scanNode(q.n3, r, f)
+	case stCacheUni:
+		v.scanCache(v.cache.uni, r, f)
+	case stCacheBi:
+		v.scanCache(v.cache.bi[q.cLo:q.cHi], r, f)
+	}
+}
+
+// topKExhaustive scores every word in the range (the base IDs [lo, hi) and
+// the user words with the prefix) and appends the best k to dst. It is the
+// last resort of TopK and the definition TopK's result must equal.
+func (v *OverlayView) topKExhaustive(q *query, r *rangeQ, k int, dst []Scored) []Scored {
+	var res topBuf
+	res.k = k
+	for w := r.lo; w < r.hi; w++ {
+		if !v.suggestible(w, 0) {
+			continue
+		}
+		ev := v.evidenceOf(q, w)
+		pb := math.Exp(v.base.score(q.nb[:q.nn], w))
+		res.push(Scored{ID: w, LogP: math.Log(v.blendProb(q, pb, &ev))})
+	}
+	p, _ := v.findUser(r.prefix)
+	for ; p < len(v.byStr) && strings.HasPrefix(v.words[v.byStr[p]], r.prefix); p++ {
+		w := v.V + v.byStr[p]
+		ev := v.evidenceOf(q, w)
+		if !ev.uni || !v.suggestible(w, ev.typed) {
+			continue
+		}
+		res.push(Scored{ID: w, LogP: math.Log(v.blendProb(q, 0, &ev))})
+	}
+	return append(dst, res.buf[:res.n]...)
+}

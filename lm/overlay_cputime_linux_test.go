@@ -1,0 +1,24 @@
+//go:build linux
+
+package lm
+
+import (
+	"runtime"
+	"time"
+
+	"golang.org/x/sys/unix"
+)
+
+// threadClock returns the CPU time the calling thread has used. Callers
+// lock the goroutine to its thread (runtime.LockOSThread) first, so that
+// per-operation differences count this goroutine's work only, whatever
+// else the machine runs.
+func threadClock() time.Duration {
+	var ts unix.Timespec
+	if err := unix.ClockGettime(unix.CLOCK_THREAD_CPUTIME_ID, &ts); err != nil {
+		return 0
+	}
+	return time.Duration(ts.Nano())
+}
+
+const threadClockOK = runtime.GOOS == "linux"

@@ -1,0 +1,97 @@
+package lm
+
+import (
+	"math"
+	"strings"
+	"testing"
+)
+
+// checkStore verifies the invariants the copy-on-write store keeps
+// incrementally against a recomputation from scratch: every node's chunks
+// are non-empty, at most ovChunkMax long and strictly increasing by token;
+// its entry count and total match its entries (total within rounding of a
+// different summation order); its best list equals one ranked anew; the
+// shards are sorted by key; the recency cache's heaviest list equals one
+// ranked anew. These are the store's own definitions (no outside source).
+func checkStore(t *testing.T, v *OverlayView) {
+	t.Helper()
+	entries := 0
+	for si, sh := range v.shards {
+		if sh == nil {
+			continue
+		}
+		for i, sl := range sh.slots {
+			if i > 0 && sh.slots[i-1].key >= sl.key {
+				t.Fatalf("shard %d: keys out of order at %d", si, i)
+			}
+			nd := sl.nd
+			if nd.key != sl.key || shardOf(nd.key) != si {
+				t.Fatalf("shard %d: node key %x in slot %x", si, nd.key, sl.key)
+			}
+			n, total := 0, 0.0
+			last := int64(-1)
+			for _, p := range nd.parts {
+				if len(p) == 0 || len(p) > ovChunkMax {
+					t.Fatalf("node %x: chunk of %d entries", nd.key, len(p))
+				}
+				for _, e := range p {
+					if int64(e.tok) <= last {
+						t.Fatalf("node %x: tokens out of order", nd.key)
+					}
+					last = int64(e.tok)
+					n++
+					total += e.cnt
+				}
+			}
+			if n != nd.n || math.Abs(total-nd.total) > 1e-9*total {
+				t.Fatalf("node %x: n %d total %v, entries give %d, %v", nd.key, nd.n, nd.total, n, total)
+			}
+			entries += n
+			fresh := ovNode{n: nd.n, parts: nd.parts}
+			fresh.rank()
+			switch {
+			case (fresh.top == nil) != (nd.top == nil):
+				t.Fatalf("node %x of %d entries: best list presence differs", nd.key, nd.n)
+			case fresh.top != nil && *fresh.top != *nd.top:
+				t.Fatalf("node %x: best list %v, ranked anew %v", nd.key, nd.top.e[:nd.top.n], fresh.top.e[:fresh.top.n])
+			}
+		}
+	}
+	if entries != v.entries {
+		t.Fatalf("view counts %d entries, nodes hold %d", v.entries, entries)
+	}
+	fresh := v.cache
+	fresh.rank()
+	if fresh.best != v.cache.best || fresh.nbest != v.cache.nbest {
+		t.Fatalf("cache heaviest %v, ranked anew %v", v.cache.best[:v.cache.nbest], fresh.best[:fresh.nbest])
+	}
+}
+
+func TestOverlayStoreInvariants(t *testing.T) {
+	d := ksrSetup(t)
+	for _, c := range []struct {
+		name string
+		opts OverlayOptions
+	}{
+		{"defaults", OverlayOptions{}},
+		{"capped", OverlayOptions{MaxEntries: 3000}},
+		{"fast-decay", OverlayOptions{HalfLifeDays: 0.5}},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			ov, err := NewOverlay(d.base.m, bvocab{d.base.b}, c.opts)
+			if err != nil {
+				t.Fatal(err)
+			}
+			for i, s := range d.sentences[:len(d.sentences)/3] {
+				ov.Learn(strings.Join(s, " ")+".", i/20) // a day of use every 20 sentences
+				if i%97 == 0 {
+					checkStore(t, ov.View())
+				}
+				if i == 400 {
+					ov.Forget("the")
+				}
+			}
+			checkStore(t, ov.View())
+		})
+	}
+}
