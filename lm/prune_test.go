@@ -153,12 +153,12 @@ func frequencyProb(b *Backoff, text string) func(h []uint32) float64 {
 				totals[n] += c
 			}
 		}
-		return float64(counts[n][words(b, h)]) / float64(totals[n])
+		return float64(counts[n][keyText(b, h)]) / float64(totals[n])
 	}
 }
 
 // words is the n-gram k of b as space-separated words.
-func words(b *Backoff, k []uint32) string {
+func keyText(b *Backoff, k []uint32) string {
 	ws := make([]string, len(k))
 	for i, id := range k {
 		ws[i] = b.Vocab[id]
@@ -207,7 +207,7 @@ func TestScoreMatchesDirectRelativeEntropy(t *testing.T) {
 		{"chain", ScoreOptions{ChainHistory: true}, func(h []uint32) float64 { return historyProb(b, h) }, nil},
 		{"marginal", ScoreOptions{}, marginalProb(b, pi), nil},
 		{"counts", ScoreOptions{Counts: c.counts()}, freq, func(k []uint32) float64 {
-			n := float64(top[words(b, k)])
+			n := float64(top[keyText(b, k)])
 			return (n - 1 + 0.001) / n
 		}},
 	}
