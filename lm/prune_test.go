@@ -157,7 +157,7 @@ func frequencyProb(b *Backoff, text string) func(h []uint32) float64 {
 	}
 }
 
-// words is the n-gram k of b as space-separated words.
+// keyText is the n-gram k of b as space-separated words.
 func keyText(b *Backoff, k []uint32) string {
 	ws := make([]string, len(k))
 	for i, id := range k {
