@@ -33,7 +33,7 @@ func compareScored(a, b Scored) int {
 type topBuf struct {
 	k   int
 	n   int
-	buf [MaxK]Scored
+	buf [MaxK + 3]Scored // room for the three special tokens a group scan may meet
 }
 
 func (t *topBuf) push(s Scored) {
@@ -142,7 +142,7 @@ func (m *Model) groupTop(nd *node, lo, hi uint32, k int, add func(uint32) bool) 
 		}
 	}
 	var t topBuf
-	t.k = min(k+3, MaxK) // room for the special tokens, which add refuses
+	t.k = k + 3 // room for the special tokens, which add refuses
 	// Positions ascend with word IDs inside a group, so ranking positions
 	// breaks ties as ranking IDs would; only the winners are turned into IDs.
 	for p := glo; p < ghi; p++ {
