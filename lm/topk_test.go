@@ -5,6 +5,7 @@ import (
 	"math/rand/v2"
 	"path/filepath"
 	"slices"
+	"strings"
 	"testing"
 )
 
@@ -56,6 +57,15 @@ func TestTopKMatchesBruteForce(t *testing.T) {
 					t.Errorf("TopK = %v, want %v", got, want)
 				}
 			})
+		}
+		// Contexts of the held-out text at k = MaxK, where frequent
+		// contexts put </s> among a group's best successors.
+		test := strings.Fields(readFile(t, filepath.Join("testdata", "opticks-test.txt")))
+		for i := 2; i < 300 && order > 1; i++ {
+			ctx := x.ids(t, test[i-2:i])
+			if got, want := x.m.TopK(ctx, 0, V, MaxK, nil), bruteTopK(x.m, ctx, 0, V, MaxK); !slices.Equal(got, want) {
+				t.Errorf("order %d q%d TopK(%v, k=%d) = %v, want %v", order, c.q, test[i-2:i], MaxK, got, want)
+			}
 		}
 	}
 }
