@@ -63,7 +63,7 @@ type Options struct {
 const DefaultAutoApplyConfidence = 0.8
 
 // DefaultCorrectionStates is the default of Options.CorrectionStates.
-const DefaultCorrectionStates = 30000
+const DefaultCorrectionStates = 15000
 
 func (o Options) withDefaults() (Options, error) {
 	if o.Suggestions == 0 {

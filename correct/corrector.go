@@ -148,6 +148,9 @@ type Corrector struct {
 	opts Options
 	ch   *channel
 	pool sync.Pool
+	// depthFirst selects the previous search (alphabetical depth-first
+	// passes of growing budget) for comparison in tests and benchmarks.
+	depthFirst bool
 }
 
 // firstPass is the cost budget of the first, narrow search pass: about one
@@ -247,27 +250,10 @@ func (c *Corrector) Correct(typed string, context []uint32, max int, dst []Candi
 	s := &sc.s
 	rk := &sc.rk
 	rk.start(c, context, typedID, inLex, keepN, sc.top)
-	last := 0.0
-	left := o.MaxStates
-	for _, budget := range [...]float64{firstPass, secondPass, o.MaxCost} {
-		budget = min(budget, o.MaxCost)
-		if budget <= last {
-			break
-		}
-		last = budget
-		if o.MaxStates > 0 && left <= 0 {
-			break
-		}
-		s.reset(c.ch, c.lex, lower, float32(budget), min(len(lower)+maxExtra, 2*maxTyped))
-		if o.MaxStates > 0 {
-			s.limit = left
-		}
-		s.rk = rk
-		s.run()
-		left -= s.visited
-		if known || len(rk.top) > 0 && rk.top[0].Score >= o.LMWeight*passRefLogProb {
-			break // a known word only gets the narrow pass of suggestions
-		}
+	if c.depthFirst {
+		c.searchDepthFirst(s, rk, lower, known)
+	} else {
+		c.searchBestFirst(s, rk, lower, known)
 	}
 	sc.top = rk.top
 	s.rk, rk.c, rk.context = nil, nil, nil
@@ -322,8 +308,7 @@ func (c *Corrector) Correct(typed string, context []uint32, max int, dst []Candi
 	return dst, Decision{Apply: apply, Confidence: conf}
 }
 
-// insertTop inserts c into top (sorted by Score, best first), keeping at
-// most n entries.
+// hasWord reports whether top holds word id as a KindWord candidate.
 func hasWord(top []Candidate, id uint32) bool {
 	for _, c := range top {
 		if c.Kind == KindWord && c.ID == id {
@@ -333,12 +318,30 @@ func hasWord(top []Candidate, id uint32) bool {
 	return false
 }
 
+// ranksBefore reports whether a ranks before b: a higher score, or an
+// equal score and a smaller (kind, ID, next ID), so that the order does
+// not depend on the order in which the search finds the words.
+func ranksBefore(a, b Candidate) bool {
+	if a.Score != b.Score {
+		return a.Score > b.Score
+	}
+	if a.Kind != b.Kind {
+		return a.Kind < b.Kind
+	}
+	if a.ID != b.ID {
+		return a.ID < b.ID
+	}
+	return a.Next < b.Next
+}
+
+// insertTop inserts c into top (best first by ranksBefore), keeping at
+// most n entries.
 func insertTop(top []Candidate, c Candidate, n int) []Candidate {
-	if len(top) == n && top[n-1].Score >= c.Score {
+	if len(top) == n && !ranksBefore(c, top[n-1]) {
 		return top
 	}
 	i := len(top)
-	for i > 0 && top[i-1].Score < c.Score {
+	for i > 0 && ranksBefore(c, top[i-1]) {
 		i--
 	}
 	if len(top) < n {
@@ -347,4 +350,68 @@ func insertTop(top []Candidate, c Candidate, n int) []Candidate {
 	copy(top[i+1:], top[i:len(top)-1])
 	top[i] = c
 	return top
+}
+
+// searchBestFirst finds the candidates of lower (known: the lexicon or
+// the user knows it) as searchDepthFirst does, except that the widest pass
+// walks best-first (see runBest): under the state cap it leaves out the
+// least promising prefixes rather than the alphabetically last ones. The
+// narrow passes stay depth-first: they are complete within the cap for
+// nearly every word, and a depth-first state costs about a quarter less
+// (BenchmarkWidePass).
+// It returns the number of states visited.
+func (c *Corrector) searchBestFirst(s *search, rk *ranker, lower string, known bool) int {
+	o := &c.opts
+	used := 0
+	for _, budget := range [...]float64{firstPass, secondPass, o.MaxCost} {
+		budget = min(budget, o.MaxCost)
+		if o.MaxStates > 0 && used >= o.MaxStates {
+			break
+		}
+		s.reset(c.ch, c.lex, lower, float32(budget), min(len(lower)+maxExtra, 2*maxTyped))
+		if o.MaxStates > 0 {
+			s.limit = o.MaxStates - used
+		}
+		s.rk = rk
+		if budget < o.MaxCost {
+			s.run()
+		} else {
+			s.runBest()
+		}
+		used += s.visited
+		if budget >= o.MaxCost || known || len(rk.top) > 0 && rk.top[0].Score >= o.LMWeight*passRefLogProb {
+			break // a known word only gets the narrow pass of suggestions
+		}
+	}
+	return used
+}
+
+// searchDepthFirst is the previous search: alphabetical depth-first walks
+// in passes of growing budget, the state cap shared by the passes.
+// It returns the number of states visited.
+func (c *Corrector) searchDepthFirst(s *search, rk *ranker, lower string, known bool) int {
+	o := &c.opts
+	last := 0.0
+	used := 0
+	for _, budget := range [...]float64{firstPass, secondPass, o.MaxCost} {
+		budget = min(budget, o.MaxCost)
+		if budget <= last {
+			break
+		}
+		last = budget
+		if o.MaxStates > 0 && used >= o.MaxStates {
+			break
+		}
+		s.reset(c.ch, c.lex, lower, float32(budget), min(len(lower)+maxExtra, 2*maxTyped))
+		if o.MaxStates > 0 {
+			s.limit = o.MaxStates - used
+		}
+		s.rk = rk
+		s.run()
+		used += s.visited
+		if known || len(rk.top) > 0 && rk.top[0].Score >= o.LMWeight*passRefLogProb {
+			break // a known word only gets the narrow pass of suggestions
+		}
+	}
+	return used
 }

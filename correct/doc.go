@@ -38,7 +38,15 @@
 // bytes whose substitution, deletion or rule cost fits the budget. The walk
 // runs in widening passes (6, 9, then Options.MaxCost nats) and stops
 // after a pass whose best candidate scores above -16 nats;
-// a word the lexicon or Known knows gets only the first pass. Words
+// a word the lexicon or Known knows gets only the first pass. The narrow
+// passes walk depth first; the widest walks best first: prefixes wait in
+// a bucket queue ordered by a lower bound on the cost of any word below
+// them (the row minimum, a rule in progress from the row it started at, a
+// transposition from the parent's row), so that when Options.MaxStates
+// ends the walk, the prefixes left out are the least promising rather
+// than the alphabetically last. Without a cap it finds exactly the words
+// of the depth-first walk; each of its states costs about a third more
+// (a row and a queue entry per prefix). Words
 // found are ranked by Score = -Cost + LMWeight × ln P(word | context).
 // Missing spaces ("aboutthe" → "about the") are [KindSplit] candidates;
 // stray spaces ("ab out") are handled by [Corrector.Merge], which needs the

@@ -45,7 +45,9 @@ type appRule struct {
 }
 
 // partial is a rule whose intended side has been matched for k bytes,
-// starting at depth from.
+// starting after the prefix whose row is in slot from of search.rows (the
+// depth-first walk keeps depth d's row in slot d; the best-first one keeps
+// one slot per queued prefix; slot 0 is the empty prefix in both).
 type partial struct {
 	rule int32
 	k    int32
@@ -79,9 +81,11 @@ type search struct {
 	visited   int
 	limit     int // states this search may visit (0 = no limit)
 	el        EdgeLister
-	edges     [][]Edge // per depth
-	rk        *ranker  // if not nil, takes the words found instead of hits
-	prepCh    *channel // channel the typed-word tables were prepared for
+	edges     [][]Edge  // per depth
+	rk        *ranker   // if not nil, takes the words found instead of hits
+	prepCh    *channel  // channel the typed-word tables were prepared for
+	nodes     []bfNode  // best-first: queued prefixes, by slot
+	buckets   [][]int32 // best-first: slots by quantized lower bound
 }
 
 // plainByte marks the bytes the search tries as intended letters wherever
@@ -302,10 +306,10 @@ func (s *search) visit(d int, state int, acc uint64) {
 	if s.el != nil {
 		edges = s.el.AppendEdges(s.edges[d][:0], state)
 		if len(edges) >= setMinEdges {
-			set, haveSet = s.allowed(d), true
+			set, haveSet = s.allowedDepth(d), true
 		}
 	} else {
-		set, haveSet = s.allowed(d), true
+		set, haveSet = s.allowedDepth(d), true
 		edges = s.edges[d][:0]
 		for wi, word := range set {
 			for word != 0 {
@@ -326,7 +330,7 @@ func (s *search) visit(d int, state int, acc uint64) {
 			// A byte outside the alphabet is tried only where the typed
 			// word, a cheap edit or a rule suggests it.
 			if !haveSet {
-				set, haveSet = s.allowed(d), true
+				set, haveSet = s.allowedDepth(d), true
 			}
 			if set[c>>6]&(1<<(c&63)) == 0 {
 				continue
@@ -334,7 +338,7 @@ func (s *search) visit(d int, state int, acc uint64) {
 		}
 		s.path[d] = c
 		base := s.advance(d, c)
-		if s.computeRow(d+1) <= budget || s.actEnd[d+1] > base {
+		if s.computeRowDepth(d+1) <= budget || s.actEnd[d+1] > base {
 			s.visit(d+1, e.Next, acc+e.Out)
 		}
 		s.act = s.act[:base]
@@ -351,11 +355,22 @@ const setMinEdges = 4
 // substitution or deletion, a transposition or a rule. Alphabet letters
 // are listed with all their costs, so for them the set only saves work;
 // other bytes are tried only when it holds them.
-func (s *search) allowed(d int) [4]uint64 {
+func (s *search) allowedDepth(d int) [4]uint64 {
+	w := s.w
+	var prev []float32
+	var last byte
+	if d > 0 {
+		prev, last = s.rows[(d-1)*w:d*w], s.path[d-1]
+	}
+	return s.allowed(s.rows[d*w:(d+1)*w], prev, s.mins[d], last, s.act[s.actStart[d]:s.actEnd[d]])
+}
+
+// allowed is allowedDepth for a prefix with the given row and minimum,
+// its parent's row prev and last byte (prev is nil for the empty prefix),
+// and its partial rule matches.
+func (s *search) allowed(row, prev []float32, m float32, last byte, parts []partial) [4]uint64 {
 	var set [4]uint64
 	add := func(c byte) { set[c>>6] |= 1 << (c & 63) }
-	w := s.w
-	row := s.rows[d*w : (d+1)*w]
 	budget := s.budget
 	ch := s.ch
 	for j := 0; j < s.n; j++ {
@@ -372,25 +387,23 @@ func (s *search) allowed(d int) [4]uint64 {
 			add(o.c)
 		}
 	}
-	m := s.mins[d]
 	for _, o := range ch.cheapDel {
 		if m+o.cost > budget {
 			break
 		}
 		add(o.c)
 	}
-	if d > 0 && m+ch.delDbl <= budget {
-		add(s.path[d-1])
+	if prev != nil && m+ch.delDbl <= budget {
+		add(last)
 	}
-	if d > 0 && ch.trans < inf {
-		prev := s.rows[(d-1)*w : d*w]
+	if prev != nil && ch.trans < inf {
 		for j := 2; j <= s.n; j++ {
-			if s.path[d-1] == s.t[j-1] && prev[j-2]+ch.trans <= budget {
+			if last == s.t[j-1] && prev[j-2]+ch.trans <= budget {
 				add(s.t[j-2])
 			}
 		}
 	}
-	for _, p := range s.act[s.actStart[d]:s.actEnd[d]] {
+	for _, p := range parts {
 		add(s.rules[p.rule].alpha[p.k])
 	}
 	// Rules are sorted by cost: the first k within budget contribute their
@@ -418,12 +431,20 @@ func (s *search) allowed(d int) [4]uint64 {
 // depth d+1 and lists the rules c completes in s.done. It returns where
 // depth d+1's partials start.
 func (s *search) advance(d int, c byte) int {
+	base := s.extend(s.actStart[d], s.actEnd[d], s.mins[d], int32(d), c)
+	s.actStart[d+1], s.actEnd[d+1] = base, len(s.act)
+	return base
+}
+
+// extend extends the partial rule matches act[lo:hi] of a prefix whose row
+// is in slot from and has minimum m by byte c: the continued and newly
+// started partials are appended to s.act from the returned index on, and
+// the rules c completes are listed in s.done.
+func (s *search) extend(lo, hi int, m float32, from int32, c byte) int {
 	base := len(s.act)
 	s.done = s.done[:0]
-	lo, hi := s.actStart[d], s.actEnd[d]
 	first := s.first[c]
 	if lo == hi && len(first) == 0 {
-		s.actStart[d+1], s.actEnd[d+1] = base, base
 		return base
 	}
 	for i := lo; i < hi; i++ {
@@ -439,35 +460,40 @@ func (s *search) advance(d int, c byte) int {
 			s.act = append(s.act, p)
 		}
 	}
-	m := s.mins[d]
 	for _, ri := range first {
 		r := &s.rules[ri]
 		if m+r.cost > s.budget {
 			break // first[c] is sorted by cost
 		}
-		p := partial{rule: ri, k: 1, from: int32(d)}
+		p := partial{rule: ri, k: 1, from: from}
 		if r.la == 1 {
 			s.done = append(s.done, p)
 		} else {
 			s.act = append(s.act, p)
 		}
 	}
-	s.actStart[d+1], s.actEnd[d+1] = base, len(s.act)
 	return base
 }
 
 // computeRow fills row d from the rows above it, path[:d] and the rules in
 // s.done, stores and returns its minimum. Cost: O(typed length), with a
 // plain loop when no transposition or rule applies.
-func (s *search) computeRow(d int) float32 {
-	w, n, ch := s.w, s.n, s.ch
-	c := s.path[d-1]
+func (s *search) computeRowDepth(d int) float32 {
 	var pc byte
 	if d >= 2 {
 		pc = s.path[d-2]
 	}
-	P := s.rows[(d-1)*w : d*w]
-	R := s.rows[d*w : (d+1)*w]
+	return s.computeRow(d, d-1, d-2, d, s.path[d-1], pc)
+}
+
+// computeRow fills the row in slot rs of a depth-d prefix ending in byte c
+// from its parent's row (slot ps, whose last byte is pc) and, for d >= 2,
+// its grandparent's row (slot gs), and the rules in s.done; it stores the
+// row's minimum in mins[rs] and returns it.
+func (s *search) computeRow(rs, ps, gs, d int, c, pc byte) float32 {
+	w, n, ch := s.w, s.n, s.ch
+	P := s.rows[ps*w : (ps+1)*w]
+	R := s.rows[rs*w : (rs+1)*w]
 	R = R[:len(P)]
 	sub := s.subC[int(c)*n : int(c)*n+n]
 	ins := s.ins[:n]
@@ -501,7 +527,7 @@ func (s *search) computeRow(d int) float32 {
 				m = x
 			}
 		}
-		s.mins[d] = m
+		s.mins[rs] = m
 		return m
 	}
 	E := s.extra[:len(P)]
@@ -524,7 +550,7 @@ func (s *search) computeRow(d int) float32 {
 	}
 	var T []float32
 	if d >= 2 {
-		T = s.rows[(d-2)*w : (d-1)*w]
+		T = s.rows[gs*w : (gs+1)*w]
 	}
 	v := min(P[0]+dc, E[0])
 	R[0] = v
@@ -538,7 +564,7 @@ func (s *search) computeRow(d int) float32 {
 		v = x
 		m = min(m, x)
 	}
-	s.mins[d] = m
+	s.mins[rs] = m
 	return m
 }
 
@@ -550,7 +576,7 @@ func (ch *channel) distance(typed, intended string) float32 {
 	for d := 0; d < len(intended); d++ {
 		s.path[d] = intended[d]
 		s.advance(d, intended[d])
-		s.computeRow(d + 1)
+		s.computeRowDepth(d + 1)
 	}
 	return s.rows[len(intended)*s.w+s.n]
 }
