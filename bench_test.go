@@ -205,7 +205,9 @@ func suggestInputs(b *testing.B) []string {
 // whose overlay has learned the invented demo corpus and the Opticks
 // training text (about 40 k n-grams, many words the model lacks), timing
 // both on the same keystroke in turn so that both see the same machine
-// load. It reports each one's median and their ratio (target: ≤ 1.5).
+// load. It reports each one's median and their ratio (target: ≤ 1.5), and
+// the ratio of medians by keystroke class (next word; 1, 2, 3 or more
+// letters typed).
 func BenchmarkSuggestOverlay(b *testing.B) {
 	_, data := syntheticModel(b, 300_000)
 	inputs := suggestInputs(b)
@@ -230,8 +232,14 @@ func BenchmarkSuggestOverlay(b *testing.B) {
 			}
 		}
 	}
+	// Keystroke classes by the length of the typed part: 0 (next word), 1, 2, 3 or more.
+	class := make([]int, len(inputs))
+	for j, in := range inputs {
+		class[j] = min(len(parseCursor(in, 2).prefix), 3)
+	}
 	b.ReportAllocs()
 	var tPlain, tUser []time.Duration
+	var cPlain, cUser [4][]time.Duration
 	i := 0
 	for b.Loop() {
 		in := inputs[i%len(inputs)]
@@ -247,6 +255,9 @@ func BenchmarkSuggestOverlay(b *testing.B) {
 		if len(tPlain) < 1<<16 {
 			tPlain = append(tPlain, t1.Sub(t0))
 			tUser = append(tUser, t2.Sub(t1))
+			c := class[i%len(inputs)]
+			cPlain[c] = append(cPlain[c], t1.Sub(t0))
+			cUser[c] = append(cUser[c], t2.Sub(t1))
 		}
 		i++
 	}
@@ -256,6 +267,15 @@ func BenchmarkSuggestOverlay(b *testing.B) {
 	b.ReportMetric(float64(mp.Nanoseconds())/1e3, "plain-median-µs")
 	b.ReportMetric(float64(mu.Nanoseconds())/1e3, "overlay-median-µs")
 	b.ReportMetric(float64(mu)/float64(mp), "median-ratio")
+	for c, name := range []string{"next", "typed1", "typed2", "typed3+"} {
+		if len(cPlain[c]) == 0 {
+			continue
+		}
+		slices.Sort(cPlain[c])
+		slices.Sort(cUser[c])
+		n := len(cPlain[c]) / 2
+		b.ReportMetric(float64(cUser[c][n])/float64(cPlain[c][n]), "ratio-"+name)
+	}
 	b.ReportMetric(float64(tUser[len(tUser)*99/100].Nanoseconds())/1e3, "overlay-p99-µs")
 	b.ReportMetric(float64(user.UserEntries()), "user-ngrams")
 }

@@ -93,11 +93,15 @@ func (c *coef) bound(pb float64, ev *evidence) float64 {
 // entries are read in order (stage 1); then the best MaxK of its entries in
 // the range, found by a scan (stage 2); and when even that is not enough,
 // every entry of the source in the range is met once, in any order (stage 3).
+// A list the view's memo holds complete for the range is read from stage 0
+// straight through, best first (stage 4: every entry of the range, in
+// order of value).
 type stream struct {
 	buf   topBuf // stage 1: LogP holds the value
 	pos   int
 	tail  float64 // bound of the values of the range's entries not in buf
 	max   float64 // bound of every value (stage 0)
+	all   []memoEnt
 	stage int8
 }
 
@@ -107,6 +111,11 @@ func (s *stream) frontier() float64 {
 	case s.stage == 0:
 		return s.max
 	case s.stage == 3:
+		return 0
+	case s.stage == 4:
+		if s.pos < len(s.all) {
+			return s.all[s.pos].val
+		}
 		return 0
 	case s.pos < s.buf.n:
 		return s.buf.buf[s.pos].LogP
@@ -270,15 +279,29 @@ func (v *OverlayView) TopK(ctx []uint32, prefix string, lo, hi uint32, k int, ds
 	if k <= 0 {
 		return dst
 	}
-	var q query
-	v.prepare(ctx, &q)
 	r := rangeQ{prefix: prefix, lo: lo, hi: hi, whole: prefix == "" && lo == 0 && hi == v.V}
+	var own query
+	q := &own
+	var m *topKMemo
+	if v.memo != nil {
+		m = v.memo.get()
+	}
+	if m != nil && m.mu.TryLock() {
+		defer m.mu.Unlock()
+		if n := v.base.order - 1; len(ctx) > n {
+			ctx = ctx[len(ctx)-n:]
+		}
+		q = m.begin(v, ctx, &r)
+	} else {
+		m = nil
+		v.prepare(ctx, q)
+	}
 	var res topBuf
 	res.k = k
-	if v.threshold(&q, &r, k, min(k+1, MaxK), &res) || v.threshold(&q, &r, k, MaxK, &res) {
+	if v.thresholdMemo(q, &r, k, min(k+1, MaxK), &res, m) || v.thresholdMemo(q, &r, k, MaxK, &res, m) {
 		return append(dst, res.buf[:res.n]...)
 	}
-	return v.topKExhaustive(&q, &r, k, dst)
+	return v.topKExhaustive(q, &r, k, dst)
 }
 
 // threshold runs the threshold search with a base list of m words. It
@@ -288,8 +311,23 @@ func (v *OverlayView) TopK(ctx []uint32, prefix string, lo, hi uint32, k int, ds
 // moves to its next stage (see stream) when its bound keeps the search
 // from stopping and it has nothing left to read in order.
 func (v *OverlayView) threshold(q *query, r *rangeQ, k, m int, res *topBuf) bool {
-	t := thresholdSearch{v: v, q: q, r: r, k: k, res: res, c: v.coefficients(q)}
+	return v.thresholdMemo(q, r, k, m, res, nil)
+}
+
+// thresholdMemo is threshold with the view's memo (nil: none), which the
+// caller holds locked.
+func (v *OverlayView) thresholdMemo(q *query, r *rangeQ, k, m int, res *topBuf, memo *topKMemo) bool {
+	t := thresholdSearch{v: v, q: q, r: r, k: k, res: res, c: v.coefficients(q), memo: memo}
 	return t.run(m)
+}
+
+// scan calls f for every entry of list si in the range, through the memo when there is one.
+func (t *thresholdSearch) scan(si int, f func(uint32, float64)) {
+	if t.memo != nil {
+		t.memo.scan(t.v, si, t.q, t.r, f)
+		return
+	}
+	t.v.scan(si, t.q, t.r, f)
 }
 
 // thresholdSearch is the state of one threshold search.
@@ -307,6 +345,7 @@ type thresholdSearch struct {
 	pbBound float64
 	kth     float64 // probability of the k-th result (0 until there are k)
 	failed  bool
+	memo    *topKMemo // nil: scan the lists themselves
 }
 
 func (t *thresholdSearch) run(m int) bool {
@@ -315,7 +354,16 @@ func (t *thresholdSearch) run(m int) bool {
 	var bt [MaxK]Scored
 	var base []Scored
 	if r.lo < r.hi {
-		base = v.base.TopK(q.base[:q.nctx], r.lo, r.hi, m, bt[:0])
+		ok := false
+		if t.memo != nil {
+			base, ok = t.memo.baseTop(r, m, bt[:0])
+		}
+		if !ok {
+			base = v.base.TopK(q.base[:q.nctx], r.lo, r.hi, m, bt[:0])
+			if t.memo != nil {
+				t.memo.setBase(base, m)
+			}
+		}
 	}
 	baseDone := len(base) < m // every base word of the range is in base
 	if !baseDone {
@@ -324,7 +372,15 @@ func (t *thresholdSearch) run(m int) bool {
 	for _, s := range base {
 		t.seen.add(s.ID)
 		t.scored.add(s.ID)
-		ev := v.evidenceOf(q, s.ID)
+		var ev evidence
+		if w := t.memo.word(s.ID); w != nil && w.hasEv {
+			ev = w.ev
+		} else {
+			ev = v.evidenceOf(q, s.ID)
+			if w = t.memo.add(s.ID); w != nil {
+				w.ev, w.hasEv = ev, true
+			}
+		}
 		res.push(Scored{ID: s.ID, LogP: math.Log(v.blendProb(q, math.Exp(s.LogP), &ev))})
 	}
 	if res.n == k {
@@ -352,6 +408,12 @@ func (t *thresholdSearch) run(m int) bool {
 		}
 		s := &t.st[pick]
 		switch {
+		case s.stage == 0 && t.memo != nil && t.memo.has(pick):
+			s.stage, s.pos, s.all = 4, 0, t.memo.sorted(v, pick, r)
+		case s.stage == 4:
+			e := s.all[s.pos]
+			s.pos++
+			t.consider(pick, e.tok, e.val)
 		case s.stage == 0 && pick != stCacheBi:
 			v.stage1(pick, s, q, r)
 		case (s.stage == 1 || s.stage == 2) && s.pos < s.buf.n:
@@ -362,7 +424,7 @@ func (t *thresholdSearch) run(m int) bool {
 			// The best MaxK entries in the range, in order.
 			s.stage, s.pos, s.buf.n, s.buf.k = 2, 0, 0, MaxK
 			n := 0
-			v.scan(pick, q, r, func(tok uint32, val float64) {
+			t.scan(pick, func(tok uint32, val float64) {
 				s.buf.push(Scored{ID: tok, LogP: val})
 				n++
 			})
@@ -372,7 +434,7 @@ func (t *thresholdSearch) run(m int) bool {
 			}
 		default:
 			s.stage = 3
-			v.scan(pick, q, r, func(tok uint32, val float64) { t.consider(pick, tok, val) })
+			t.scan(pick, func(tok uint32, val float64) { t.consider(pick, tok, val) })
 		}
 	}
 	if t.failed {
@@ -437,24 +499,32 @@ func (t *thresholdSearch) consider(si int, tok uint32, val float64) {
 			ub += bnd[sj]
 		}
 	}
-	ev.set(si, val)
-	done := uint8(1) << si
-	for range nStreams - 1 {
-		if t.res.n == t.k && ub*boundMargin < t.kth {
-			return
-		}
-		pick := -1
-		for sj := range t.st {
-			if done&(1<<sj) == 0 && (pick < 0 || bnd[sj] > bnd[pick]) {
-				pick = sj
+	known := t.memo.word(tok)
+	if known != nil && known.hasEv {
+		ev = known.ev
+	} else {
+		ev.set(si, val)
+		done := uint8(1) << si
+		for range nStreams - 1 {
+			if t.res.n == t.k && ub*boundMargin < t.kth {
+				return
 			}
+			pick := -1
+			for sj := range t.st {
+				if done&(1<<sj) == 0 && (pick < 0 || bnd[sj] > bnd[pick]) {
+					pick = sj
+				}
+			}
+			done |= 1 << pick
+			x := v.evidenceIn(q, pick, tok, &ev)
+			ub += c.gamma[pick]*x - bnd[pick]
 		}
-		done |= 1 << pick
-		x := v.evidenceIn(q, pick, tok, &ev)
-		ub += c.gamma[pick]*x - bnd[pick]
-	}
-	if si == stUni && tok >= v.V {
-		v.evidenceIn(q, stUni, tok, &ev) // for the typed count
+		if si == stUni && tok >= v.V {
+			v.evidenceIn(q, stUni, tok, &ev) // for the typed count
+		}
+		if known = t.memo.add(tok); known != nil {
+			known.ev, known.hasEv = ev, true
+		}
 	}
 	if tok >= v.V && !(ev.uni && v.suggestible(tok, ev.typed)) {
 		return
@@ -469,8 +539,15 @@ func (t *thresholdSearch) consider(si int, tok uint32, val float64) {
 		t.scored.add(tok)
 	}
 	pb := 0.0
-	if tok < v.V {
+	switch {
+	case tok >= v.V:
+	case known != nil && known.hasPB:
+		pb = known.pb
+	default:
 		pb = math.Exp(v.base.score(q.nb[:q.nn], tok))
+		if known != nil {
+			known.pb, known.hasPB = pb, true
+		}
 	}
 	t.res.push(Scored{ID: tok, LogP: math.Log(v.blendProb(q, pb, &ev))})
 	if t.res.n == t.k {

@@ -198,6 +198,7 @@ type OverlayView struct {
 	cache    ovCache
 	rejects  []reject
 	learning bool
+	memo     *memoSlot // set when the view is published; nil for a view never published
 }
 
 type reject struct {
@@ -216,7 +217,7 @@ func NewOverlay(base *Model, vocab Vocab, opts OverlayOptions) (*Overlay, error)
 		return nil, err
 	}
 	o := &Overlay{cfg: cfg, base: base, vocab: vocab}
-	o.cur.Store(o.empty(true))
+	o.publish(o.empty(true))
 	return o, nil
 }
 
@@ -238,7 +239,7 @@ func (o *Overlay) SetLearning(on bool) {
 	defer o.mu.Unlock()
 	nv := *o.cur.Load()
 	nv.learning = on
-	o.cur.Store(&nv)
+	o.publish(&nv)
 }
 
 // Learning reports whether learning is on.
@@ -295,7 +296,7 @@ func (o *Overlay) finish(w *writer) {
 	if v.entries > o.cfg.maxEntries {
 		v = v.evict(o.cfg.maxEntries * 9 / 10)
 	}
-	o.cur.Store(v)
+	o.publish(v)
 }
 
 // evict returns a rebuilt view keeping the target strongest n-grams.
@@ -576,7 +577,7 @@ func (o *Overlay) Forget(phrase string) int {
 	for i, f := range words {
 		t, ok := w.resolve(f, false)
 		if !ok { // an unknown word: no n-gram can hold the phrase
-			o.cur.Store(&nv)
+			o.publish(&nv)
 			return 0
 		}
 		toks[i] = t
@@ -597,7 +598,7 @@ func (o *Overlay) Forget(phrase string) int {
 		}
 		return len(toks) == 2 && prev == toks[0] && tok == toks[1]
 	})
-	o.cur.Store(nv.rebuild(kept))
+	o.publish(nv.rebuild(kept))
 	return removed
 }
 
@@ -616,7 +617,7 @@ func containsRun(s, run []uint32) bool {
 func (o *Overlay) Wipe() {
 	o.mu.Lock()
 	defer o.mu.Unlock()
-	o.cur.Store(o.empty(o.cur.Load().learning))
+	o.publish(o.empty(o.cur.Load().learning))
 }
 
 // Reject records that the user undid the correction of original into
@@ -653,7 +654,7 @@ func (o *Overlay) Reject(original, correction string, day int) {
 		rs = slices.Delete(rs, oldest, oldest+1)
 	}
 	nv.rejects = rs
-	o.cur.Store(&nv)
+	o.publish(&nv)
 }
 
 func cmpReject(a, b reject) int {

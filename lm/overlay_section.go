@@ -370,6 +370,6 @@ func LoadOverlay(b []byte, base *Model, vocab Vocab, opts OverlayOptions) (*Over
 	}
 	v.rejects = rejects
 	nv := v.rebuild(grams)
-	o.cur.Store(nv)
+	o.publish(nv)
 	return o, nil
 }

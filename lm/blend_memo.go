@@ -1,0 +1,277 @@
+package lm
+
+import (
+	"cmp"
+	"slices"
+	"strings"
+	"sync"
+	"sync/atomic"
+)
+
+// Reusing work between the keystrokes of one word.
+//
+// An engine asks for the blended top-k on every keystroke, and while a word
+// is being typed the history stays the same and the prefix only grows. A
+// view therefore keeps a memo of its last TopK call: the prepared history
+// (base contexts, user context nodes, cache range, weights); the words met
+// with their complete evidence and base probability, which depend on the
+// history alone; the base model's top list for the range; and for each
+// evidence list the search had to scan in full, every entry of that list in
+// the query's range, in scan order. When the next call has the same history
+// and a prefix that extends the memo's (so that its base ID range lies
+// inside the memo's), a scan of that list only filters the remembered
+// entries instead of walking the user's successor lists again, and the
+// threshold search reads the filtered list best first (sorted once); the
+// filtered entries are exactly those the full scan would meet, so the
+// result is unchanged. The base top list is reused when, filtered to the
+// new range, it still holds as many words as asked for, or held every word
+// of its range.
+//
+// A memo belongs to one view, and views never change once published: a
+// Learn, Forget or Wipe publishes a new view with an empty memo, which is
+// what invalidates it. Concurrent callers of one view do not wait for each
+// other: a call that finds the memo in use runs without it.
+
+// memoEnt is one remembered entry of an evidence list.
+type memoEnt struct {
+	tok uint32
+	val float64
+}
+
+// Memo states of an evidence list.
+const (
+	memoNone  = iota // nothing remembered
+	memoOuter        // the list's entries in the range of an earlier, shorter prefix
+	memoExact        // the list's entries in the memo's own range
+)
+
+// topKMemo is the memo of a view (see above).
+type topKMemo struct {
+	mu     sync.Mutex
+	ok     bool // q holds the prepared history of ctx[:nctx]
+	nctx   int
+	ctx    [MaxOrder]uint32
+	q      query
+	prefix string
+	lo, hi uint32
+	state  [nStreams]uint8
+	byVal  [nStreams]bool // the list is sorted best first
+	lists  [nStreams][]memoEnt
+	// The base model's best words in the range, best first: exactly the
+	// top len(base) of the range, or every word of the range when
+	// baseAll. baseState is one of the states of the lists above.
+	base      [MaxK]Scored
+	nBase     int
+	baseAll   bool
+	baseState uint8
+	// Words met under the history: their evidence and base probability,
+	// which depend on the history alone. A slot is in use when its gen
+	// equals gen; a new history starts a new generation.
+	gen   uint32
+	nWord int
+	words [memoWords]memoWord
+}
+
+// memoWords is the size of a memo's word table (a power of two); it takes
+// at most three quarters of it.
+const memoWords = 128
+
+// memoWord is what a memo knows of one word under its history.
+type memoWord struct {
+	gen   uint32
+	tok   uint32
+	hasEv bool
+	hasPB bool
+	ev    evidence // complete: every list looked up
+	pb    float64  // p_base(w | h)
+}
+
+// slotOf returns the table index where tok is or would go.
+func (m *topKMemo) slotOf(tok uint32) int {
+	i := int((tok * 0x9E3779B1) >> (32 - 7))
+	for m.words[i].gen == m.gen && m.words[i].tok != tok {
+		i = (i + 1) & (memoWords - 1)
+	}
+	return i
+}
+
+// word returns what the memo knows of tok, or nil (also for a nil memo).
+func (m *topKMemo) word(tok uint32) *memoWord {
+	if m == nil {
+		return nil
+	}
+	if w := &m.words[m.slotOf(tok)]; w.gen == m.gen {
+		return w
+	}
+	return nil
+}
+
+// add returns tok's entry, making an empty one if needed; nil for a nil
+// memo or a full table.
+func (m *topKMemo) add(tok uint32) *memoWord {
+	if m == nil {
+		return nil
+	}
+	w := &m.words[m.slotOf(tok)]
+	if w.gen != m.gen {
+		if m.nWord >= memoWords*3/4 {
+			return nil
+		}
+		m.nWord++
+		*w = memoWord{gen: m.gen, tok: tok}
+	}
+	return w
+}
+
+// memoSlot holds a view's memo, made by the view's first TopK call.
+type memoSlot struct {
+	p atomic.Pointer[topKMemo]
+}
+
+// get returns the memo, making it if needed.
+func (s *memoSlot) get() *topKMemo {
+	if m := s.p.Load(); m != nil {
+		return m
+	}
+	s.p.CompareAndSwap(nil, new(topKMemo))
+	return s.p.Load()
+}
+
+// publish makes v the overlay's current view, with an empty memo.
+func (o *Overlay) publish(v *OverlayView) {
+	v.memo = new(memoSlot)
+	o.cur.Store(v)
+}
+
+// begin prepares the memo for a TopK call with history ctx (already cut to
+// the base model's order) and range r, and returns the prepared history.
+func (m *topKMemo) begin(v *OverlayView, ctx []uint32, r *rangeQ) *query {
+	if key := m.key(ctx); !m.ok || m.nctx != len(ctx) || m.ctx != key {
+		v.prepare(ctx, &m.q)
+		m.ok, m.nctx, m.ctx = true, len(ctx), key
+		m.state = [nStreams]uint8{}
+		m.baseState = memoNone
+		m.prefix = ""
+		m.gen++
+		m.nWord = 0
+		if m.gen == 0 { // after 2³² histories: clear the table once
+			m.words = [memoWords]memoWord{}
+			m.gen = 1
+		}
+	}
+	narrow := r.prefix != "" && m.prefix != "" && strings.HasPrefix(r.prefix, m.prefix) &&
+		(r.lo >= r.hi || r.lo >= m.lo && r.hi <= m.hi)
+	for si := range m.state {
+		m.state[si] = outer(m.state[si], narrow)
+	}
+	m.baseState = outer(m.baseState, narrow)
+	m.prefix, m.lo, m.hi = r.prefix, r.lo, r.hi
+	return &m.q
+}
+
+// outer returns the state of a remembered list when the next call's range
+// lies inside the memo's (narrow) or not.
+func outer(state uint8, narrow bool) uint8 {
+	switch {
+	case !narrow:
+		return memoNone
+	case state == memoExact:
+		return memoOuter
+	}
+	return state
+}
+
+// baseTop returns the base model's m best words in the range, best first,
+// from the memo, or false when the memo cannot tell them. A list for an
+// enclosing range tells them when it holds m words of the range or every
+// word of its own range: the words of the inner range rank among
+// themselves as they do in the outer list, and every word the list lacks
+// ranks after its last.
+func (m *topKMemo) baseTop(r *rangeQ, want int, dst []Scored) ([]Scored, bool) {
+	if m.baseState == memoOuter {
+		keep := m.base[:0]
+		for _, s := range m.base[:m.nBase] {
+			if s.ID >= r.lo && s.ID < r.hi {
+				keep = append(keep, s)
+			}
+		}
+		m.nBase = len(keep)
+		m.baseState = memoExact
+	}
+	if m.baseState != memoExact || !m.baseAll && m.nBase < want {
+		return dst, false
+	}
+	return append(dst, m.base[:min(want, m.nBase)]...), true
+}
+
+// setBase remembers the base model's answer for m words in the current range.
+func (m *topKMemo) setBase(list []Scored, want int) {
+	m.nBase = copy(m.base[:], list)
+	m.baseAll = len(list) < want
+	m.baseState = memoExact
+}
+
+// key returns ctx padded to MaxOrder words.
+func (m *topKMemo) key(ctx []uint32) [MaxOrder]uint32 {
+	var k [MaxOrder]uint32
+	copy(k[:], ctx)
+	return k
+}
+
+// scan calls f for every entry of list si in the range, as v.scan does,
+// using and filling the memo.
+func (m *topKMemo) scan(v *OverlayView, si int, q *query, r *rangeQ, f func(uint32, float64)) {
+	switch m.state[si] {
+	case memoExact:
+		for _, e := range m.lists[si] {
+			f(e.tok, e.val)
+		}
+		return
+	case memoOuter:
+		keep := m.lists[si][:0]
+		for _, e := range m.lists[si] {
+			if e.tok < v.V && e.tok >= r.lo && e.tok < r.hi || e.tok >= v.V && v.hasPrefix(e.tok, r.prefix) {
+				keep = append(keep, e)
+				f(e.tok, e.val)
+			}
+		}
+		m.lists[si] = keep
+		m.state[si] = memoExact
+		return
+	}
+	m.byVal[si] = false
+	if r.prefix == "" { // the whole list: walking it is as cheap as copying it
+		v.scan(si, q, r, f)
+		return
+	}
+	list := m.lists[si][:0]
+	v.scan(si, q, r, func(tok uint32, val float64) {
+		list = append(list, memoEnt{tok, val})
+		f(tok, val)
+	})
+	m.lists[si] = list
+	m.state[si] = memoExact
+}
+
+// has reports whether the memo holds list si complete for the range of
+// the current call.
+func (m *topKMemo) has(si int) bool { return m.state[si] != memoNone && m.prefix != "" }
+
+// sorted returns list si's entries in the current call's range, best
+// first (ties: lower ID first); has(si) must hold. The list stays in the
+// memo sorted, so that later keystrokes only filter it.
+func (m *topKMemo) sorted(v *OverlayView, si int, r *rangeQ) []memoEnt {
+	if m.state[si] == memoOuter {
+		m.scan(v, si, nil, r, func(uint32, float64) {})
+	}
+	if !m.byVal[si] {
+		slices.SortFunc(m.lists[si], func(a, b memoEnt) int {
+			if c := cmp.Compare(b.val, a.val); c != 0 {
+				return c
+			}
+			return cmp.Compare(a.tok, b.tok)
+		})
+		m.byVal[si] = true
+	}
+	return m.lists[si]
+}

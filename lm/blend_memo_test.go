@@ -1,0 +1,107 @@
+package lm
+
+import (
+	"math"
+	"math/rand/v2"
+	"strings"
+	"testing"
+)
+
+// sameScored reports whether got and want hold the same words in the same
+// order with scores within tol.
+func sameScored(got, want []Scored, tol float64) bool {
+	if len(got) != len(want) {
+		return false
+	}
+	for j := range got {
+		if got[j].ID != want[j].ID || math.Abs(got[j].LogP-want[j].LogP) > tol {
+			return false
+		}
+	}
+	return true
+}
+
+// Typing a word letter by letter goes through the view's memo (same
+// history, growing prefix), which must not change any answer: every
+// keystroke's TopK must equal ranking every word by LogProb (bruteBlend,
+// the blend's definition), same words and order, scores within 1e-12. The
+// keystrokes include backspaces (a prefix that does not extend the last
+// one), a change of history between words, and a Learn between two
+// keystrokes of one word, after which the answers must be those of the new
+// view (the learned sentence makes the typed word likelier in the history).
+func TestOverlayTopKKeystrokes(t *testing.T) {
+	d := ksrSetup(t)
+	n := len(d.sentences)
+	const seed = 20261203
+	t.Logf("seed %d", seed)
+	rng := rand.New(rand.NewPCG(seed, 7))
+	for _, c := range []struct {
+		name string
+		opts OverlayOptions
+	}{
+		{"defaults", OverlayOptions{}},
+		{"mintyped-1", OverlayOptions{MinTyped: 1}},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			ov, err := NewOverlay(d.base.m, bvocab{d.base.b}, c.opts)
+			if err != nil {
+				t.Fatal(err)
+			}
+			learnAll(ov, d.sentences[:n/2])
+			check := func(v *OverlayView, ctx []uint32, prefix string, k int) {
+				t.Helper()
+				lo, hi := prefixRange(d.base.b.Vocab, prefix)
+				got := v.TopK(ctx, prefix, lo, hi, k, nil)
+				want := bruteBlend(v, ctx, prefix, lo, hi, k)
+				if !sameScored(got, want, 1e-12) {
+					t.Errorf("TopK(ctx %v, prefix %q, k %d) = %v, want %v", ctx, prefix, k, words(v, got), words(v, want))
+				}
+			}
+			reused := 0
+			for range 6 {
+				s := d.sentences[rng.IntN(n)]
+				v := ov.View()
+				ctx := []uint32{v.bos}
+				for wi, w := range s[:min(len(s), 4)] {
+					k := 1 + rng.IntN(5)
+					for i := 0; i <= len(w); i++ {
+						check(v, ctx[max(0, len(ctx)-2):], w[:i], k)
+						if v.memo.get().state != [nStreams]uint8{} && i >= 2 {
+							reused++
+						}
+					}
+					if wi == 1 && len(w) >= 3 { // backspace to the first letter, then type on
+						check(v, ctx[max(0, len(ctx)-2):], w[:1], k)
+						check(v, ctx[max(0, len(ctx)-2):], w[:2], k)
+					}
+					id, ok := v.ID(w)
+					if !ok {
+						id = v.unk
+					}
+					ctx = append(ctx, id)
+				}
+			}
+			if reused == 0 {
+				t.Error("no keystroke left a remembered list in the memo: the test did not reach it")
+			}
+			t.Logf("%d keystrokes with a remembered list", reused)
+
+			// Learn between keystrokes: the new view must answer for itself.
+			s := d.sentences[n-1]
+			v := ov.View()
+			ctx := []uint32{v.bos}
+			w := s[0]
+			check(v, ctx, w[:1], 3)
+			check(v, ctx, w[:min(2, len(w))], 3)
+			for range 3 {
+				ov.Learn(strings.Join(s, " ")+".", n)
+			}
+			nv := ov.View()
+			if nv == v || nv.memo == v.memo {
+				t.Fatal("Learn did not publish a new view with its own memo")
+			}
+			check(nv, ctx, w[:min(2, len(w))], 3)
+			check(nv, ctx, w, 3)
+		})
+	}
+}
