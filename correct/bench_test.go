@@ -88,10 +88,7 @@ func (c *Corrector) states(w string) int {
 	var sc scratch
 	id, inLex := c.lex.ID(w)
 	sc.rk.start(c, nil, id, inLex, 8, nil)
-	if c.depthFirst {
-		return c.searchDepthFirst(&sc.s, &sc.rk, w, inLex)
-	}
-	return c.searchBestFirst(&sc.s, &sc.rk, w, inLex)
+	return c.searchPasses(&sc.s, &sc.rk, w, inLex, !c.depthFirst)
 }
 
 // lastHits re-runs the widest search for w and returns the words found

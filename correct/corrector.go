@@ -250,11 +250,7 @@ func (c *Corrector) Correct(typed string, context []uint32, max int, dst []Candi
 	s := &sc.s
 	rk := &sc.rk
 	rk.start(c, context, typedID, inLex, keepN, sc.top)
-	if c.depthFirst {
-		c.searchDepthFirst(s, rk, lower, known)
-	} else {
-		c.searchBestFirst(s, rk, lower, known)
-	}
+	c.searchPasses(s, rk, lower, known, !c.depthFirst)
 	sc.top = rk.top
 	s.rk, rk.c, rk.context = nil, nil, nil
 	// Missing spaces: two words typed as one.
@@ -352,47 +348,18 @@ func insertTop(top []Candidate, c Candidate, n int) []Candidate {
 	return top
 }
 
-// searchBestFirst finds the candidates of lower (known: the lexicon or
-// the user knows it) as searchDepthFirst does, except that the widest pass
-// walks best-first (see runBest): under the state cap it leaves out the
-// least promising prefixes rather than the alphabetically last ones. The
-// narrow passes stay depth-first: they are complete within the cap for
-// nearly every word, and a depth-first state costs about a quarter less
-// (BenchmarkWidePass).
-// It returns the number of states visited.
-func (c *Corrector) searchBestFirst(s *search, rk *ranker, lower string, known bool) int {
+// searchPasses finds the candidates of lower (known: the lexicon or the
+// user knows it) in passes of growing budget, the state cap shared by the
+// passes; it returns the number of states visited. With bestFirst the
+// widest pass walks best-first (see runBest): under the state cap it leaves
+// out the least promising prefixes rather than the alphabetically last
+// ones. The narrow passes always walk depth-first: they are complete within
+// the cap for nearly every word, and a depth-first state costs about a
+// quarter less (BenchmarkWidePass). Without bestFirst it is the previous,
+// all depth-first search.
+func (c *Corrector) searchPasses(s *search, rk *ranker, lower string, known, bestFirst bool) int {
 	o := &c.opts
-	used := 0
-	for _, budget := range [...]float64{firstPass, secondPass, o.MaxCost} {
-		budget = min(budget, o.MaxCost)
-		if o.MaxStates > 0 && used >= o.MaxStates {
-			break
-		}
-		s.reset(c.ch, c.lex, lower, float32(budget), min(len(lower)+maxExtra, 2*maxTyped))
-		if o.MaxStates > 0 {
-			s.limit = o.MaxStates - used
-		}
-		s.rk = rk
-		if budget < o.MaxCost {
-			s.run()
-		} else {
-			s.runBest()
-		}
-		used += s.visited
-		if budget >= o.MaxCost || known || len(rk.top) > 0 && rk.top[0].Score >= o.LMWeight*passRefLogProb {
-			break // a known word only gets the narrow pass of suggestions
-		}
-	}
-	return used
-}
-
-// searchDepthFirst is the previous search: alphabetical depth-first walks
-// in passes of growing budget, the state cap shared by the passes.
-// It returns the number of states visited.
-func (c *Corrector) searchDepthFirst(s *search, rk *ranker, lower string, known bool) int {
-	o := &c.opts
-	last := 0.0
-	used := 0
+	last, used := 0.0, 0
 	for _, budget := range [...]float64{firstPass, secondPass, o.MaxCost} {
 		budget = min(budget, o.MaxCost)
 		if budget <= last {
@@ -407,9 +374,13 @@ func (c *Corrector) searchDepthFirst(s *search, rk *ranker, lower string, known 
 			s.limit = o.MaxStates - used
 		}
 		s.rk = rk
-		s.run()
+		if bestFirst && budget >= o.MaxCost {
+			s.runBest()
+		} else {
+			s.run()
+		}
 		used += s.visited
-		if known || len(rk.top) > 0 && rk.top[0].Score >= o.LMWeight*passRefLogProb {
+		if budget >= o.MaxCost || known || len(rk.top) > 0 && rk.top[0].Score >= o.LMWeight*passRefLogProb {
 			break // a known word only gets the narrow pass of suggestions
 		}
 	}
