@@ -127,22 +127,7 @@ func BenchmarkOpen(b *testing.B) {
 // reports the cost per keystroke, from the mapped file and from a heap copy.
 func BenchmarkSuggest(b *testing.B) {
 	path, data := syntheticModel(b, 300_000)
-	raw, err := os.ReadFile("lm/testdata/opticks-test.txt")
-	if err != nil {
-		b.Fatal(err)
-	}
-	// Every keystroke of the first sentences: the text before the cursor.
-	var inputs []string
-	text := ""
-	for _, line := range strings.SplitN(string(raw), "\n", 40)[:39] {
-		for _, w := range strings.Fields(line) {
-			for i := 0; i <= len(w); i++ {
-				inputs = append(inputs, text+w[:i])
-			}
-			text += w + " "
-		}
-		text = ""
-	}
+	inputs := suggestInputs(b)
 	mapped, err := Open(path, Options{})
 	if err != nil {
 		b.Fatal(err)

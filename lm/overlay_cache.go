@@ -206,17 +206,9 @@ func mergeCache(old, add []cacheEnt, floor float64) ([]cacheEnt, float64) {
 	return out, sum
 }
 
-// find returns the stored weight of (prev, tok), or 0.
+// cacheFind returns the stored weight of (prev, tok), or 0.
 func cacheFind(s []cacheEnt, prev, tok uint32) float64 {
-	lo, hi := 0, len(s)
-	for lo < hi {
-		m := int(uint(lo+hi) >> 1)
-		if s[m].prev < prev || s[m].prev == prev && s[m].tok < tok {
-			lo = m + 1
-		} else {
-			hi = m
-		}
-	}
+	lo := lowerCache(s, prev, tok)
 	if lo < len(s) && s[lo].prev == prev && s[lo].tok == tok {
 		return s[lo].w
 	}
