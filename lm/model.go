@@ -178,12 +178,30 @@ func (m *Model) LogProb(ctx []uint32, w uint32) float64 {
 
 func (m *Model) score(nodes []node, w uint32) float64 {
 	acc := 0.0
-	for i := range nodes {
+	for i := 0; i < len(nodes); i++ {
 		nd := &nodes[i]
-		if p := m.findIn(nd, w); p >= 0 {
+		if !nd.ranked {
+			if p := m.findIn(nd, w); p >= 0 {
+				return acc + m.probAt(nd, p)
+			}
+			acc += nd.bow
+			continue
+		}
+		// contexts keeps a ranked node only with its suffix node right
+		// after it, and the search of the ranks has already found w
+		// there (or found it absent): answer that node too.
+		p, s := m.rankedFind(nd, w)
+		if p >= 0 {
 			return acc + m.probAt(nd, p)
 		}
 		acc += nd.bow
+		if i+1 < len(nodes) {
+			i++
+			if s >= 0 {
+				return acc + m.probAt(&nodes[i], s)
+			}
+			acc += nodes[i].bow
+		}
 	}
 	return acc + m.lv[0].prob(int(w))
 }

@@ -152,8 +152,37 @@ func (m *Model) lowerIn(nd *node, lo, hi int, w uint32) int {
 	return lo
 }
 
+// rankedFind returns the record of word w in a ranked node's group (or
+// -1) and w's entry in the suffix group one level down (or -1, in which
+// case w is not in the suffix group either).
+func (m *Model) rankedFind(nd *node, w uint32) (p, s int) {
+	s = m.lv[nd.lvl-1].search(nd.slo, nd.slo+nd.sn, w)
+	if s < 0 {
+		return -1, -1
+	}
+	r := uint64(s - nd.slo)
+	l := &m.lv[nd.lvl]
+	lo, hi := nd.lo, nd.hi
+	for lo < hi {
+		mid := int(uint(lo+hi) >> 1)
+		if l.rankAt(nd, mid) < r {
+			lo = mid + 1
+		} else {
+			hi = mid
+		}
+	}
+	if lo < nd.hi && l.rankAt(nd, lo) == r {
+		return lo, s
+	}
+	return -1, s
+}
+
 // findIn returns the position of word w in a node's group, or -1.
 func (m *Model) findIn(nd *node, w uint32) int {
+	if nd.ranked {
+		p, _ := m.rankedFind(nd, w)
+		return p
+	}
 	p := m.lowerIn(nd, nd.lo, nd.hi, w)
 	if p < nd.hi && m.wordAt(nd, p) == uint64(w) {
 		return p
