@@ -62,15 +62,7 @@ func TestUnitDistanceMatchesLevenshtein(t *testing.T) {
 }
 
 func TestChannelCosts(t *testing.T) {
-	kb, err := LayoutQWERTY.Keyboard()
-	if err != nil {
-		t.Fatal(err)
-	}
-	em, err := BuiltinErrorModel()
-	if err != nil {
-		t.Fatal(err)
-	}
-	ch := newChannel(kb, em)
+	ch := qwertyChannel(t)
 	// Neighbouring keys are cheaper slips than far ones (Azenkot & Zhai
 	// 2012: substitutions cluster around the intended key).
 	if near, far := ch.distance("cat", "cst"), ch.distance("cpt", "cst"); !(near < far) {
@@ -88,4 +80,18 @@ func TestChannelCosts(t *testing.T) {
 	if got := ch.distance("wrod", "word"); got <= 0 {
 		t.Errorf("distance(wrod, word) = %v", got)
 	}
+}
+
+// qwertyChannel is the channel of the QWERTY layout and the built-in error model.
+func qwertyChannel(t *testing.T) *channel {
+	t.Helper()
+	kb, err := LayoutQWERTY.Keyboard()
+	if err != nil {
+		t.Fatal(err)
+	}
+	em, err := BuiltinErrorModel()
+	if err != nil {
+		t.Fatal(err)
+	}
+	return newChannel(kb, em)
 }

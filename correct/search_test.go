@@ -120,15 +120,7 @@ func TestFlatLexIDs(t *testing.T) {
 // of the first two letters and a slip to a neighbouring key cost the same
 // wherever they are.
 func TestLeadCost(t *testing.T) {
-	kb, err := LayoutQWERTY.Keyboard()
-	if err != nil {
-		t.Fatal(err)
-	}
-	em, err := BuiltinErrorModel()
-	if err != nil {
-		t.Fatal(err)
-	}
-	ch := newChannel(kb, em)
+	ch := qwertyChannel(t)
 	// k and l are neighbours on QWERTY, z and p far apart: the slip
 	// explains k for l best, and z for p worse than a spelling error.
 	if ch.slipSub['k']['l'] > ch.sub['k']['l'] || ch.slipSub['z']['p'] < ch.sub['z']['p']+leadCost {

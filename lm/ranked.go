@@ -141,6 +141,12 @@ func (m *Model) lowerIn(nd *node, lo, hi int, w uint32) int {
 	}
 	// The first suffix successor ≥ w, as a rank; ranks ascend with words.
 	r := uint64(m.lv[nd.lvl-1].lowerBound(nd.slo, nd.slo+nd.sn, w) - nd.slo)
+	return l.rankLower(nd, lo, hi, r)
+}
+
+// rankLower returns the first record in [lo, hi) of a ranked node whose
+// rank is ≥ r.
+func (l *level) rankLower(nd *node, lo, hi int, r uint64) int {
 	for lo < hi {
 		mid := int(uint(lo+hi) >> 1)
 		if l.rankAt(nd, mid) < r {
@@ -162,15 +168,7 @@ func (m *Model) rankedFind(nd *node, w uint32) (p, s int) {
 	}
 	r := uint64(s - nd.slo)
 	l := &m.lv[nd.lvl]
-	lo, hi := nd.lo, nd.hi
-	for lo < hi {
-		mid := int(uint(lo+hi) >> 1)
-		if l.rankAt(nd, mid) < r {
-			lo = mid + 1
-		} else {
-			hi = mid
-		}
-	}
+	lo := l.rankLower(nd, nd.lo, nd.hi, r)
 	if lo < nd.hi && l.rankAt(nd, lo) == r {
 		return lo, s
 	}
