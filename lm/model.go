@@ -128,24 +128,7 @@ func (m *Model) contexts(ctx []uint32, dst *[MaxOrder]node) []node {
 	out := dst[:0]
 	for s := 0; s < len(ctx); s++ {
 		h := ctx[s:]
-		if h[0] >= uint32(m.vocab) {
-			continue
-		}
-		e := int(h[0])
-		found := true
-		for j := 1; j < len(h); j++ {
-			lo, hi, _, ok := m.children(&m.lv[j-1], e)
-			if !ok {
-				found = false
-				break
-			}
-			p := m.lv[j].search(lo, hi, h[j])
-			if p < 0 {
-				found = false
-				break
-			}
-			e = p
-		}
+		e, found := m.entryOf(h)
 		if !found {
 			continue
 		}
@@ -181,8 +164,8 @@ func (m *Model) score(nodes []node, w uint32) float64 {
 	for i := 0; i < len(nodes); i++ {
 		nd := &nodes[i]
 		if !nd.ranked {
-			if p := m.findIn(nd, w); p >= 0 {
-				return acc + m.probAt(nd, p)
+			if p := m.lv[nd.lvl].search(nd.lo, nd.hi, w); p >= 0 {
+				return acc + m.lv[nd.lvl].prob(p)
 			}
 			acc += nd.bow
 			continue

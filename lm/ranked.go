@@ -175,19 +175,6 @@ func (m *Model) rankedFind(nd *node, w uint32) (p, s int) {
 	return -1, s
 }
 
-// findIn returns the position of word w in a node's group, or -1.
-func (m *Model) findIn(nd *node, w uint32) int {
-	if nd.ranked {
-		p, _ := m.rankedFind(nd, w)
-		return p
-	}
-	p := m.lowerIn(nd, nd.lo, nd.hi, w)
-	if p < nd.hi && m.wordAt(nd, p) == uint64(w) {
-		return p
-	}
-	return -1
-}
-
 // entryOf returns the entry of the n-gram h (n = len(h) ≥ 1) at its level.
 func (m *Model) entryOf(h []uint32) (int, bool) {
 	if len(h) == 0 || len(h) > m.order || h[0] >= uint32(m.vocab) {
