@@ -1,8 +1,9 @@
 package lm
 
 import (
-	"bytes"
 	"context"
+	"encoding/binary"
+	"flag"
 	"fmt"
 	"path/filepath"
 	"runtime"
@@ -116,24 +117,85 @@ func BenchmarkTopK(b *testing.B) {
 	}
 }
 
-// BenchmarkLayout reports the size of the n-gram section per stored n-gram.
+// layoutText is a text file for BenchmarkLayout's large case: running
+// text (one sentence or paragraph per line, tokenized as the build tool
+// does), such as the ~10 M-token dictionary and documentation text of
+// BENCHMARKS.md, which is not shipped (its licence). Without it only the
+// Opticks model is measured.
+var layoutText = flag.String("layout-text", "", "text file for BenchmarkLayout's order-3 model of real text (optional)")
+
+// BenchmarkLayout reports the size of the n-gram section per stored n-gram,
+// in all and for each kind of array (codebooks, words, probabilities, ...):
+// on the Opticks order-3 model at 8 bits and lossless, and, with
+// -layout-text, on an order-3 model of that text at 8 bits.
 func BenchmarkLayout(b *testing.B) {
 	x := benchModel(b, 0)
 	for _, q := range []int{8, 0} {
-		b.Run(fmt.Sprintf("qbits=%d", q), func(b *testing.B) {
-			var sec []byte
-			for b.Loop() {
-				var err error
-				if sec, err = AppendSection(sec[:0], x.b, LayoutOptions{QuantBits: q}); err != nil {
-					b.Fatal(err)
-				}
-			}
-			total := 0
-			for _, n := range x.b.NGrams() {
-				total += n
-			}
-			b.ReportMetric(float64(len(sec))/float64(total), "bytes/ngram")
-			_ = bytes.MinRead
-		})
+		b.Run(fmt.Sprintf("opticks/qbits=%d", q), func(b *testing.B) { benchLayout(b, x.b, q) })
 	}
+	if *layoutText == "" {
+		return
+	}
+	text := readFile(b, *layoutText)
+	c, err := NewCounter(3)
+	if err != nil {
+		b.Fatal(err)
+	}
+	if err := c.AddText(context.Background(), strings.NewReader(text), ScanOptions{}, nil); err != nil {
+		b.Fatal(err)
+	}
+	m, err := Estimate(context.Background(), c, EstimateOptions{})
+	if err != nil {
+		b.Fatal(err)
+	}
+	b.Run("text/qbits=8", func(b *testing.B) { benchLayout(b, m, 8) })
+}
+
+// benchLayout lays m out at q bits and reports bytes per n-gram, in all
+// and per array kind.
+func benchLayout(b *testing.B, m *Backoff, q int) {
+	b.Helper()
+	var sec []byte
+	for b.Loop() {
+		var err error
+		if sec, err = AppendSection(sec[:0], m, LayoutOptions{QuantBits: q}); err != nil {
+			b.Fatal(err)
+		}
+	}
+	total := 0
+	for _, n := range m.NGrams() {
+		total += n
+	}
+	b.ReportMetric(float64(len(sec))/float64(total), "bytes/ngram")
+	for kind, bytes := range arrayBytes(b, sec) {
+		b.ReportMetric(float64(bytes)/float64(total), kind+"-bytes/ngram")
+	}
+}
+
+// arrayBytes returns the bytes of a section's arrays by kind, read from
+// its directory (FORMAT.md): the tree levels together as "tree".
+func arrayBytes(b *testing.B, sec []byte) map[string]int {
+	b.Helper()
+	names := map[uint32]string{
+		tagProbBook: "codebook", tagBowBook: "codebook", tagWords: "words", tagProbs: "probs",
+		tagHas: "context-bits", tagHasRank: "context-bits", tagStart: "starts", tagStartLow: "starts",
+		tagStartHigh: "starts", tagStartSel: "starts", tagBow: "bows", tagBig: "top-lists",
+		tagBigRank: "top-lists", tagTop: "top-lists", tagRecords: "records", tagRecCount: "records",
+	}
+	le := binary.LittleEndian
+	out := map[string]int{}
+	nd := int(le.Uint32(sec[32:]))
+	for i := range nd {
+		d := sec[headerSize+i*dirEntrySize:]
+		kind := le.Uint32(d) >> 8
+		name, ok := names[kind]
+		if !ok && kind >= tagTree && kind < tagRecords {
+			name, ok = "tree", true
+		}
+		if !ok {
+			b.Fatalf("array kind %d has no name", kind)
+		}
+		out[name] += 8 * int(le.Uint64(d[24:]))
+	}
+	return out
 }

@@ -48,12 +48,13 @@ func BenchmarkID(b *testing.B) {
 	})
 }
 
-// BenchmarkAppendWord measures id → word over random-looking ids, for the
-// block size the writer uses and for others (the trade of table size
-// against decoding time).
+// BenchmarkAppendWord measures id → word over random-looking ids: block=0
+// is the version-2 layout the writer uses (no word table, a walk down the
+// FST), the others version-1 word tables of several block sizes (the trade
+// of table size against decoding time).
 func BenchmarkAppendWord(b *testing.B) {
 	c := loadCorpus(b, subtlexPath)
-	for _, bs := range []int{4, 8, blockSize, 32} {
+	for _, bs := range []int{0, 4, 8, blockSize, 32} {
 		sec, err := appendSection(nil, c.entries, bs)
 		if err != nil {
 			b.Fatal(err)

@@ -46,10 +46,11 @@ const (
 // the offending entry, and then dst is returned unchanged. It costs
 // O(total bytes of the entries) time.
 func AppendSection(dst []byte, entries []Entry) ([]byte, error) {
-	return appendSection(dst, entries, blockSize)
+	return appendSection(dst, entries, 0)
 }
 
-// appendSection is AppendSection with a given number of words per block.
+// appendSection is AppendSection with a given number of words per block of
+// the word table: 0 writes version 2 (no table), 1..maxBlockSize version 1.
 func appendSection(dst []byte, entries []Entry, bs int) ([]byte, error) {
 	if err := checkEntries(entries); err != nil {
 		return dst, err
@@ -62,6 +63,10 @@ func appendSection(dst []byte, entries []Entry, bs int) ([]byte, error) {
 	base := len(dst)
 	out := append(dst, make([]byte, headerSize)...)
 	var h header
+	h.version = SectionVersion
+	if bs > 0 {
+		h.version = tableVersion
+	}
 	h.count = uint32(len(entries))
 	h.blockSize = uint32(bs)
 	for _, e := range entries {
@@ -75,7 +80,9 @@ func appendSection(dst []byte, entries []Entry, bs int) ([]byte, error) {
 
 	var words []byte
 	var offs []uint32
-	words, offs = appendWords(nil, entries, bs)
+	if bs > 0 {
+		words, offs = appendWords(nil, entries, bs)
+	}
 	h.blocksOff = uint32(len(out) - base)
 	for _, o := range offs {
 		out = binary.LittleEndian.AppendUint32(out, o)

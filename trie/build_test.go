@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"encoding/binary"
 	"errors"
+	"fmt"
 	"strings"
 	"testing"
 
@@ -104,7 +105,27 @@ func TestDeterministic(t *testing.T) {
 // example); the FST bytes are compared with what vellum's builder, the
 // reference for that part, writes for the same keys and values.
 func TestSmallSectionLayout(t *testing.T) {
-	sec, _ := buildEntries(t, smallEntries)
+	for _, v := range []struct {
+		version uint16
+		bs      int
+	}{{tableVersion, blockSize}, {SectionVersion, 0}} {
+		t.Run(fmt.Sprintf("version=%d", v.version), func(t *testing.T) {
+			sec, err := appendSection(nil, smallEntries, v.bs)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if _, err := LoadSection(sec); err != nil {
+				t.Fatal(err)
+			}
+			checkSmallLayout(t, sec, v.version, v.bs)
+		})
+	}
+}
+
+// checkSmallLayout compares sec, the section of smallEntries, with the bytes
+// FORMAT.md works out by hand for the given version and block size.
+func checkSmallLayout(t *testing.T, sec []byte, version uint16, bs int) {
+	t.Helper()
 
 	var fb bytes.Buffer
 	vb, err := vellum.New(&fb, &vellum.BuilderOpts{Encoder: 1, RegistryTableSize: min(fstRegistryRows, 2*len(smallEntries)+64), RegistryMRUSize: fstRegistryCells})
@@ -131,6 +152,9 @@ func TestSmallSectionLayout(t *testing.T) {
 		0x11, 't', // shares 1, 1 new: "it"
 		0x04, 'n', 'a', 's', 'a', // shares 0, 4 new: "nasa"
 	}
+	if bs == 0 { // version 2: no word table
+		blocks, words = nil, nil
+	}
 	casing := []byte{0x8d} // codes 1 (I), 3 (iPhone), 0 (it), 2 (NASA): 1 | 3<<2 | 0<<4 | 2<<6
 	excIDs := []byte{1, 0, 0, 0}
 	excEnds := []byte{6, 0, 0, 0}
@@ -147,7 +171,7 @@ func TestSmallSectionLayout(t *testing.T) {
 	want := make([]byte, total)
 	le := binary.LittleEndian
 	copy(want, "KLXw")
-	le.PutUint16(want[4:], 1) // version
+	le.PutUint16(want[4:], version)
 	le.PutUint16(want[6:], 0) // flags
 	for _, f := range []struct{ at, v int }{
 		{8, total}, {12, len(smallEntries)}, {20, 64}, {24, F}, {28, blocksOff},
@@ -156,8 +180,8 @@ func TestSmallSectionLayout(t *testing.T) {
 	} {
 		le.PutUint32(want[f.at:], uint32(f.v))
 	}
-	le.PutUint16(want[16:], 16) // block size
-	le.PutUint16(want[18:], 6)  // longest word, "iphone"
+	le.PutUint16(want[16:], uint16(bs)) // block size
+	le.PutUint16(want[18:], 6)          // longest word, "iphone"
 	copy(want[64:], fst)
 	copy(want[blocksOff:], blocks)
 	copy(want[wordsOff:], words)

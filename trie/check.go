@@ -1,8 +1,9 @@
 package trie
 
 // Check enumerates every word of the FST in order and compares it, and the
-// id its path gives, with the word table: the i-th word of the FST must be
-// word i of the table and its outputs must sum to i, and the outputs along
+// id its path gives, with AppendWord (the word table of a version-1
+// section, the reverse walk of the FST in version 2): the i-th word of the
+// FST must be what AppendWord gives for i and its outputs must sum to i, and the outputs along
 // every prefix must sum to the first id below it (which PrefixRange uses). LoadSection does not do
 // this (it costs a walk over every word, not every state); a model checker
 // or a test can. It returns nil or an error wrapping [ErrCorrupt]. It costs

@@ -1,6 +1,8 @@
 // Package trie holds the word lexicon of a model: a vellum FST that maps
-// each folded (lower-cased) word to an id, a front-coded table that maps
-// ids back to words, and the usual display casing of each word.
+// each folded (lower-cased) word to an id and, walked the other way, each
+// id back to its word, and the usual display casing of each word. (Sections
+// of layout version 1 also keep a front-coded table from ids to words; they
+// are still read.)
 //
 // Ids are ranks in byte order: the id of a word is the number of words that
 // sort before it (as sort.Strings orders them). All words that start with
@@ -40,7 +42,8 @@
 // once and lets vellum replay the walk, so damaged or hostile bytes give an
 // error wrapping [ErrCorrupt] (or [ErrVersion]) and never a panic, and no
 // later query can index out of range. [Lexicon.Check] goes further and
-// compares every FST word with the table.
+// enumerates every FST word, comparing it with the word that
+// [Lexicon.AppendWord] gives for its id (in version 1, the table's).
 //
 // # Concurrency
 //

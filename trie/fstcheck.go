@@ -49,10 +49,11 @@ func (st fstStates) count() int {
 // final state has final output 0, any other state's first transition has
 // output 0: true of every FST whose values are the ranks of its keys),
 // that every state leads to at least one word, that the FST holds exactly n
-// words and that no path sums to an output of n or more. Every transition
+// words, that no path sums to an output of n or more and that the longest
+// path is maxLen bytes long (the longest word). Every transition
 // points to a lower address, so the walk always ends. base is the offset of
 // the FST within the section, for error reports.
-func checkFST(d []byte, codes *[64]byte, n uint32, base int) (fstStates, error) {
+func checkFST(d []byte, codes *[64]byte, n uint32, maxLen int, base int) (fstStates, error) {
 	root, err := fstRoot(d)
 	if err != nil {
 		return fstStates{}, corrupt("fst", base, "%v", err)
@@ -112,20 +113,23 @@ func checkFST(d []byte, codes *[64]byte, n uint32, base int) (fstStates, error) 
 	}
 	count := make([]uint32, total)  // words below, saturating at math.MaxUint32
 	maxOut := make([]uint64, total) // largest output sum below, saturating
+	height := make([]uint16, total) // longest path below, saturating at MaxWordLen+1
 	for addr := range st.all() {
 		s, _ := decodeState(d, codes, addr) // checked above
 		var cnt uint64
 		var mx uint64
+		var ht uint16
 		if s.final {
 			cnt, mx = 1, s.finalOut
 		}
 		for i := 0; i < s.n; i++ {
 			_, next, out, _ := s.transition(d, i)
-			nc, nm := uint64(1), uint64(0) // the empty final state
+			nc, nm, nh := uint64(1), uint64(0), uint16(0) // the empty final state
 			if next != emptyState {
 				r := rank(next)
-				nc, nm = uint64(count[r]), maxOut[r]
+				nc, nm, nh = uint64(count[r]), maxOut[r], height[r]
 			}
+			ht = max(ht, min(nh+1, MaxWordLen+1))
 			cnt = min(cnt+nc, math.MaxUint32)
 			sum := out + nm
 			if sum < out {
@@ -137,12 +141,15 @@ func checkFST(d []byte, codes *[64]byte, n uint32, base int) (fstStates, error) 
 			return st, corrupt("fst", base+addr, "state leads to no word")
 		}
 		r := rank(addr)
-		count[r], maxOut[r] = uint32(cnt), mx
+		count[r], maxOut[r], height[r] = uint32(cnt), mx, ht
 	}
-	rootCount, rootMax := uint64(1), uint64(0)
+	rootCount, rootMax, rootHeight := uint64(1), uint64(0), 0
 	if root != emptyState {
 		r := rank(root)
-		rootCount, rootMax = uint64(count[r]), maxOut[r]
+		rootCount, rootMax, rootHeight = uint64(count[r]), maxOut[r], int(height[r])
+	}
+	if rootHeight != maxLen {
+		return st, corrupt("fst", base+root, "longest fst word is %d bytes, header says %d", rootHeight, maxLen)
 	}
 	if rootCount != uint64(n) {
 		return st, corrupt("fst", base+root, "fst accepts %d words, table has %d", rootCount, n)

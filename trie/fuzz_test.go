@@ -9,21 +9,23 @@ import (
 
 // FuzzLoadSection feeds arbitrary bytes to LoadSection, seeded from real
 // sections (the worked example, 40 and 200 SUBTLEX-US words, the empty
-// lexicon) and damaged copies of them. Properties: no panic; an error is
+// lexicon; version 2 and version 1) and damaged copies of them. Properties: no panic; an error is
 // ErrCorrupt or ErrVersion; a section that loads answers every query
 // without panicking; if Check also passes, the words and surfaces read back
 // build a section that loads and reads back the same (read → write → read).
 func FuzzLoadSection(f *testing.F) {
 	for _, entries := range [][]Entry{smallEntries, midEntries(f)[:40], midEntries(f), nil} {
-		sec, err := AppendSection(nil, entries)
-		if err != nil {
-			f.Fatal(err)
+		for _, bs := range []int{0, blockSize} {
+			sec, err := appendSection(nil, entries, bs)
+			if err != nil {
+				f.Fatal(err)
+			}
+			f.Add(sec)
+			f.Add(sec[:len(sec)/2])
+			flipped := append([]byte(nil), sec...)
+			flipped[headerSize+20] ^= 0x40
+			f.Add(flipped)
 		}
-		f.Add(sec)
-		f.Add(sec[:len(sec)/2])
-		flipped := append([]byte(nil), sec...)
-		flipped[headerSize+20] ^= 0x40
-		f.Add(flipped)
 	}
 	f.Fuzz(func(t *testing.T, b []byte) {
 		lex, err := LoadSection(b)

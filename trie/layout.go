@@ -8,9 +8,14 @@ import "encoding/binary"
 // SectionMagic is the 4 bytes every lexicon section starts with.
 const SectionMagic = "KLXw"
 
-// SectionVersion is the layout version this package writes and the only one
-// it reads. A section with any other version is refused with [ErrVersion].
-const SectionVersion uint16 = 1
+// SectionVersion is the layout version this package writes. Version 2 keeps
+// no word table: a word is rebuilt from its id by walking the FST (see
+// [Lexicon.AppendWord]). Versions 1 and 2 are read; a section with any other
+// version is refused with [ErrVersion].
+const SectionVersion uint16 = 2
+
+// tableVersion is the layout version that keeps the front-coded word table.
+const tableVersion uint16 = 1
 
 // MaxWordLen is the longest Word, in bytes, a lexicon can hold. Word lengths
 // are stored in one byte in the word table, so AppendWord never needs more
@@ -26,9 +31,10 @@ const MaxWords = 1<<31 - 1
 // headerSize is the size in bytes of the fixed section header.
 const headerSize = 64
 
-// blockSize is the number of words per front-coded block of the word table.
-// The loader accepts any value from 1 to maxBlockSize recorded in the header;
-// the builder always writes blockSize.
+// blockSize is the number of words per front-coded block of the word table
+// of a version-1 section. The loader accepts any value from 1 to
+// maxBlockSize recorded in a version-1 header and requires 0 (no table) in
+// a version-2 one; AppendSection writes version 2.
 const blockSize = 16
 
 // maxBlockSize is the largest block size the loader accepts.
@@ -47,7 +53,7 @@ const (
 	hFlags      = 6  // uint16, no flags are defined in version 1; must be 0
 	hTotalLen   = 8  // length of the whole section, a multiple of partAlign
 	hCount      = 12 // number of words n
-	hBlockSize  = 16 // uint16, words per front-coded block (1..maxBlockSize)
+	hBlockSize  = 16 // uint16, words per front-coded block (1..maxBlockSize); 0 in version 2
 	hMaxWordLen = 18 // uint16, length in bytes of the longest word
 	hFSTOff     = 20 // offset of the vellum FST
 	hFSTLen     = 24 // length of the vellum FST
@@ -73,6 +79,7 @@ const (
 
 // header is the decoded fixed header of a section.
 type header struct {
+	version    uint16
 	totalLen   uint32
 	count      uint32
 	blockSize  uint32
@@ -94,7 +101,7 @@ type header struct {
 func (h *header) put(b []byte) {
 	le := binary.LittleEndian
 	copy(b[hMagic:], SectionMagic)
-	le.PutUint16(b[hVersion:], SectionVersion)
+	le.PutUint16(b[hVersion:], h.version)
 	le.PutUint16(b[hFlags:], 0)
 	le.PutUint32(b[hTotalLen:], h.totalLen)
 	le.PutUint32(b[hCount:], h.count)
@@ -117,6 +124,7 @@ func (h *header) put(b []byte) {
 // It does not check magic or version.
 func (h *header) get(b []byte) {
 	le := binary.LittleEndian
+	h.version = le.Uint16(b[hVersion:])
 	h.totalLen = le.Uint32(b[hTotalLen:])
 	h.count = le.Uint32(b[hCount:])
 	h.blockSize = uint32(le.Uint16(b[hBlockSize:]))
@@ -137,6 +145,16 @@ func (h *header) get(b []byte) {
 // numBlocks returns the number of front-coded blocks for n words.
 func numBlocks(n, size uint32) uint32 {
 	return uint32((uint64(n) + uint64(size) - 1) / uint64(size))
+}
+
+// blockPartLen returns the length in bytes of the block offsets for n words
+// in blocks of size words: ceil(n/size)+1 uint32 values, and none when size
+// is 0 (a version-2 section, which has no word table).
+func blockPartLen(n, size uint32) uint64 {
+	if size == 0 {
+		return 0
+	}
+	return 4 * (uint64(numBlocks(n, size)) + 1)
 }
 
 // padTo appends zero bytes to b until len(b)-base is a multiple of
@@ -160,7 +178,7 @@ type layout struct {
 }
 
 // layoutFor returns the placement of the parts of a section of n words in
-// blocks of bs words, an FST of fstLen bytes, wordsLen bytes of front-coded
+// blocks of bs words (0: no word table), an FST of fstLen bytes, wordsLen bytes of front-coded
 // words and e exceptions with excDataLen bytes of surfaces.
 func layoutFor(n, bs uint32, fstLen, wordsLen, e, excDataLen uint64) layout {
 	al := func(x uint64) uint64 { return (x + partAlign - 1) &^ (partAlign - 1) }
@@ -168,7 +186,7 @@ func layoutFor(n, bs uint32, fstLen, wordsLen, e, excDataLen uint64) layout {
 	l.fstOff = headerSize
 	l.fstEnd = l.fstOff + fstLen
 	l.blocksOff = al(l.fstEnd)
-	l.wordsOff = l.blocksOff + 4*(uint64(numBlocks(n, bs))+1)
+	l.wordsOff = l.blocksOff + blockPartLen(n, bs)
 	l.wordsEnd = l.wordsOff + wordsLen
 	l.caseOff = al(l.wordsEnd)
 	l.caseEnd = l.caseOff + (uint64(n)+3)/4

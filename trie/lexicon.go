@@ -58,9 +58,16 @@ func (l *Lexicon) ID(word string) (uint32, bool) {
 
 // AppendWord appends the folded word with the given id to dst and returns
 // the extended slice; it returns dst unchanged when id is not below Len.
-// It decodes at most one front-coded block (O(block size)), and does not
-// allocate when cap(dst)-len(dst) >= MaxWordLen.
+// In a version-2 section it walks the FST from the root, at each state
+// following the last transition whose output sum does not pass id
+// (O(len(word)) state decodings, each with a binary search over the
+// state's transitions); in a version-1 section it decodes one front-coded
+// block (O(block size)). It does not allocate when cap(dst)-len(dst) >=
+// MaxWordLen.
 func (l *Lexicon) AppendWord(dst []byte, id uint32) []byte {
+	if l.words.bs == 0 {
+		return l.fstWord(dst, id)
+	}
 	return l.words.appendWord(dst, id)
 }
 
@@ -182,7 +189,7 @@ func (l *Lexicon) FST() *vellum.FST {
 		return l.vfst
 	}
 	l.lazy.once.Do(func() {
-		states, err := checkFST(l.fst, &l.codes, l.n, l.lazy.base)
+		states, err := checkFST(l.fst, &l.codes, l.n, l.maxWordLen, l.lazy.base)
 		if err != nil {
 			return
 		}
@@ -192,7 +199,7 @@ func (l *Lexicon) FST() *vellum.FST {
 }
 
 // SizeBreakdown returns the bytes taken by the FST, by the front-coded word
-// table (block offsets and words) and by the casing codes and exceptions.
+// table (block offsets and words; 0 in a version-2 section) and by the casing codes and exceptions.
 // The section also holds a 64-byte header and up to 7 bytes of alignment
 // padding after each part, counted in none of them.
 func (l *Lexicon) SizeBreakdown() (fstBytes, tableBytes, casingBytes int) {

@@ -8,30 +8,47 @@ import (
 	"testing"
 )
 
-// TestRoundTripSubtlex checks every SUBTLEX-US word: its id is its position
-// in the list sorted by Go's sort.Strings (found with sort.SearchStrings,
-// the reference for byte order), and AppendWord and Word give the word back.
+// TestRoundTripSubtlex checks every SUBTLEX-US word, in the layout the
+// writer uses (version 2, words rebuilt from the FST) and in version 1
+// (front-coded word table): its id is its position in the list sorted by
+// Go's sort.Strings (found with sort.SearchStrings, the reference for byte
+// order), and AppendWord and Word give the word back.
 func TestRoundTripSubtlex(t *testing.T) {
 	c := loadCorpus(t, subtlexPath)
-	if c.lex.Len() != len(c.words) {
-		t.Fatalf("Len() = %d, want %d", c.lex.Len(), len(c.words))
+	v1, err := appendSection(nil, c.entries, blockSize)
+	if err != nil {
+		t.Fatal(err)
 	}
-	buf := make([]byte, 0, MaxWordLen)
-	for _, w := range c.words {
-		id, ok := c.lex.ID(w)
-		want := sort.SearchStrings(c.words, w) // Go stdlib: position in byte order
-		if !ok || int(id) != want {
-			t.Fatalf("ID(%q) = %d, %v, want %d, true", w, id, ok, want)
-		}
-		if got := c.lex.AppendWord(buf[:0], id); string(got) != w {
-			t.Fatalf("AppendWord(%d) = %q, want %q", id, got, w)
-		}
-		if got := c.lex.Word(id); got != w {
-			t.Fatalf("Word(%d) = %q, want %q", id, got, w)
-		}
-	}
-	if err := c.lex.Check(); err != nil {
-		t.Fatalf("Check() = %v", err)
+	for _, tc := range []struct {
+		name string
+		sec  []byte
+	}{{"version=2", c.section}, {"version=1", v1}} {
+		t.Run(tc.name, func(t *testing.T) {
+			lex, err := LoadSection(tc.sec)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if lex.Len() != len(c.words) {
+				t.Fatalf("Len() = %d, want %d", lex.Len(), len(c.words))
+			}
+			buf := make([]byte, 0, MaxWordLen)
+			for _, w := range c.words {
+				id, ok := lex.ID(w)
+				want := sort.SearchStrings(c.words, w) // Go stdlib: position in byte order
+				if !ok || int(id) != want {
+					t.Fatalf("ID(%q) = %d, %v, want %d, true", w, id, ok, want)
+				}
+				if got := lex.AppendWord(buf[:0], id); string(got) != w {
+					t.Fatalf("AppendWord(%d) = %q, want %q", id, got, w)
+				}
+				if got := lex.Word(id); got != w {
+					t.Fatalf("Word(%d) = %q, want %q", id, got, w)
+				}
+			}
+			if err := lex.Check(); err != nil {
+				t.Fatalf("Check() = %v", err)
+			}
+		})
 	}
 }
 

@@ -13,16 +13,18 @@ import (
 //
 // LoadSection checks, in this order: the header (magic, then version, then
 // that every recorded offset and length matches the layout of FORMAT.md and
-// len(b)), the zero padding, the word table (every word decodes within its
-// block, is valid UTF-8 and sorts strictly after the one before it), the
+// len(b)), the zero padding, the word table of a version-1 section (every
+// word decodes within its block, is valid UTF-8 and sorts strictly after
+// the one before it), the
 // casing codes and exception table, and the FST: one walk over every state
 // reachable from the root, checking that each lies in bounds, that the FST
-// accepts exactly as many words as the table holds, that no path can give
+// accepts exactly as many words as the header records, that its longest
+// path is the recorded longest word, that no path can give
 // an id outside [0, Len()) and that outputs are placed as ranks need. Then
 // vellum itself walks the same states once, inside the project's single
 // recover, and must read each one as this package does, so the *vellum.FST
-// returned by [Lexicon.FST] is known not to panic. It does not compare
-// every FST word with the table; [Lexicon.Check] does.
+// returned by [Lexicon.FST] is known not to panic. It does not enumerate
+// every FST word; [Lexicon.Check] does.
 //
 // Errors wrap [ErrVersion] for a section of another layout version and
 // [ErrCorrupt] (as a [*FormatError]) for anything else; bad bytes never
@@ -82,13 +84,15 @@ func LoadSectionWith(b []byte, opts LoadOptions) (*Lexicon, error) {
 		l.lazy = &lazyFST{base: int(h.fstOff)}
 		return l, nil
 	}
-	if err := l.words.validate(l.maxWordLen, int(h.blocksOff), int(h.wordsOff)); err != nil {
-		return nil, err
+	if h.blockSize > 0 {
+		if err := l.words.validate(l.maxWordLen, int(h.blocksOff), int(h.wordsOff)); err != nil {
+			return nil, err
+		}
 	}
 	if err := l.casing.validate(h.count, int(h.caseOff), int(h.excIDOff), int(h.excEndOff), int(h.excDataOff)); err != nil {
 		return nil, err
 	}
-	states, err := checkFST(l.fst, &l.codes, h.count, int(h.fstOff))
+	states, err := checkFST(l.fst, &l.codes, h.count, l.maxWordLen, int(h.fstOff))
 	if err != nil {
 		return nil, err
 	}
@@ -108,8 +112,8 @@ func parseHeader(b []byte) (header, error) {
 	if string(b[hMagic:hMagic+4]) != SectionMagic {
 		return h, corrupt("header", hMagic, "magic %q, want %q", b[hMagic:hMagic+4], SectionMagic)
 	}
-	if v := uint16(b[hVersion]) | uint16(b[hVersion+1])<<8; v != SectionVersion {
-		return h, fmt.Errorf("%w: section version %d, this package reads %d", ErrVersion, v, SectionVersion)
+	if v := uint16(b[hVersion]) | uint16(b[hVersion+1])<<8; v != SectionVersion && v != tableVersion {
+		return h, fmt.Errorf("%w: section version %d, this package reads %d and %d", ErrVersion, v, tableVersion, SectionVersion)
 	}
 	if f := uint16(b[hFlags]) | uint16(b[hFlags+1])<<8; f != 0 {
 		return h, fmt.Errorf("%w: unknown section flags %#x", ErrVersion, f)
@@ -121,8 +125,13 @@ func parseHeader(b []byte) (header, error) {
 	if h.count > MaxWords {
 		return h, corrupt("header", hCount, "word count %d above the limit %d", h.count, MaxWords)
 	}
-	if h.blockSize < 1 || h.blockSize > maxBlockSize {
+	switch {
+	case h.version == tableVersion && (h.blockSize < 1 || h.blockSize > maxBlockSize):
 		return h, corrupt("header", hBlockSize, "block size %d outside 1..%d", h.blockSize, maxBlockSize)
+	case h.version != tableVersion && h.blockSize != 0:
+		return h, corrupt("header", hBlockSize, "block size %d in a section without a word table", h.blockSize)
+	case h.version != tableVersion && h.wordsLen != 0:
+		return h, corrupt("header", hWordsLen, "%d bytes of words in a section without a word table", h.wordsLen)
 	}
 	if h.maxWordLen > MaxWordLen {
 		return h, corrupt("header", hMaxWordLen, "longest word %d bytes above the limit %d", h.maxWordLen, MaxWordLen)
