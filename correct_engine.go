@@ -2,6 +2,7 @@ package keyloom
 
 import (
 	"strings"
+	"unicode"
 	"unicode/utf8"
 
 	"github.com/keyloom/keyloom/correct"
@@ -31,21 +32,25 @@ func (e *Engine) corrector() (*correct.Corrector, error) {
 	return e.corr, e.corrErr
 }
 
-func (e *Engine) initCorrector() error {
-	scorer := func(ctx []uint32, w uint32) float64 {
-		v := e.user.ov.Load().View()
-		if !v.Empty() {
-			return v.LogProb(ctx, w)
-		}
-		return e.model.LM.LogProb(ctx, w)
+// correctionLogProb is the language-model scorer of the corrector: the
+// base model blended with the user overlay when there is one.
+func (e *Engine) correctionLogProb(ctx []uint32, w uint32) float64 {
+	v := e.user.ov.Load().View()
+	if !v.Empty() {
+		return v.LogProb(ctx, w)
 	}
-	c, err := correct.New(lexEdges{e.model.Lex}, scorer, correct.Options{
+	return e.model.LM.LogProb(ctx, w)
+}
+
+func (e *Engine) initCorrector() error {
+	c, err := correct.New(lexEdges{e.model.Lex}, e.correctionLogProb, correct.Options{
 		Layout:    e.opts.Layout,
 		Keyboard:  e.opts.Keyboard,
 		MaxStates: max(e.opts.CorrectionStates, 0),
 		// Alternatives to a correctly spelled word would be noise: offer
 		// them only when fairly likely (common practice, no source).
 		KnownOfferConfidence: 0.3,
+		UnknownLogProb:       unknownLogProb,
 		ApplyThreshold:       e.opts.AutoApplyConfidence,
 		Known: func(w string) bool {
 			return e.user.ov.Load().View().Known(w)
@@ -106,11 +111,18 @@ func (e *Engine) Correct(beforeCursor string) (*Correction, error) {
 
 // correctField corrects field, typed after head, under the query snapshot q.
 func (e *Engine) correctField(corr *correct.Corrector, q query, head, field string) *Correction {
+	if strings.IndexFunc(field, unicode.IsLetter) < 0 {
+		return nil // a number or a symbol: no lexicon says which one was meant
+	}
 	c := parseCursor(head, e.model.LM.Order()-1)
 	var ib [lm.MaxOrder + 1]uint32
 	ctx := q.contextIDs(c.words, ib[:0])
 	var buf [4]correct.Candidate
 	cands, dec := corr.Correct(field, ctx, 3, buf[:0])
+	cands, dec = sameDigits(field, cands, dec)
+	if !dec.Apply && len(cands) > 0 && len(c.words) > 0 && cands[0].Kind == correct.KindWord {
+		dec.Apply = e.contextOverrules(field, ctx, cands[0])
+	}
 	var best *Correction
 	if len(cands) > 0 {
 		best = &Correction{Typed: field, Replacement: cands[0].Word, Confidence: dec.Confidence, Apply: dec.Apply}
@@ -144,4 +156,110 @@ func (e *Engine) correctPrefix(q query, before, prefix string) *Correction {
 		return nil
 	}
 	return e.correctField(c, q, head, field)
+}
+
+// unknownLogProb is the log-probability the engine gives a typed word the
+// lexicon does not know, as the "leave it as typed" alternative of a
+// correction: the chance that the intended word is outside the lexicon,
+// about 1.1 % (issue 4: 98.9 % of the development list's corrections are
+// SUBTLEX-US or SCOWL words), times the chance of its spelling under a
+// uniform model of 26 letters and a word end for a five-letter word:
+// ln 0.011 + 6 ln(1/27) ≈ -24.3. The corrector's own default, -21, gives
+// the typed word some 20 times more weight and left more plain slips
+// uncorrected (measured with -18, -21, -24, -27 on the demo typist and
+// the development list; see BENCHMARKS.md).
+const unknownLogProb = -24
+
+// contextMargin is how many nats a correction of a word the lexicon knows
+// must out-score the word as typed, given the words before it, to be
+// applied on space: about one ordinary edit (the corrector's first search
+// pass), that is the alternative with its slip must be some 400 times
+// likelier in context than the typed word typed right. The corrector
+// itself asks for Options.KnownMargin (10 nats) without looking at how the
+// score arose (common practice, no source).
+const contextMargin = 6
+
+// contextOverrules reports whether cand, the best correction of a word the
+// lexicon knows, should replace it on space because of the words before
+// it (real-word errors: "to get a new kob" → "job"). Two conditions: the
+// alternative out-scores the typed word in context by contextMargin, and
+// the context favours it more than the words' prior frequencies do, so
+// that a rare word is never replaced on frequency alone, which is what the
+// false-correction check over the 20,000 most frequent words guards
+// against. Words the user taught are never replaced.
+func (e *Engine) contextOverrules(field string, ctx []uint32, cand correct.Candidate) bool {
+	id, ok := e.lexiconOnly(field)
+	if !ok || len(ctx) == 0 {
+		return false
+	}
+	sc := e.correctionLogProb
+	inContext := cand.Score - sc(ctx, id)                // -cost + ln P(cand|ctx) - ln P(typed|ctx)
+	prior := -cand.Cost + sc(nil, cand.ID) - sc(nil, id) // the same without context
+	return inContext >= contextMargin && inContext > prior
+}
+
+// lexiconOnly returns the lexicon ID of the word in field (its surrounding
+// punctuation left out) when the lexicon knows it and the user has not
+// taught it.
+func (e *Engine) lexiconOnly(field string) (uint32, bool) {
+	core := strings.ToLower(strings.TrimFunc(field, func(r rune) bool { return !unicode.IsLetter(r) && !unicode.IsDigit(r) }))
+	id, ok := e.model.Lex.ID(core)
+	if !ok || e.user.ov.Load().View().Known(core) {
+		return 0, false
+	}
+	return id, true
+}
+
+// sameDigits drops the candidates that would change the digits of typed
+// ("17th" → "11th"): no lexicon tells which number was meant, so a digit
+// slip is never undone, while a digit typed for a letter ("s3cond") or a
+// letter for a digit ("yth" → "6th") may be. When the first candidate
+// goes, so does the decision.
+func sameDigits(typed string, cands []correct.Candidate, dec correct.Decision) ([]correct.Candidate, correct.Decision) {
+	if !hasDigit(typed) {
+		return cands, dec
+	}
+	out := cands[:0]
+	for i, c := range cands {
+		if hasDigit(c.Word) && !equalDigits(c.Word, typed) {
+			if i == 0 {
+				return cands[:0], correct.Decision{}
+			}
+			continue
+		}
+		out = append(out, c)
+	}
+	return out, dec
+}
+
+func isDigit(b byte) bool { return '0' <= b && b <= '9' }
+
+func hasDigit(s string) bool {
+	for i := 0; i < len(s); i++ {
+		if isDigit(s[i]) {
+			return true
+		}
+	}
+	return false
+}
+
+// equalDigits reports whether a and b hold the same digits in the same
+// order.
+func equalDigits(a, b string) bool {
+	i, j := 0, 0
+	for {
+		for i < len(a) && !isDigit(a[i]) {
+			i++
+		}
+		for j < len(b) && !isDigit(b[j]) {
+			j++
+		}
+		if i == len(a) || j == len(b) {
+			return i == len(a) && j == len(b)
+		}
+		if a[i] != b[j] {
+			return false
+		}
+		i, j = i+1, j+1
+	}
 }

@@ -22,8 +22,16 @@ type token struct {
 	pattern           casePattern
 }
 
+// strayLead lists the characters that prose never puts before a word but
+// that sit on keys next to letters: one of them typed alone before a word
+// is taken as a slip for a letter and left in the word for the search
+// (";erson" is "person" with the neighbouring key hit). A bracket counts
+// only when the token holds no other bracket.
+const strayLead = ",;./\\=[]"
+
 // splitToken separates surrounding punctuation from the word and records
-// the casing. Apostrophes and hyphens inside the word stay in it.
+// the casing. Apostrophes and hyphens inside the word stay in it, and so
+// does a single stray leading character (see strayLead).
 func splitToken(s string) token {
 	isWord := func(r rune) bool { return unicode.IsLetter(r) || unicode.IsDigit(r) || unicode.IsMark(r) }
 	start := strings.IndexFunc(s, isWord)
@@ -33,6 +41,9 @@ func splitToken(s string) token {
 	end := strings.LastIndexFunc(s, isWord)
 	_, size := utf8.DecodeRuneInString(s[end:])
 	end += size
+	if start == 1 && strings.IndexByte(strayLead, s[0]) >= 0 && !strings.ContainsAny(s[1:], "[]") {
+		start = 0 // a key next to a letter hit instead of it
+	}
 	tk := token{lead: s[:start], core: s[start:end], trail: s[end:]}
 	letters, upper := 0, 0
 	first := true

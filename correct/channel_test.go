@@ -80,6 +80,11 @@ func TestChannelCosts(t *testing.T) {
 	if got := ch.distance("wrod", "word"); got <= 0 {
 		t.Errorf("distance(wrod, word) = %v", got)
 	}
+	// A digit typed for a letter is an ordinary slip of a neighbouring
+	// key ("3" borders "e" on the number row; layouts/qwerty.txt).
+	if got, other := ch.distance("s3cond", "second"), ch.distance("sdcond", "second"); got >= inf || got < other {
+		t.Errorf("a 3 typed for e costs %v, want finite and no cheaper than a d (%v)", got, other)
+	}
 }
 
 // qwertyChannel is the channel of the QWERTY layout and the built-in error model.

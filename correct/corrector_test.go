@@ -79,6 +79,39 @@ func TestCorrectCasingAndPunctuation(t *testing.T) {
 	}
 }
 
+// TestSplitTokenStrayLead checks which leading characters are taken as a
+// slip for a letter. Expected splits follow English punctuation: prose
+// opens words with quotes and brackets but never with a comma, semicolon,
+// full stop, slash or equals sign (common practice, no source), and on
+// QWERTY those keys border letters (";" beside "l" and "p", "," beside
+// "m", see layouts/qwerty.txt).
+func TestSplitTokenStrayLead(t *testing.T) {
+	tests := []struct{ in, lead, core, trail string }{
+		{";erson", "", ";erson", ""},
+		{",abels", "", ",abels", ""},
+		{"[robably", "", "[robably", ""},
+		{"[sic]", "[", "sic", "]"},
+		{"(recieve)", "(", "recieve", ")"},
+		{"\"Helo!\"", "\"", "Helo", "!\""},
+		{"...and", "...", "and", ""},
+		{"syal,", "", "syal", ","},
+	}
+	for _, tc := range tests {
+		t.Run(tc.in, func(t *testing.T) {
+			tk := splitToken(tc.in)
+			if tk.lead != tc.lead || tk.core != tc.core || tk.trail != tc.trail {
+				t.Errorf("splitToken(%q) = %q %q %q, want %q %q %q", tc.in, tk.lead, tk.core, tk.trail, tc.lead, tc.core, tc.trail)
+			}
+		})
+	}
+	c := tinyCorrector(t, Options{})
+	// "w;rd": the semicolon key borders "o" on QWERTY; a leading one
+	// stands for a letter the same way.
+	if got, _ := c.Correct(";ord", nil, 3, nil); len(got) == 0 || got[0].Word != "word" {
+		t.Errorf("Correct(;ord) = %v, want first word", got)
+	}
+}
+
 func TestCorrectKnownAndRejected(t *testing.T) {
 	c := tinyCorrector(t, Options{
 		Known:    func(w string) bool { return w == "teh" },

@@ -18,8 +18,10 @@
 //   - spelling errors: rules α→β of up to four bytes a side with learned
 //     costs, in the manner of Brill and Moore (2000), trained by
 //     [TrainErrorModel] on corpora/misspellings-dev.tsv and shipped as
-//     errmodel.tsv (regenerate with `go generate`). Rules seen in fewer than
-//     two pairs are dropped and single-letter edits back off to class costs.
+//     errmodel.tsv (regenerate with `go generate`). Every rule is kept, its
+//     count lowered by an absolute discount estimated from the counts of
+//     rules seen once and twice; single-letter edits no rule covers back
+//     off to class costs.
 //     A spelling edit of the first letter (not a swap of the first two)
 //     costs 2.26 nats more: writers rarely get the first letter wrong
 //     (see leadCost in channel.go).
@@ -70,7 +72,10 @@
 // # Casing, punctuation, bad input
 //
 // Leading and trailing punctuation are kept and the casing pattern
-// (lower, Capitalised, ALL CAPS) is applied to the candidate. Input that
+// (lower, Capitalised, ALL CAPS) is applied to the candidate. One
+// character that prose never puts before a word (, ; . / \ = and a lone
+// bracket) typed right before it is taken as a neighbouring key hit for a
+// letter and searched as part of the word (";erson" → "person"). Input that
 // is empty, longer than 48 bytes, invalid UTF-8 or in a non-Latin script
 // gets no candidates. Words are lower-cased with [strings.ToLower], which
 // must match how the lexicon was folded.

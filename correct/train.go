@@ -58,10 +58,14 @@ type TrainOptions struct {
 	// MaxLen bounds each side of a rule in bytes. Default 4.
 	MaxLen int
 	// MinCount is how many different pairs must show a rule before it is
-	// kept; rarer rules are left to the backoff costs. Default 2.
+	// kept; rarer rules are left to the backoff costs. Default 1: every
+	// rule is kept, as Brill and Moore (2000) do, and absolute discounting
+	// makes a rule seen once cost more than its raw frequency.
 	MinCount int
 	// Discount is subtracted from each rule count (absolute discounting).
-	// Default 0.5.
+	// Default: estimated from the rule counts as n1/(n1+2·n2), where n1
+	// and n2 are the numbers of rules seen in one and in two pairs (the
+	// estimate of Ney, Essen and Kneser 1994, from memory).
 	Discount float64
 }
 
@@ -73,11 +77,29 @@ func (o *TrainOptions) defaults() {
 		o.MaxLen = 4
 	}
 	if o.MinCount <= 0 {
-		o.MinCount = 2
+		o.MinCount = 1
 	}
-	if o.Discount <= 0 || o.Discount >= 1 {
-		o.Discount = 0.5
+	if o.Discount < 0 || o.Discount >= 1 || math.IsNaN(o.Discount) {
+		o.Discount = 0
 	}
+}
+
+// discount returns the absolute discount n1/(n1+2·n2) of rule counts, or
+// 0.5 when there are too few rules to tell.
+func discount(ruleCount map[[2]string]int) float64 {
+	var n1, n2 float64
+	for _, c := range ruleCount {
+		switch c {
+		case 1:
+			n1++
+		case 2:
+			n2++
+		}
+	}
+	if n1 == 0 || n2 == 0 {
+		return 0.5
+	}
+	return n1 / (n1 + 2*n2)
 }
 
 // segment is one step of an alignment: intended a typed as b.
@@ -196,6 +218,9 @@ func TrainErrorModel(pairs []Pair, opts TrainOptions) *ErrorModel {
 		Ins:       lp(nIns, nChars*26),
 		InsDouble: lp(nInsDbl, nChars),
 		Trans:     lp(nTrans, nChars),
+	}
+	if opts.Discount == 0 {
+		opts.Discount = discount(ruleCount)
 	}
 	costOf := map[[2]string]float64{}
 	for key, c := range ruleCount {

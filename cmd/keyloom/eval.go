@@ -60,6 +60,7 @@ func runEval(ctx context.Context, e *env, args []string) error {
 	noise := fs.Float64("noise", 0, "type TEST with this per-letter error rate drawn from the key geometry, correction on")
 	layout := fs.String("layout", "qwerty", "keyboard for --noise and correction: qwerty, azerty, qwertz or a layout file")
 	seed := fs.Uint64("seed", 1, "random seed of --noise")
+	heldOut := fs.Bool("held-out", false, "with --noise: measure on a model built as the default one but without the demo files given as TEST (leave-one-file-out)")
 	pos, err := parse(fs, args)
 	if err != nil {
 		return err
@@ -71,7 +72,7 @@ func runEval(ctx context.Context, e *env, args []string) error {
 		return fmt.Errorf("%w: give at least one TEST file (- for standard input)", errUsage)
 	}
 	if *noise != 0 {
-		return evalNoise(ctx, e, *model, *user, *layout, pos, lm.ScanOptions{Pretokenized: *tokenized}, *noise, *seed, *k, *asJSON)
+		return evalNoise(ctx, e, *model, *user, *layout, pos, lm.ScanOptions{Pretokenized: *tokenized}, *noise, *seed, *k, *heldOut, *asJSON)
 	}
 	if *k < 1 || *k > evaluate.MaxK {
 		return fmt.Errorf("%w: --k %d: want 1..%d", errUsage, *k, evaluate.MaxK)

@@ -5,8 +5,10 @@ import (
 	"bytes"
 	"context"
 	"fmt"
+	"io"
 	"os"
 	"strings"
+	"unicode"
 
 	"github.com/keyloom/keyloom"
 	"github.com/keyloom/keyloom/correct"
@@ -109,11 +111,32 @@ func evalCorrect(ctx context.Context, e *env, model, user, layout, path string, 
 }
 
 // evalNoise types the test text with key-geometry noise and correction on.
-func evalNoise(ctx context.Context, e *env, model, user, layout string, pos []string, opts lm.ScanOptions, rate float64, seed uint64, k int, asJSON bool) error {
+// With heldOut the model is the default recipe without the demo files that
+// are tested (see openHeldOut); model must then be empty.
+func evalNoise(ctx context.Context, e *env, model, user, layout string, pos []string, opts lm.ScanOptions, rate float64, seed uint64, k int, heldOut, asJSON bool) error {
 	if rate < 0 || rate >= 1 {
 		return fmt.Errorf("%w: --noise %v: want a per-letter error rate in [0, 1)", errUsage, rate)
 	}
-	eng, err := openForCorrection(ctx, e, model, user, layout)
+	var eng *keyloom.Engine
+	var left []string
+	var err error
+	if heldOut {
+		if model != "" {
+			return fmt.Errorf("%w: --held-out builds its own model: give no --model", errUsage)
+		}
+		o := engineOptions()
+		if err := layoutOption(layout, &o); err != nil {
+			return err
+		}
+		eng, left, err = openHeldOut(ctx, e, pos, o)
+		if err == nil && user != "" {
+			if err = eng.OpenOverlay(user); err != nil {
+				eng.Close()
+			}
+		}
+	} else {
+		eng, err = openForCorrection(ctx, e, model, user, layout)
+	}
 	if err != nil {
 		return err
 	}
@@ -128,24 +151,72 @@ func evalNoise(ctx context.Context, e *env, model, user, layout string, pos []st
 	}
 	sents := splitSentences(text, opts)
 	typist := correct.NewTypist(kb, seed, rate)
-	fix := func(hist []string, typed string) string {
+	lex := eng.Lexicon()
+	fix := func(hist []string, typed string) evaluate.Fix {
+		core := strings.TrimFunc(typed, func(r rune) bool { return !unicode.IsLetter(r) && !unicode.IsDigit(r) })
+		_, known := lex.ID(lm.Fold(core))
+		f := evaluate.Fix{Word: typed, Known: known}
 		c, _ := eng.Correct(strings.Join(hist, " ") + " " + typed)
-		if c != nil && c.Apply && !strings.Contains(c.Typed, " ") {
-			return lm.Fold(c.Replacement)
+		if c == nil || strings.Contains(c.Typed, " ") {
+			return f
 		}
-		return typed
+		f.Offered = append(f.Offered, lm.Fold(c.Replacement))
+		for _, a := range c.Alternatives {
+			f.Offered = append(f.Offered, lm.Fold(a))
+		}
+		if c.Apply {
+			f.Word, f.Applied = f.Offered[0], true
+		}
+		return f
 	}
 	r, err := evaluate.RunNoisy(ctx, eng, fix, sents, typist.Type, k)
 	if err != nil {
 		return err
 	}
 	if asJSON {
-		return writeJSON(e.stdout, map[string]any{"noise_rate": rate, "layout": layout, "noisy": r})
+		out := map[string]any{"noise_rate": rate, "seed": seed, "layout": layout, "noisy": r}
+		if heldOut {
+			out["held_out"] = left
+		}
+		return writeJSON(e.stdout, out)
 	}
-	fmt.Fprintf(e.stdout, "%d words typed with %.1f%% per-letter errors (%s): %d corrupted\n", r.Words, 100*rate, layout, r.Corrupted)
+	if heldOut {
+		fmt.Fprintf(e.stdout, "model: default recipe without %v\n", left)
+	}
+	fmt.Fprintf(e.stdout, "%d words typed with %.1f%% per-letter errors (%s, seed %d): %d corrupted\n", r.Words, 100*rate, layout, seed, r.Corrupted)
 	fmt.Fprintf(e.stdout, "repaired %d (%.2f%% of corrupted), broken %d (%.2f%% of clean words)\n", r.Repaired, 100*r.RepairedShare, r.Broken, 100*r.BrokenShare)
 	fmt.Fprintf(e.stdout, "net keystroke savings: correction on %.2f%%, off %.2f%%\n", 100*r.KSROn, 100*r.KSROff)
+	printMisses(e.stdout, r)
 	return nil
+}
+
+// printMisses prints the breakdown of the corrupted and broken words.
+func printMisses(w io.Writer, r evaluate.NoisyReport) {
+	m := r.Misses
+	pct := func(n, of int64) float64 { return 100 * float64(n) / float64(max(of, 1)) }
+	fmt.Fprintf(w, "\n%-48s %7s %7s\n", "corrupted words", "count", "share")
+	for _, row := range []struct {
+		name string
+		n    int64
+		key  string
+	}{
+		{"repaired: intended word suggested while typing", m.Predicted, ""},
+		{"repaired: right correction applied on space", m.Applied, "applied"},
+		{"missed: another known word typed, left alone", m.RealWord, "real_word"},
+		{"missed: right word not offered", m.NotOffered, "not_offered"},
+		{"missed: right word offered first, not applied", m.FirstNotApplied, "first_not_applied"},
+		{"missed: right word offered, not first", m.RankedLower, "ranked_lower"},
+		{"missed: wrong word applied", m.WrongApplied, "wrong_applied"},
+	} {
+		fmt.Fprintf(w, "%-48s %7d %6.2f%%", row.name, row.n, pct(row.n, r.Corrupted))
+		if ex := m.Examples[row.key]; len(ex) > 0 && row.key != "applied" {
+			fmt.Fprintf(w, "   e.g. %s", strings.Join(ex, " "))
+		}
+		fmt.Fprintln(w)
+	}
+	clean := r.Words - r.Corrupted
+	fmt.Fprintf(w, "%-48s %7d %6.2f%%   e.g. %s\n", "clean known words broken", m.BrokenKnown, pct(m.BrokenKnown, clean), strings.Join(m.Examples["broken_known"], " "))
+	fmt.Fprintf(w, "%-48s %7d %6.2f%%   e.g. %s\n", "clean unknown words broken", m.BrokenUnknown, pct(m.BrokenUnknown, clean), strings.Join(m.Examples["broken_unknown"], " "))
 }
 
 func keyboardFor(layout string) (*correct.Keyboard, error) {

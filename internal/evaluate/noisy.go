@@ -5,11 +5,63 @@ import (
 	"slices"
 )
 
+// Fix is what the corrector did with one finished word.
+type Fix struct {
+	// Word is the word that ends up in the text (folded): the replacement
+	// when one was applied on space, else the typed word.
+	Word string
+	// Applied is true when a replacement was applied on space.
+	Applied bool
+	// Offered holds the corrections offered, best first (folded).
+	Offered []string
+	// Known is true when the engine knows the typed word (lexicon or user).
+	Known bool
+}
+
 // Fixer is the corrector the noisy typist relies on: given the sentence so
-// far (folded words) and a finished word as typed, it returns the word that
-// ends up in the text (folded) — the replacement when the engine applies one
-// on space, else typed.
-type Fixer func(history []string, typed string) string
+// far (folded words) and a finished word as typed, it says what the engine
+// did with the word.
+type Fixer func(history []string, typed string) Fix
+
+// Misses breaks the words typed with errors down by what became of them,
+// and the clean words broken by why. Each corrupted word is counted in
+// exactly one of the first seven fields, in the order given.
+type Misses struct {
+	// Predicted: the intended word was among the suggestions while typing.
+	Predicted int64 `json:"predicted"`
+	// Applied: the right correction was applied on space.
+	Applied int64 `json:"applied"`
+	// WrongApplied: another word was applied on space.
+	WrongApplied int64 `json:"wrong_applied"`
+	// RealWord: the noise made another word the engine knows, left alone.
+	RealWord int64 `json:"real_word"`
+	// NotOffered: an unknown word whose right correction was not offered.
+	NotOffered int64 `json:"not_offered"`
+	// FirstNotApplied: the right word was the first correction offered but
+	// the engine was not confident enough to apply it.
+	FirstNotApplied int64 `json:"first_not_applied"`
+	// RankedLower: the right word was offered, but not first.
+	RankedLower int64 `json:"ranked_lower"`
+	// BrokenKnown: clean words the engine knows that a correction replaced.
+	BrokenKnown int64 `json:"broken_known"`
+	// BrokenUnknown: clean words the engine does not know (names, rare
+	// words) that a correction replaced.
+	BrokenUnknown int64 `json:"broken_unknown"`
+	// Examples holds up to five "intended/typed→final" examples per class
+	// (the field names above in their JSON spelling), for reading.
+	Examples map[string][]string `json:"examples,omitempty"`
+}
+
+// note adds one to *n, the class named key, and keeps an example.
+func (m *Misses) note(n *int64, key, intended, typed, final string) {
+	*n++
+	if m.Examples == nil {
+		m.Examples = map[string][]string{}
+	}
+	if len(m.Examples[key]) < 5 {
+		m.Examples[key] = append(m.Examples[key], intended+"/"+typed+"→"+final)
+	}
+}
 
 // NoisyReport holds the results of typing with errors.
 type NoisyReport struct {
@@ -27,7 +79,9 @@ type NoisyReport struct {
 	// RepairedShare = Repaired/Corrupted; BrokenShare = Broken/(Words−Corrupted).
 	RepairedShare float64 `json:"repaired_share"`
 	BrokenShare   float64 `json:"broken_share"`
-	Partial       bool    `json:"partial,omitempty"`
+	// Misses breaks the outcomes down.
+	Misses  Misses `json:"misses"`
+	Partial bool   `json:"partial,omitempty"`
 }
 
 // RunNoisy types every sentence with errors: noisy(w) is what the typist's
@@ -74,6 +128,7 @@ func RunNoisy(ctx context.Context, p Predictor, fix Fixer, sentences [][]string,
 				off += int64(picked) + 1
 				if corrupted {
 					r.Repaired++
+					r.Misses.Predicted++
 				}
 				continue
 			}
@@ -84,7 +139,8 @@ func RunNoisy(ctx context.Context, p Predictor, fix Fixer, sentences [][]string,
 				off += int64(len(tr)) + n + 1
 			}
 			// Correction on.
-			final := fix(hist, typed)
+			f := fix(hist, typed)
+			final := f.Word
 			on += typedCost
 			if final != w {
 				on += int64(len([]rune(final))) + n + 1
@@ -95,6 +151,7 @@ func RunNoisy(ctx context.Context, p Predictor, fix Fixer, sentences [][]string,
 			case !corrupted && final != w:
 				r.Broken++
 			}
+			r.Misses.classify(w, typed, f)
 		}
 	}
 	if base > 0 {
@@ -108,4 +165,34 @@ func RunNoisy(ctx context.Context, p Predictor, fix Fixer, sentences [][]string,
 		r.BrokenShare = float64(r.Broken) / float64(clean)
 	}
 	return r, nil
+}
+
+// classify counts the outcome of one word that was not picked from the
+// suggestions.
+func (m *Misses) classify(w, typed string, f Fix) {
+	final := f.Word
+	if typed == w {
+		switch {
+		case final == w:
+		case f.Known:
+			m.note(&m.BrokenKnown, "broken_known", w, typed, final)
+		default:
+			m.note(&m.BrokenUnknown, "broken_unknown", w, typed, final)
+		}
+		return
+	}
+	switch rank := slices.Index(f.Offered, w); {
+	case final == w:
+		m.note(&m.Applied, "applied", w, typed, final)
+	case f.Applied:
+		m.note(&m.WrongApplied, "wrong_applied", w, typed, final)
+	case f.Known:
+		m.note(&m.RealWord, "real_word", w, typed, final)
+	case rank < 0:
+		m.note(&m.NotOffered, "not_offered", w, typed, final)
+	case rank == 0:
+		m.note(&m.FirstNotApplied, "first_not_applied", w, typed, final)
+	default:
+		m.note(&m.RankedLower, "ranked_lower", w, typed, final)
+	}
 }

@@ -1,0 +1,69 @@
+package evaluate_test
+
+import (
+	"context"
+	"testing"
+
+	"github.com/keyloom/keyloom/internal/evaluate"
+)
+
+// TestNoisyMisses types one word per case with a scripted typo and a
+// scripted corrector outcome and checks the class it is counted in. The
+// classes follow the definitions in NoisyReport and Misses (project
+// definitions): a corrupted word is repaired when it ends up right, and a
+// clean word is broken when a correction makes it wrong.
+func TestNoisyMisses(t *testing.T) {
+	tests := []struct {
+		name      string
+		intended  string
+		typed     string
+		suggested bool // the intended word is suggested while typing
+		fix       evaluate.Fix
+		want      func(m evaluate.Misses) int64
+		repaired  bool
+		broken    bool
+	}{
+		{"predicted", "house", "hoise", true, evaluate.Fix{}, func(m evaluate.Misses) int64 { return m.Predicted }, true, false},
+		{"applied", "house", "hoise", false, evaluate.Fix{Word: "house", Applied: true, Offered: []string{"house"}}, func(m evaluate.Misses) int64 { return m.Applied }, true, false},
+		{"wrong applied", "house", "hoise", false, evaluate.Fix{Word: "noise", Applied: true, Offered: []string{"noise", "house"}}, func(m evaluate.Misses) int64 { return m.WrongApplied }, false, false},
+		{"real word", "house", "horse", false, evaluate.Fix{Word: "horse", Known: true}, func(m evaluate.Misses) int64 { return m.RealWord }, false, false},
+		{"not offered", "house", "hoise", false, evaluate.Fix{Word: "hoise", Offered: []string{"noise"}}, func(m evaluate.Misses) int64 { return m.NotOffered }, false, false},
+		{"first not applied", "house", "hoise", false, evaluate.Fix{Word: "hoise", Offered: []string{"house", "noise"}}, func(m evaluate.Misses) int64 { return m.FirstNotApplied }, false, false},
+		{"ranked lower", "house", "hoise", false, evaluate.Fix{Word: "hoise", Offered: []string{"noise", "house"}}, func(m evaluate.Misses) int64 { return m.RankedLower }, false, false},
+		{"broken known", "house", "house", false, evaluate.Fix{Word: "horse", Applied: true, Known: true}, func(m evaluate.Misses) int64 { return m.BrokenKnown }, false, true},
+		{"broken unknown", "wren", "wren", false, evaluate.Fix{Word: "when", Applied: true}, func(m evaluate.Misses) int64 { return m.BrokenUnknown }, false, true},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			p := evaluate.PredictorFunc(func(h []string, prefix string, k int, dst []string) []string {
+				if tc.suggested {
+					dst = append(dst, tc.intended)
+				}
+				return dst
+			})
+			fix := func(h []string, typed string) evaluate.Fix {
+				f := tc.fix
+				if f.Word == "" {
+					f.Word = typed
+				}
+				return f
+			}
+			noisy := func(string) string { return tc.typed }
+			r, err := evaluate.RunNoisy(context.Background(), p, fix, [][]string{{tc.intended}}, noisy, 3)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if got := tc.want(r.Misses); got != 1 {
+				t.Errorf("RunNoisy(%s typed %s) misses = %+v, want 1 in class %s", tc.intended, tc.typed, r.Misses, tc.name)
+			}
+			m := r.Misses
+			total := m.Predicted + m.Applied + m.WrongApplied + m.RealWord + m.NotOffered + m.FirstNotApplied + m.RankedLower + m.BrokenKnown + m.BrokenUnknown
+			if total != 1 {
+				t.Errorf("RunNoisy counted %d classes, want exactly 1: %+v", total, m)
+			}
+			if (r.Repaired == 1) != tc.repaired || (r.Broken == 1) != tc.broken {
+				t.Errorf("RunNoisy repaired %d broken %d, want %v %v", r.Repaired, r.Broken, tc.repaired, tc.broken)
+			}
+		})
+	}
+}
