@@ -85,11 +85,11 @@ type query struct {
 	nctx    int // history length used by the base model
 	nn      int // base contexts found: nb[:nn]
 	nb      [MaxOrder]node
-	n3, n2  *ovNode
+	n3, n2  nref // user context nodes (trigram, bigram)
 	b       uint32
 	hasB    bool
-	cLo     int // cache bigram entries with prev = b: [cLo, cHi)
-	cHi     int
+	cMain   []cacheEnt // cache bigram entries with prev = b: main list
+	cRec    []cacheEnt // and recent list (see ovCache)
 	cBiTot  float64
 	wBase   float64 // weights after moving the empty cache's share to the base
 	wUser   float64
@@ -116,25 +116,34 @@ func (v *OverlayView) prepare(ctx []uint32, q *query) {
 		bc[i] = t
 	}
 	q.nn = len(v.base.contexts(bc, &q.nb))
-	q.n3, q.n2, q.hasB = nil, nil, false
+	q.n3, q.n2, q.hasB = nref{}, nref{}, false
 	if n := len(ctx); n >= 1 {
 		q.b, q.hasB = ctx[n-1], true
-		q.n2 = v.lookup(biKey(q.b))
+		q.n2 = v.ref(biKey(q.b))
 		if n >= 2 {
-			q.n3 = v.lookup(triKey(ctx[n-2], q.b))
+			q.n3 = v.ref(triKey(ctx[n-2], q.b))
 		}
 	}
 	cfg := v.cfg
 	q.wUser, q.wCache = cfg.lambda, cfg.mu
 	q.invGrow = 1 / v.grow
 	q.invC = 1 / v.cache.grow
-	q.cLo, q.cHi, q.cBiTot = 0, 0, 0
+	q.cMain, q.cRec, q.cBiTot = nil, nil, 0
 	if v.cache.sum <= 0 {
 		q.wCache = 0
 	} else if q.hasB {
-		q.cLo, q.cHi = cacheRange(v.cache.bi, q.b, 0, math.MaxUint32)
-		for _, e := range v.cache.bi[q.cLo:q.cHi] {
-			q.cBiTot += e.w
+		q.cMain, q.cRec = v.cache.biLists(q.b)
+		if len(q.cRec) == 0 {
+			for _, e := range q.cMain {
+				if e.w >= v.cache.floor {
+					q.cBiTot += e.w
+				}
+			}
+		} else {
+			it := cacheIter{q.cMain, q.cRec, v.cache.floor}
+			for e, ok := it.next(); ok; e, ok = it.next() {
+				q.cBiTot += e.w
+			}
 		}
 	}
 	q.wBase = 1 - q.wUser - q.wCache
@@ -145,11 +154,11 @@ func (v *OverlayView) prepare(ctx []uint32, q *query) {
 		q.bn[0] = beta * float64(v.uniTypes)
 		q.den[0] = v.uniTotal*q.invGrow + q.bn[0]
 	}
-	for i, nd := range [2]*ovNode{q.n2, q.n3} {
-		if nd != nil && nd.n > 0 {
+	for i, nd := range [2]nref{q.n2, q.n3} {
+		if n := nd.size(); n > 0 {
 			q.on[i+1] = true
-			q.bn[i+1] = beta * float64(nd.n)
-			q.den[i+1] = nd.total*q.invGrow + q.bn[i+1]
+			q.bn[i+1] = beta * float64(n)
+			q.den[i+1] = nd.total()*q.invGrow + q.bn[i+1]
 		}
 	}
 }
@@ -178,9 +187,9 @@ func (v *OverlayView) evidenceOf(q *query, w uint32) evidence {
 		ev.c[2] = e.cnt
 	}
 	if q.wCache > 0 {
-		ev.cu = cacheFind(v.cache.uni, noPrev, w)
+		ev.cu = v.cache.uniW(w)
 		if q.cBiTot > 0 && q.hasB {
-			ev.cb = cacheFind(v.cache.bi[q.cLo:q.cHi], q.b, w)
+			ev.cb = v.cache.find(q.cMain, q.cRec, q.b, w)
 		}
 	}
 	return ev
@@ -222,17 +231,53 @@ func (v *OverlayView) blendProb(q *query, pb float64, ev *evidence) float64 {
 // of blend.go), with ctx and w extended IDs, ctx oldest first. It returns
 // −Inf for an ID the view does not know. It does not allocate; cost: the
 // base model's LogProb plus a few hash and binary-search lookups.
+//
+// When the view's memo (see blend_memo.go) holds the same history, as it
+// does while a corrector scores candidates after a TopK call, LogProb uses
+// the prepared history and the words' evidence and base probability from
+// it, and records those of the words it scores; the result is the same.
 func (v *OverlayView) LogProb(ctx []uint32, w uint32) float64 {
 	if w >= uint32(v.VocabSize()) {
 		return math.Inf(-1)
 	}
+	if n := v.base.order - 1; len(ctx) > n {
+		ctx = ctx[len(ctx)-n:]
+	}
+	if v.memo != nil {
+		if m := v.memo.p.Load(); m != nil && m.mu.TryLock() {
+			if m.ok && m.nctx == len(ctx) && m.ctx == m.key(ctx) {
+				lp := v.logProbMemo(&m.q, w, m)
+				m.mu.Unlock()
+				return lp
+			}
+			m.mu.Unlock()
+		}
+	}
 	var q query
 	v.prepare(ctx, &q)
+	return v.logProbMemo(&q, w, nil)
+}
+
+// logProbMemo returns ln p(w | h) for the prepared history q, through the
+// memo m (nil: none), which the caller holds locked and which holds q.
+func (v *OverlayView) logProbMemo(q *query, w uint32, m *topKMemo) float64 {
+	var own memoWord
+	known := m.word(w)
+	if known == nil || !known.hasEv {
+		ev := v.evidenceOf(q, w)
+		if known = m.add(w); known == nil {
+			known = &own
+		}
+		known.ev, known.hasEv = ev, true
+	}
 	pb := 0.0
 	if w < v.V {
-		pb = math.Exp(v.base.score(q.nb[:q.nn], w))
+		if !known.hasPB {
+			known.pb, known.hasPB = math.Exp(v.base.score(q.nb[:q.nn], w)), true
+		}
+		pb = known.pb
 	}
-	return math.Log(v.prob(&q, w, pb))
+	return math.Log(v.blendProb(q, pb, &known.ev))
 }
 
 func (v *OverlayView) hasPrefix(tok uint32, prefix string) bool {
@@ -269,4 +314,4 @@ func cacheLower(s []cacheEnt, tok uint32) int {
 // Empty reports whether the view holds nothing learned (no n-grams and an
 // empty recency cache), so that it scores exactly as the base model and
 // callers may query the base model directly.
-func (v *OverlayView) Empty() bool { return v.entries == 0 && len(v.cache.uni) == 0 }
+func (v *OverlayView) Empty() bool { return v.entries == 0 && v.cache.nUni == 0 }

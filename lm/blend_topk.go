@@ -161,10 +161,14 @@ func (v *OverlayView) bestList(s *stream, r *rangeQ, toks []topEntry, more bool)
 }
 
 // nodeRange calls f for each entry of nd with lo ≤ tok < hi.
-func (v *OverlayView) nodeRange(nd *ovNode, lo, hi uint32, f func(uint32, float64)) {
-	c, i := nd.span(lo)
-	for ; c < len(nd.parts); c, i = c+1, 0 {
-		p := nd.parts[c]
+func (v *OverlayView) nodeRange(nd nref, lo, hi uint32, f func(uint32, float64)) {
+	if nd.p != nil {
+		nd.each(lo, hi, f)
+		return
+	}
+	c, i := nd.nd.span(lo)
+	for ; c < len(nd.nd.parts); c, i = c+1, 0 {
+		p := nd.nd.parts[c]
 		for ; i < len(p); i++ {
 			if p[i].tok >= hi {
 				return
@@ -175,8 +179,8 @@ func (v *OverlayView) nodeRange(nd *ovNode, lo, hi uint32, f func(uint32, float6
 }
 
 // scanNode calls f for each entry of nd in the query range.
-func (v *OverlayView) scanNode(nd *ovNode, r *rangeQ, f func(uint32, float64)) {
-	if nd == nil || nd.n == 0 {
+func (v *OverlayView) scanNode(nd nref, r *rangeQ, f func(uint32, float64)) {
+	if nd.size() == 0 {
 		return
 	}
 	if r.lo < r.hi {
@@ -189,16 +193,38 @@ func (v *OverlayView) scanNode(nd *ovNode, r *rangeQ, f func(uint32, float64)) {
 	})
 }
 
-// scanCache calls f for each cache entry (one prev, sorted by tok) in the query range.
-func (v *OverlayView) scanCache(list []cacheEnt, r *rangeQ, f func(uint32, float64)) {
-	a := cacheLower(list, r.lo)
-	for _, e := range list[a:] {
-		if e.tok >= r.hi {
-			break
+// scanCache calls f for each cache entry (one prev; a main and a recent
+// list, sorted by tok) in the query range.
+func (v *OverlayView) scanCache(main, recent []cacheEnt, r *rangeQ, f func(uint32, float64)) {
+	floor := v.cache.floor
+	if len(recent) == 0 { // main alone
+		a := cacheLower(main, r.lo)
+		for _, e := range main[a:] {
+			if e.tok >= r.hi {
+				break
+			}
+			if e.w >= floor {
+				f(e.tok, e.w)
+			}
 		}
-		f(e.tok, e.w)
+		for _, e := range main[a+cacheLower(main[a:], v.V):] {
+			if e.w >= floor && v.hasPrefix(e.tok, r.prefix) {
+				f(e.tok, e.w)
+			}
+		}
+		return
 	}
-	for _, e := range list[a+cacheLower(list[a:], v.V):] {
+	a, ra := cacheLower(main, r.lo), cacheLower(recent, r.lo)
+	b, rb := a+cacheLower(main[a:], r.hi), ra+cacheLower(recent[ra:], r.hi)
+	if r.lo < r.hi {
+		it := cacheIter{main[a:b], recent[ra:rb], floor}
+		for e, ok := it.next(); ok; e, ok = it.next() {
+			f(e.tok, e.w)
+		}
+	}
+	a, ra = b+cacheLower(main[b:], v.V), rb+cacheLower(recent[rb:], v.V)
+	it := cacheIter{main[a:], recent[ra:], floor}
+	for e, ok := it.next(); ok; e, ok = it.next() {
 		if v.hasPrefix(e.tok, r.prefix) {
 			f(e.tok, e.w)
 		}
@@ -209,7 +235,7 @@ func (v *OverlayView) scanCache(list []cacheEnt, r *rangeQ, f func(uint32, float
 func (v *OverlayView) scanUni(r *rangeQ, f func(uint32, float64)) {
 	if r.lo < r.hi {
 		for bkt := r.lo >> ovBucketShift; bkt <= (r.hi-1)>>ovBucketShift; bkt++ {
-			if nd := v.lookup(tagUni<<62 | uint64(bkt)); nd != nil {
+			if nd := v.ref(tagUni<<62 | uint64(bkt)); nd.size() > 0 {
 				v.nodeRange(nd, r.lo, r.hi, f)
 			}
 		}
@@ -585,11 +611,11 @@ func (v *OverlayView) evidenceIn(q *query, si int, w uint32, ev *evidence) float
 		}
 	case stCacheUni:
 		if q.wCache > 0 {
-			x = cacheFind(v.cache.uni, noPrev, w)
+			x = v.cache.uniW(w)
 		}
 	case stCacheBi:
 		if q.wCache > 0 && q.cBiTot > 0 && q.hasB {
-			x = cacheFind(v.cache.bi[q.cLo:q.cHi], q.b, w)
+			x = v.cache.find(q.cMain, q.cRec, q.b, w)
 		}
 	}
 	ev.set(si, x)
@@ -609,9 +635,7 @@ func (v *OverlayView) streamBound(si int, q *query) float64 {
 		if si == stTri {
 			nd = q.n3
 		}
-		if nd != nil {
-			return nd.maxCnt()
-		}
+		return nd.maxCnt()
 	case stCacheUni:
 		if q.wCache > 0 && v.cache.nbest > 0 {
 			return v.cache.best[0].w
@@ -636,18 +660,19 @@ func (v *OverlayView) stage1(si int, s *stream, q *query, r *rangeQ) {
 		if si == stTri {
 			nd = q.n3
 		}
-		if nd.top == nil { // a small node: read it whole in order
+		top := nd.best()
+		if top == nil { // a small node: read it whole in order
 			s.stage, s.buf.k = 2, MaxK
 			v.scanNode(nd, r, func(tok uint32, val float64) { s.buf.push(Scored{ID: tok, LogP: val}) })
 			return
 		}
-		v.bestList(s, r, nd.top.e[:nd.top.n], nd.n > nd.top.n)
+		v.bestList(s, r, top.e[:top.n], nd.size() > top.n)
 	case stCacheUni:
 		var top [cacheBest]topEntry
 		for i, e := range v.cache.best[:v.cache.nbest] {
 			top[i] = topEntry{tok: e.tok, cnt: e.w}
 		}
-		v.bestList(s, r, top[:v.cache.nbest], len(v.cache.uni) > v.cache.nbest)
+		v.bestList(s, r, top[:v.cache.nbest], v.cache.nUni > v.cache.nbest)
 	}
 }
 
@@ -661,9 +686,9 @@ func (v *OverlayView) scan(si int, q *query, r *rangeQ, f func(uint32, float64))
 	case stTri:
 		v.scanNode(q.n3, r, f)
 	case stCacheUni:
-		v.scanCache(v.cache.uni, r, f)
+		v.scanCache(v.cache.uni, v.cache.rUni, r, f)
 	case stCacheBi:
-		v.scanCache(v.cache.bi[q.cLo:q.cHi], r, f)
+		v.scanCache(q.cMain, q.cRec, r, f)
 	}
 }
 

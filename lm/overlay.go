@@ -161,6 +161,11 @@ type Overlay struct {
 	cscratch []cacheEnt
 	words    []string
 	surfs    []string
+	cat      []byte    // a sentence's folded and typed tokens, made one string
+	sc       *Scanner  // reused by learnPiece
+	slab     []ovEntry // patch entries, handed out once each
+	pslab    []ovPatch
+	bslab    []ovBest
 	br       *bufio.Reader // reused by the tokenizer (NewScanner keeps a large enough bufio.Reader)
 	sr       strings.Reader
 }
@@ -183,9 +188,11 @@ type OverlayView struct {
 	byStr []uint32 // user word indexes sorted by word
 
 	shards   *[ovShardCount]*ovShard
-	entries  int     // stored n-grams of all orders
-	uniTypes int     // distinct unigrams
-	uniTotal float64 // Σ unigram counts, stored units
+	delta    *ovDelta // changes not yet folded into shards (nil: none)
+	ver      uint64   // version: the delta's patches past it are not part of the view
+	entries  int      // stored n-grams of all orders
+	uniTypes int      // distinct unigrams
+	uniTotal float64  // Σ unigram counts, stored units
 	top      [uniTopLen]topEntry
 	nTop     int
 
@@ -280,18 +287,23 @@ func (o *Overlay) begin(day int, needLearning bool) *writer {
 	}
 	nv.grow = o.cfg.growth(nv.useDays - nv.epoch)
 	o.batch++
-	w := &writer{v: &nv, owned: &o.owned, batch: o.batch}
+	nv.ver = o.batch
+	w := &writer{v: &nv, o: o, owned: &o.owned, batch: o.batch}
 	if nv.grow > 1<<40 { // restart the decay epoch before stored units grow too large
 		w.v = nv.rebuild(nv.flatten(nil))
 		w.copied = true
 		o.batch++
 		w.batch = o.batch
+		w.v.ver = o.batch
 	}
 	return w
 }
 
 // finish evicts past the cap and publishes the change.
 func (o *Overlay) finish(w *writer) {
+	if w.v.delta != nil && w.v.delta.n >= deltaFoldKeys {
+		w.fold()
+	}
 	v := w.v
 	if v.entries > o.cfg.maxEntries {
 		v = v.evict(o.cfg.maxEntries * 9 / 10)
@@ -327,7 +339,9 @@ func (v *OverlayView) evict(target int) *OverlayView {
 // one seen counts as one more day of use for decay). Spans that look secret
 // (see LooksSecret and the rules in secret.go) are dropped and break the
 // n-gram chain: no n-gram spans them. It does nothing while learning is off.
-// Cost: one tokenizer pass plus copying the touched parts of the snapshot.
+// Cost: one tokenizer pass, one small patch per touched context in the
+// delta (overlay_delta.go) and a merge of the recent cache entries; about
+// one Learn in thirty also folds the delta into the main store.
 func (o *Overlay) Learn(text string, day int) {
 	o.mu.Lock()
 	defer o.mu.Unlock()
@@ -363,7 +377,7 @@ func (o *Overlay) learnPiece(w *writer, piece string, openStart, openEnd bool) {
 	} else {
 		o.br.Reset(&o.sr)
 	}
-	sc := NewScanner(o.br, ScanOptions{})
+	sc := o.scanner()
 	first := true
 	pending := false
 	for sc.Scan() {
@@ -371,16 +385,44 @@ func (o *Overlay) learnPiece(w *writer, piece string, openStart, openEnd bool) {
 			o.learnChain(w, o.words, o.surfs, first && openStart, false)
 			first = false
 		}
+		// One string holds the sentence's folded then typed tokens; the
+		// words are slices of it (a word kept by the overlay is cloned).
+		o.cat = o.cat[:0]
+		for _, f := range sc.Tokens() {
+			o.cat = append(o.cat, f...)
+		}
+		for _, s := range sc.Surfaces() {
+			o.cat = append(o.cat, s...)
+		}
+		all := string(o.cat)
 		o.words, o.surfs = o.words[:0], o.surfs[:0]
-		for i, f := range sc.Tokens() {
-			o.words = append(o.words, string(f))
-			o.surfs = append(o.surfs, string(sc.Surfaces()[i]))
+		off := 0
+		for _, f := range sc.Tokens() {
+			o.words = append(o.words, all[off:off+len(f)])
+			off += len(f)
+		}
+		for _, s := range sc.Surfaces() {
+			o.surfs = append(o.surfs, all[off:off+len(s)])
+			off += len(s)
 		}
 		pending = true
 	}
 	if pending {
 		o.learnChain(w, o.words, o.surfs, first && openStart, openEnd)
 	}
+}
+
+// scanner returns the overlay's tokenizer, reset to read o.br, with the
+// buffers of its earlier uses kept (under o.mu).
+func (o *Overlay) scanner() *Scanner {
+	if o.sc == nil {
+		o.sc = NewScanner(o.br, ScanOptions{})
+		return o.sc
+	}
+	sc := o.sc
+	*sc = Scanner{r: o.br, opts: sc.opts, folded: sc.folded[:0], surface: sc.surface[:0],
+		fbuf: sc.fbuf[:0], sbuf: sc.sbuf[:0], spans: sc.spans[:0], tmp: sc.tmp[:0]}
+	return sc
 }
 
 // learnChain queues the counts of one chain of words.
@@ -452,7 +494,7 @@ func (w *writer) resolve(word string, create bool) (uint32, bool) {
 	}
 	idx := uint32(len(v.words))
 	// Appending past the length shared with older views is safe: they never read it.
-	v.words = append(v.words, word)
+	v.words = append(v.words, strings.Clone(word))
 	v.surf = append(v.surf, "")
 	bs := make([]uint32, len(v.byStr)+1)
 	copy(bs, v.byStr[:pos])
@@ -471,7 +513,7 @@ func (w *writer) setSurface(t uint32, s string) {
 	}
 	cp := make([]string, len(v.surf), cap(v.surf))
 	copy(cp, v.surf)
-	cp[i] = s
+	cp[i] = strings.Clone(s)
 	v.surf = cp
 }
 

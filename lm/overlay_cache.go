@@ -10,32 +10,57 @@ import (
 // tokens, each token's weight decaying as exp(−age/τ) with age counted in
 // tokens. Weights are stored in growing units (a new token weighs grow, and
 // grow is multiplied by exp(1/τ) per token), so older weights never have to
-// be rewritten; entries whose weight fell below cacheFloor are dropped when
-// the cache is next merged. It is immutable once published.
+// be rewritten; an entry whose weight fell below the floor (cacheFloor in
+// effective units) counts as absent, and a weight added to it starts it
+// afresh. It is immutable once published.
+//
+// The entries live in two sorted lists per order: the main lists, rebuilt
+// only when the recent lists are folded into them, and the recent lists,
+// which hold the whole current weight of every entry changed since that
+// fold and are rebuilt by each add. An entry in a recent list replaces the
+// main list's; readers skip weights below the floor in both. Each add
+// follows exactly the steps of merging its weights into one list (the same
+// drops, the same additions in the same order), so every weight, the sum
+// and the heaviest list are bit for bit those of the single-list cache.
 type ovCache struct {
-	uni   []cacheEnt          // sorted by tok
-	bi    []cacheEnt          // sorted by (prev, tok)
-	sum   float64             // Σ uni weights, stored units
+	uni   []cacheEnt          // main unigram list, sorted by tok
+	bi    []cacheEnt          // main bigram list, sorted by (prev, tok)
+	rUni  []cacheEnt          // recent unigram entries
+	rBi   []cacheEnt          // recent bigram entries
+	sum   float64             // Σ unigram weights at or above the floor, stored units
+	nUni  int                 // unigram entries at or above the floor
 	grow  float64             // stored units per effective unit
+	floor float64             // grow·cacheFloor: smaller weights count as absent
 	best  [cacheBest]cacheEnt // heaviest unigrams, heaviest first
 	nbest int
+	rSeen [recentBits / 64]uint64 // bit tok mod recentBits: some recent unigram may have tok
 }
 
 // cacheBest is the number of heaviest cache unigrams kept in order.
 const cacheBest = 16
 
+// cacheRecentMax is the number of recent entries past which an add folds
+// them into the main lists. Project choice, no source: a 12-word sentence
+// adds about two dozen.
+const cacheRecentMax = 128
+
+// recentBits is the size of the filter that lets a unigram lookup skip the
+// recent list (a power of two).
+const recentBits = 1024
+
+// rank fills the heaviest list anew.
 func (c *ovCache) rank() {
 	var tb topBuf
 	tb.k = cacheBest
-	for i, e := range c.uni {
+	c.eachUni(func(e cacheEnt) {
 		if tb.n == tb.k && e.w <= tb.buf[tb.n-1].LogP {
-			continue
+			return
 		}
-		tb.push(Scored{ID: uint32(i), LogP: e.w})
-	}
+		tb.push(Scored{ID: e.tok, LogP: e.w})
+	})
 	c.nbest = tb.n
 	for i, s := range tb.buf[:tb.n] {
-		c.best[i] = c.uni[s.ID]
+		c.best[i] = cacheEnt{prev: noPrev, tok: s.ID, w: s.LogP}
 	}
 }
 
@@ -44,8 +69,8 @@ type cacheEnt struct {
 	w         float64
 }
 
-// cacheFloor is the effective weight below which a cache entry is dropped:
-// e^-4 keeps about 4τ tokens. Project choice, no source.
+// cacheFloor is the effective weight below which a cache entry counts as
+// absent: e^-4 keeps about 4τ tokens. Project choice, no source.
 var cacheFloor = math.Exp(-4)
 
 const noPrev = ^uint32(0)
@@ -57,9 +82,104 @@ func cmpCache(a, b cacheEnt) int {
 	return cmp.Compare(a.tok, b.tok)
 }
 
+// cacheIter walks a main list with a recent list in place, in order,
+// skipping weights below floor.
+type cacheIter struct {
+	main, recent []cacheEnt
+	floor        float64
+}
+
+func cacheKey(e *cacheEnt) uint64 { return uint64(e.prev)<<32 | uint64(e.tok) }
+
+// next returns the next entry, or false at the end.
+func (it *cacheIter) next() (cacheEnt, bool) {
+	for {
+		var e cacheEnt
+		switch {
+		case len(it.recent) > 0 && (len(it.main) == 0 || cacheKey(&it.recent[0]) <= cacheKey(&it.main[0])):
+			if len(it.main) > 0 && cacheKey(&it.recent[0]) == cacheKey(&it.main[0]) {
+				it.main = it.main[1:]
+			}
+			e, it.recent = it.recent[0], it.recent[1:]
+		case len(it.main) > 0:
+			e, it.main = it.main[0], it.main[1:]
+		default:
+			return cacheEnt{}, false
+		}
+		if e.w >= it.floor {
+			return e, true
+		}
+	}
+}
+
+// mergedEach calls f for each entry of main (with recent entries in place)
+// at or above floor, in order.
+func mergedEach(main, recent []cacheEnt, floor float64, f func(cacheEnt)) {
+	it := cacheIter{main, recent, floor}
+	for e, ok := it.next(); ok; e, ok = it.next() {
+		f(e)
+	}
+}
+
+// eachUni calls f for every unigram entry, by tok.
+func (c *ovCache) eachUni(f func(cacheEnt)) { mergedEach(c.uni, c.rUni, c.floor, f) }
+
+// weight returns the stored weight of (prev, tok) in main with recent in
+// place, ignoring the floor (0 when absent).
+func weight(main, recent []cacheEnt, prev, tok uint32) float64 {
+	if len(recent) > 0 {
+		if i := lowerCache(recent, prev, tok); i < len(recent) && recent[i].prev == prev && recent[i].tok == tok {
+			return recent[i].w
+		}
+	}
+	if i := lowerCache(main, prev, tok); i < len(main) && main[i].prev == prev && main[i].tok == tok {
+		return main[i].w
+	}
+	return 0
+}
+
+// find returns the weight of (prev, tok) in main with recent in place, or
+// 0 when absent or below the floor.
+func (c *ovCache) find(main, recent []cacheEnt, prev, tok uint32) float64 {
+	if w := weight(main, recent, prev, tok); w >= c.floor {
+		return w
+	}
+	return 0
+}
+
+// uniW returns the weight of tok as a unigram (0 when absent).
+func (c *ovCache) uniW(tok uint32) float64 {
+	recent := c.rUni
+	if b := tok & (recentBits - 1); c.rSeen[b>>6]&(1<<(b&63)) == 0 {
+		recent = nil
+	}
+	return c.find(c.uni, recent, noPrev, tok)
+}
+
+// markRecent fills the filter of the recent unigram list.
+func (c *ovCache) markRecent() {
+	c.rSeen = [recentBits / 64]uint64{}
+	for _, e := range c.rUni {
+		b := e.tok & (recentBits - 1)
+		c.rSeen[b>>6] |= 1 << (b & 63)
+	}
+}
+
+// biLists returns the main and recent bigram entries after prev.
+func (c *ovCache) biLists(prev uint32) (main, recent []cacheEnt) {
+	a, b := cacheRange(c.bi, prev, 0, math.MaxUint32)
+	if len(c.rBi) == 0 {
+		return c.bi[a:b], nil
+	}
+	ra, rb := cacheRange(c.rBi, prev, 0, math.MaxUint32)
+	return c.bi[a:b], c.rBi[ra:rb]
+}
+
 // add returns the cache after seeing the tokens of a chain (prev = noPrev
 // before the first). toks may start with <s>, which is context only. The
-// scratch slice is reused by the caller.
+// scratch slice is reused by the caller. Cost: O(u + r log m) for u main
+// unigram entries, r recent entries and m main entries, plus a fold into
+// the main lists (O(m)) once the recent lists grow past cacheRecentMax.
 func (c ovCache) add(toks []uint32, bos uint32, tau float64, scratch []cacheEnt) (ovCache, []cacheEnt) {
 	if len(toks) == 0 {
 		return c, scratch
@@ -84,6 +204,7 @@ func (c ovCache) add(toks []uint32, bos uint32, tau float64, scratch []cacheEnt)
 		prev = t
 	}
 	if g > 1e150 { // rescale to keep weights finite
+		c = c.folded()
 		inv := 1 / g
 		c.uni = scaleCache(c.uni, inv)
 		c.bi = scaleCache(c.bi, inv)
@@ -101,10 +222,17 @@ func (c ovCache) add(toks []uint32, bos uint32, tau float64, scratch []cacheEnt)
 			n++
 		}
 	}
-	var out ovCache
-	out.grow = g
-	out.uni, out.sum = mergeCache(c.uni, ups[len(ups)-n:], floor)
-	out.bi, _ = mergeCache(c.bi, ups[:len(ups)-n], floor)
+	out := ovCache{uni: c.uni, bi: c.bi, grow: g, floor: floor}
+	out.rUni = mergeRecent(c.uni, c.rUni, ups[len(ups)-n:], floor)
+	out.rBi = mergeRecent(c.bi, c.rBi, ups[:len(ups)-n], floor)
+	out.markRecent()
+	// The sum adds the weights as one merge of the adds into the whole
+	// list would: each kept old weight, then each add to it, in order.
+	adds := ups[len(ups)-n:]
+	out.sum, out.nUni = uniSum(&c, adds, floor)
+	if len(out.rUni)+len(out.rBi) > cacheRecentMax {
+		out = out.folded()
+	}
 	// The heaviest unigrams: weights only grow between merges, so the old
 	// list stays exact with the changed words noted, unless a listed word
 	// fell below the floor or the weights were rescaled.
@@ -119,10 +247,107 @@ func (c ovCache) add(toks []uint32, bos uint32, tau float64, scratch []cacheEnt)
 		return out, ups
 	}
 	out.best, out.nbest = c.best, c.nbest
-	for _, u := range ups[len(ups)-n:] {
-		out.noteBest(cacheEnt{prev: noPrev, tok: u.tok, w: cacheFind(out.uni, noPrev, u.tok)})
+	for _, u := range adds {
+		out.noteBest(cacheEnt{prev: noPrev, tok: u.tok, w: out.uniW(u.tok)})
 	}
 	return out, ups
+}
+
+// uniSum returns the sum of the unigram weights, adding the terms in the
+// order a merge of adds into old's whole unigram list adds them (see
+// mergeCache in overlay_cache_test.go): each old weight at or above floor,
+// and each add after the old weight of its key. It also returns the number
+// of entries of the merged list.
+func uniSum(old *ovCache, adds []cacheEnt, floor float64) (float64, int) {
+	sum, n := 0.0, 0
+	lastTok, have := uint32(0), false
+	add := func(a cacheEnt) {
+		if have && lastTok == a.tok {
+			sum += a.w
+		} else if a.w >= floor {
+			sum += a.w
+			lastTok, have = a.tok, true
+			n++
+		}
+	}
+	it := cacheIter{old.uni, old.rUni, floor}
+	j := 0
+	for e, ok := it.next(); ok; e, ok = it.next() {
+		for j < len(adds) && adds[j].tok < e.tok {
+			add(adds[j])
+			j++
+		}
+		sum += e.w
+		n++
+		lastTok, have = e.tok, true
+		for j < len(adds) && adds[j].tok == e.tok {
+			sum += adds[j].w
+			j++
+		}
+	}
+	for ; j < len(adds); j++ {
+		add(adds[j])
+	}
+	return sum, n
+}
+
+// mergeRecent returns the recent list after adding sorted weights: every
+// old recent entry and every added key, with its whole weight as
+// mergeCache (overlay_cache_test.go) computes it over main with recent in
+// place (an old weight below floor is dropped first, so the add starts the
+// entry afresh).
+func mergeRecent(main, recent, add []cacheEnt, floor float64) []cacheEnt {
+	out := make([]cacheEnt, 0, len(recent)+len(add))
+	i := 0
+	for j := 0; j < len(add); {
+		a := add[j]
+		for i < len(recent) && cmpCache(recent[i], a) < 0 {
+			if recent[i].w >= floor {
+				out = append(out, recent[i])
+			}
+			i++
+		}
+		var e cacheEnt
+		have := false
+		if i < len(recent) && cmpCache(recent[i], a) == 0 {
+			e, have = recent[i], recent[i].w >= floor
+			i++
+		} else if w := weight(main, nil, a.prev, a.tok); w >= floor {
+			e, have = cacheEnt{prev: a.prev, tok: a.tok, w: w}, true
+		}
+		for ; j < len(add) && add[j].prev == a.prev && add[j].tok == a.tok; j++ {
+			if have {
+				e.w += add[j].w
+			} else if add[j].w >= floor {
+				e, have = add[j], true
+			}
+		}
+		if have {
+			out = append(out, e)
+		}
+	}
+	for _, e := range recent[i:] {
+		if e.w >= floor {
+			out = append(out, e)
+		}
+	}
+	return out
+}
+
+// folded returns the cache with its recent entries moved into the main
+// lists and entries below the floor dropped.
+func (c ovCache) folded() ovCache {
+	if len(c.rUni) == 0 && len(c.rBi) == 0 {
+		return c
+	}
+	out := c
+	out.uni = make([]cacheEnt, 0, len(c.uni)+len(c.rUni))
+	mergedEach(c.uni, c.rUni, c.floor, func(e cacheEnt) { out.uni = append(out.uni, e) })
+	out.bi = make([]cacheEnt, 0, len(c.bi)+len(c.rBi))
+	mergedEach(c.bi, c.rBi, c.floor, func(e cacheEnt) { out.bi = append(out.bi, e) })
+	out.rUni, out.rBi = nil, nil
+	out.markRecent()
+	return out
 }
 
 // noteBest keeps the heaviest list exact after the weight of e.tok grew to e.w.
@@ -159,62 +384,6 @@ func scaleCache(s []cacheEnt, f float64) []cacheEnt {
 	return out
 }
 
-// mergeCache merges sorted new weights into a sorted list, dropping entries
-// below floor. It returns the new list and the sum of its weights. An old
-// entry comes before a new one with the same key; the new weight is added
-// to it, or starts the entry afresh when the old one was dropped. The sum
-// adds the weights in output order. Runs of old entries between two new
-// ones are found by binary search and copied in a tight loop.
-func mergeCache(old, add []cacheEnt, floor float64) ([]cacheEnt, float64) {
-	out := make([]cacheEnt, 0, len(old)+len(add))
-	sum := 0.0
-	i := 0
-	for j := 0; j <= len(add); j++ {
-		end := len(old)
-		if j < len(add) { // old entries up to and including add[j]'s key
-			a := add[j]
-			lo, hi := i, len(old)
-			for lo < hi {
-				m := int(uint(lo+hi) >> 1)
-				if cmpCache(old[m], a) <= 0 {
-					lo = m + 1
-				} else {
-					hi = m
-				}
-			}
-			end = lo
-		}
-		for _, e := range old[i:end] { // distinct keys, none equal to out's last
-			if e.w >= floor {
-				out = append(out, e)
-				sum += e.w
-			}
-		}
-		i = end
-		if j == len(add) {
-			break
-		}
-		a := add[j]
-		if n := len(out); n > 0 && out[n-1].prev == a.prev && out[n-1].tok == a.tok {
-			out[n-1].w += a.w
-			sum += a.w
-		} else if a.w >= floor {
-			out = append(out, a)
-			sum += a.w
-		}
-	}
-	return out, sum
-}
-
-// cacheFind returns the stored weight of (prev, tok), or 0.
-func cacheFind(s []cacheEnt, prev, tok uint32) float64 {
-	lo := lowerCache(s, prev, tok)
-	if lo < len(s) && s[lo].prev == prev && s[lo].tok == tok {
-		return s[lo].w
-	}
-	return 0
-}
-
 // cacheRange returns the bounds of the entries with the given prev and tok in [lo, hi).
 func cacheRange(s []cacheEnt, prev, lo, hi uint32) (int, int) {
 	a := lowerCache(s, prev, lo)
@@ -238,13 +407,15 @@ func lowerCache(s []cacheEnt, prev, tok uint32) int {
 // without returns the cache minus every entry that involves a token for
 // which drop returns true.
 func (c ovCache) without(drop func(prev, tok uint32) bool) ovCache {
-	out := ovCache{grow: c.grow}
+	c = c.folded()
+	out := ovCache{grow: c.grow, floor: c.floor}
 	for _, e := range c.uni {
 		if !drop(noPrev, e.tok) {
 			out.uni = append(out.uni, e)
 			out.sum += e.w
 		}
 	}
+	out.nUni = len(out.uni)
 	for _, e := range c.bi {
 		if !drop(e.prev, e.tok) {
 			out.bi = append(out.bi, e)

@@ -7,11 +7,14 @@ import (
 )
 
 // The overlay's counts live in an immutable snapshot (OverlayView) that is
-// replaced as a whole on every change. To keep a change cheap, the n-gram
-// counts are spread over ovShardCount shards chosen by a hash of the
-// context; a change copies the shard pointer array once, then only the
-// shards, context nodes and chunks it touches (copy-on-write). Everything
-// reachable from a published view is never written again.
+// replaced as a whole on every change. The main store spreads the n-gram
+// counts over ovShardCount shards chosen by a hash of the context. A Learn
+// or Commit records its changes in the view's delta (overlay_delta.go);
+// folding the delta into the main store, once it has grown, copies the
+// shard pointer array once, then only the shards, context nodes and chunks
+// it touches (copy-on-write). Everything reachable from a published view
+// is never written again, except the delta's table, whose slots a writer
+// fills with patches of later versions that earlier views skip.
 //
 // A context node holds the successors of one context, sorted by token:
 // the n-grams "a b w" of the trigram context (a, b), "b w" of the bigram
@@ -232,7 +235,11 @@ func (v *OverlayView) lookup(key uint64) *ovNode {
 
 // uniEntry returns the unigram entry of tok, or nil.
 func (v *OverlayView) uniEntry(tok uint32) *ovEntry {
-	return v.lookup(uniKey(tok)).find(tok)
+	key := uniKey(tok)
+	if v.delta == nil || !v.delta.maybe(key) {
+		return v.lookup(key).find(tok)
+	}
+	return v.refDelta(key).find(tok)
 }
 
 // ovUpdate is one count change waiting to be applied.
@@ -246,6 +253,7 @@ type ovUpdate struct {
 // writer applies changes to a private copy of a view (under Overlay.mu).
 type writer struct {
 	v      *OverlayView
+	o      *Overlay              // slabs for patches (nil: the writer applies nothing)
 	owned  *[ovShardCount]uint64 // batch that copied each shard
 	batch  uint64
 	copied bool // v.shards is private
@@ -270,7 +278,8 @@ func (w *writer) shardFor(i int) *ovShard {
 	return sh
 }
 
-// apply adds the updates (any order; the slice is sorted in place) to the view.
+// apply adds the updates (any order; the slice is sorted in place) to the
+// view's delta (see overlay_delta.go).
 func (w *writer) apply(ups []ovUpdate) {
 	slices.SortFunc(ups, func(a, b ovUpdate) int {
 		if c := cmp.Compare(a.key, b.key); c != 0 {
@@ -284,123 +293,9 @@ func (w *writer) apply(ups []ovUpdate) {
 			e++
 		}
 		key := ups[g].key
-		sh := w.shardFor(shardOf(key))
-		pos, found := sh.search(key)
-		var old *ovNode
-		if found {
-			old = sh.slots[pos].nd
-		}
-		nn := w.update(old, key, ups[g:e])
-		if found {
-			sh.slots[pos].nd = nn
-		} else {
-			sh.slots = slices.Insert(sh.slots, pos, ovSlot{key, nn})
-		}
+		w.patch(w.o, w.v.ref(key), key, ups[g:e])
 		g = e
 	}
-}
-
-// update returns a copy of the node old (nil: a new node) with the updates
-// of one key (sorted by tok) added. Only the chunks the updates fall in are
-// copied.
-func (w *writer) update(old *ovNode, key uint64, ups []ovUpdate) *ovNode {
-	v := w.v
-	nn := &ovNode{key: key}
-	isUni := keyTag(key) == tagUni
-	var oldParts [][]ovEntry
-	if old != nil {
-		nn.total, nn.n = old.total, old.n
-		oldParts = old.parts
-	}
-	if len(oldParts) == 0 {
-		oldParts = [][]ovEntry{nil}
-	}
-	// Chunk index of each update, non-decreasing since ups are sorted.
-	var parts [][]ovEntry
-	if len(oldParts) > 1 {
-		parts = make([][]ovEntry, 0, len(oldParts)+1)
-	} else {
-		parts = nn.one[:0]
-	}
-	c := 0
-	for u := 0; u < len(ups); {
-		cu := 0
-		if old != nil && old.n > 0 {
-			cu = old.chunkOf(ups[u].tok)
-		}
-		parts = append(parts, oldParts[c:cu]...)
-		ue := u + 1
-		for ue < len(ups) && (old == nil || old.n == 0 || old.chunkOf(ups[ue].tok) == cu) {
-			ue++
-		}
-		ol := oldParts[cu]
-		var chunk []ovEntry
-		if len(oldParts) == 1 && len(ol)+ue-u <= ovSmall {
-			chunk = nn.small[:0]
-		} else {
-			chunk = make([]ovEntry, 0, len(ol)+ue-u)
-		}
-		i := 0
-		for x := u; x < ue; {
-			t := ups[x].tok
-			for i < len(ol) && ol[i].tok < t {
-				chunk = append(chunk, ol[i])
-				i++
-			}
-			var ent ovEntry
-			if i < len(ol) && ol[i].tok == t {
-				ent = ol[i]
-				i++
-			} else {
-				ent.tok = t
-				nn.n++
-				v.entries++
-				if isUni {
-					v.uniTypes++
-				}
-			}
-			for ; x < ue && ups[x].tok == t; x++ {
-				ent.cnt += ups[x].delta
-				nn.total += ups[x].delta
-				if isUni {
-					v.uniTotal += ups[x].delta
-				}
-				if s := ent.typed + ups[x].typed; s >= ent.typed {
-					ent.typed = s
-				}
-			}
-			ent.day = v.day
-			chunk = append(chunk, ent)
-			if isUni {
-				w.noteTop(ent)
-			}
-		}
-		chunk = append(chunk, ol[i:]...)
-		if len(chunk) > ovChunkMax {
-			h := len(chunk) / 2
-			parts = append(parts, chunk[:h:h], chunk[h:])
-		} else {
-			parts = append(parts, chunk)
-		}
-		c = cu + 1
-		u = ue
-	}
-	parts = append(parts, oldParts[c:]...)
-	nn.setParts(parts)
-	switch {
-	case nn.n <= ovNodeBest:
-	case old == nil || old.top == nil:
-		nn.rank()
-	default:
-		b := *old.top
-		for _, u := range ups {
-			if e := nn.find(u.tok); e != nil {
-				b.note(e.tok, e.cnt)
-			}
-		}
-		nn.top = &b
-	}
-	return nn
 }
 
 // noteTop keeps v.top, the most counted suggestible unigrams, up to date
@@ -450,29 +345,21 @@ func (v *OverlayView) flatten(dst []gram) []gram {
 		return dst
 	}
 	inv := 1 / v.grow
-	for _, sh := range v.shards {
-		if sh == nil {
-			continue
-		}
-		for _, sl := range sh.slots {
-			nd := sl.nd
-			a, b := keyTokens(nd.key)
-			for _, p := range nd.parts {
-				for _, e := range p {
-					g := gram{typed: e.typed, day: e.day, cnt: e.cnt * inv}
-					switch keyTag(nd.key) {
-					case tagUni:
-						g.n, g.toks = 1, [3]uint32{e.tok}
-					case tagBi:
-						g.n, g.toks = 2, [3]uint32{b, e.tok}
-					default:
-						g.n, g.toks = 3, [3]uint32{a, b, e.tok}
-					}
-					dst = append(dst, g)
-				}
+	v.eachNode(func(key uint64, r nref) {
+		a, b := keyTokens(key)
+		r.entries(func(e ovEntry) {
+			g := gram{typed: e.typed, day: e.day, cnt: e.cnt * inv}
+			switch keyTag(key) {
+			case tagUni:
+				g.n, g.toks = 1, [3]uint32{e.tok}
+			case tagBi:
+				g.n, g.toks = 2, [3]uint32{b, e.tok}
+			default:
+				g.n, g.toks = 3, [3]uint32{a, b, e.tok}
 			}
-		}
-	}
+			dst = append(dst, g)
+		})
+	})
 	return dst
 }
 
@@ -486,6 +373,7 @@ const minCount = 0.01
 // stored counts equal effective counts.
 func (v *OverlayView) rebuild(grams []gram) *OverlayView {
 	nv := *v
+	nv.delta = nil
 	nv.epoch = v.useDays
 	nv.grow = 1
 	// Renumber user words.

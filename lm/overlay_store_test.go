@@ -1,21 +1,26 @@
 package lm
 
 import (
+	"cmp"
 	"math"
+	"slices"
 	"strings"
 	"testing"
 )
 
 // checkStore verifies the invariants the copy-on-write store keeps
-// incrementally against a recomputation from scratch: every node's chunks
-// are non-empty, at most ovChunkMax long and strictly increasing by token;
-// its entry count and total match its entries (total within rounding of a
-// different summation order); its best list equals one ranked anew; the
-// shards are sorted by key; the recency cache's heaviest list equals one
-// ranked anew. These are the store's own definitions (no outside source).
+// incrementally against a recomputation from scratch: every main node's
+// chunks are non-empty, at most ovChunkMax long and strictly increasing by
+// token; its entry count and total match its entries (total within
+// rounding of a different summation order); its best list equals one
+// ranked anew; the shards are sorted by key. The same holds for every node
+// as the view sees it through its delta (patch entries strictly increasing,
+// count, total and best list of the patched node). Folding the delta into
+// a copy of the view leaves the same n-grams. The recency cache's heaviest
+// list equals one ranked anew, and its unigram count and sum match its
+// lists. These are the store's own definitions (no outside source).
 func checkStore(t *testing.T, v *OverlayView) {
 	t.Helper()
-	entries := 0
 	for si, sh := range v.shards {
 		if sh == nil {
 			continue
@@ -46,7 +51,6 @@ func checkStore(t *testing.T, v *OverlayView) {
 			if n != nd.n || math.Abs(total-nd.total) > 1e-9*total {
 				t.Fatalf("node %x: n %d total %v, entries give %d, %v", nd.key, nd.n, nd.total, n, total)
 			}
-			entries += n
 			fresh := ovNode{n: nd.n, parts: nd.parts}
 			fresh.rank()
 			switch {
@@ -57,14 +61,76 @@ func checkStore(t *testing.T, v *OverlayView) {
 			}
 		}
 	}
+	entries := 0
+	v.eachNode(func(key uint64, r nref) {
+		if r.p != nil {
+			for i := 1; i < len(r.p.ents); i++ {
+				if r.p.ents[i-1].tok >= r.p.ents[i].tok {
+					t.Fatalf("patch of %x: tokens out of order", key)
+				}
+			}
+		}
+		n, total := 0, 0.0
+		var fresh ovBest
+		last := int64(-1)
+		r.entries(func(e ovEntry) {
+			if int64(e.tok) <= last {
+				t.Fatalf("node %x as seen: tokens out of order", key)
+			}
+			last = int64(e.tok)
+			n++
+			total += e.cnt
+			fresh.note(e.tok, e.cnt)
+		})
+		if n != r.size() || math.Abs(total-r.total()) > 1e-9*total {
+			t.Fatalf("node %x as seen: n %d total %v, entries give %d, %v", key, r.size(), r.total(), n, total)
+		}
+		switch b := r.best(); {
+		case (b == nil) != (n <= ovNodeBest):
+			t.Fatalf("node %x as seen, %d entries: best list presence differs", key, n)
+		case b != nil && *b != fresh:
+			t.Fatalf("node %x as seen: best list %v, ranked anew %v", key, b.e[:b.n], fresh.e[:fresh.n])
+		}
+		entries += n
+	})
 	if entries != v.entries {
 		t.Fatalf("view counts %d entries, nodes hold %d", v.entries, entries)
+	}
+	if v.delta != nil {
+		var owned [ovShardCount]uint64
+		fv := *v
+		w := writer{v: &fv, owned: &owned, batch: 1}
+		w.fold()
+		if fv.delta != nil {
+			t.Fatal("fold left a delta")
+		}
+		got, want := sortedGrams(fv.flatten(nil)), sortedGrams(v.flatten(nil))
+		if !slices.Equal(got, want) {
+			t.Fatalf("folded view holds %d n-grams, view %d, or they differ", len(got), len(want))
+		}
+		checkStore(t, &fv)
 	}
 	fresh := v.cache
 	fresh.rank()
 	if fresh.best != v.cache.best || fresh.nbest != v.cache.nbest {
 		t.Fatalf("cache heaviest %v, ranked anew %v", v.cache.best[:v.cache.nbest], fresh.best[:fresh.nbest])
 	}
+	n, sum := 0, 0.0
+	v.cache.eachUni(func(e cacheEnt) { n, sum = n+1, sum+e.w })
+	if n != v.cache.nUni || math.Abs(sum-v.cache.sum) > 1e-9*sum {
+		t.Fatalf("cache counts %d unigrams of sum %v, its lists hold %d of %v", v.cache.nUni, v.cache.sum, n, sum)
+	}
+}
+
+// sortedGrams sorts n-grams by order then tokens.
+func sortedGrams(g []gram) []gram {
+	slices.SortFunc(g, func(a, b gram) int {
+		if c := cmp.Compare(a.n, b.n); c != 0 {
+			return c
+		}
+		return slices.Compare(a.toks[:a.n], b.toks[:b.n])
+	})
+	return g
 }
 
 func TestOverlayStoreInvariants(t *testing.T) {
