@@ -15,7 +15,9 @@ import (
 // API, which decodes and allocates a state per call) and trie (the same
 // FST bytes read by the trie package's decoder, as the engine does).
 // The trie is also searched with the previous depth-first widest pass
-// (trie-depthfirst), and both with the engine's state cap (-cap).
+// (trie-depthfirst), and both with the engine's state cap (-cap). Besides
+// latency it reports the states visited and the DP rows computed per word,
+// which do not depend on the machine's load.
 func BenchmarkCorrect8(b *testing.B) {
 	d := corpus(b)
 	var typed []string
@@ -62,14 +64,20 @@ func BenchmarkCorrect8(b *testing.B) {
 				buf, _ = c.Correct(w, nil, 3, buf)
 				lat = append(lat, time.Since(start))
 			}
-			var states []int
+			var states, rows []int
 			for _, w := range typed {
 				cands += len(c.lastHits(w))
-				states = append(states, c.states(w))
+				st, r := c.work(w)
+				states = append(states, st)
+				rows = append(rows, r)
 			}
 			slices.Sort(states)
+			slices.Sort(rows)
 			b.ReportMetric(float64(states[len(states)/2]), "states-median")
 			b.ReportMetric(float64(states[len(states)*99/100]), "states-p99")
+			b.ReportMetric(float64(rows[len(rows)/2]), "rows-median")
+			b.ReportMetric(float64(rows[len(rows)*9/10]), "rows-p90")
+			b.ReportMetric(float64(rows[len(rows)*99/100]), "rows-p99")
 			slices.Sort(lat)
 			b.ReportMetric(float64(lat[len(lat)/2].Nanoseconds()), "median-ns")
 			b.ReportMetric(float64(lat[len(lat)*99/100].Nanoseconds()), "p99-ns")
@@ -82,13 +90,14 @@ func BenchmarkCorrect8(b *testing.B) {
 // (keyloom.DefaultCorrectionStates, which this package cannot import).
 const benchCap = 15000
 
-// states returns the lexicon states one correction of w visits (not
-// timed).
-func (c *Corrector) states(w string) int {
+// work returns the lexicon states one correction of w visits and the DP
+// rows it computes (deterministic; not timed).
+func (c *Corrector) work(w string) (states, rows int) {
 	var sc scratch
 	id, inLex := c.lex.ID(w)
 	sc.rk.start(c, nil, id, inLex, 8, nil)
-	return c.searchPasses(&sc.s, &sc.rk, w, inLex, !c.depthFirst)
+	states = c.searchPasses(&sc.s, &sc.rk, w, inLex, !c.depthFirst)
+	return states, sc.s.rowsDone
 }
 
 // lastHits re-runs the widest search for w and returns the words found

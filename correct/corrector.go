@@ -151,6 +151,8 @@ type Corrector struct {
 	// depthFirst selects the previous search (alphabetical depth-first
 	// passes of growing budget) for comparison in tests and benchmarks.
 	depthFirst bool
+	// order lists the channel's rules by cost for every search.
+	order *ruleOrder
 }
 
 // firstPass is the cost budget of the first, narrow search pass: about one
@@ -194,6 +196,7 @@ func New(lex Lexicon, lm Scorer, opts Options) (*Corrector, error) {
 		}
 	}
 	c := &Corrector{lex: lex, lm: lm, opts: opts, ch: newChannel(kb, em)}
+	c.order = newRuleOrder(c.ch)
 	c.pool.New = func() any { return &scratch{} }
 	return c, nil
 }
@@ -369,6 +372,7 @@ func (c *Corrector) searchPasses(s *search, rk *ranker, lower string, known, bes
 		if o.MaxStates > 0 && used >= o.MaxStates {
 			break
 		}
+		s.order = c.order
 		s.reset(c.ch, c.lex, lower, float32(budget), min(len(lower)+maxExtra, 2*maxTyped))
 		if o.MaxStates > 0 {
 			s.limit = o.MaxStates - used

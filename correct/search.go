@@ -1,6 +1,10 @@
 package correct
 
-import "math/bits"
+import (
+	"cmp"
+	"math/bits"
+	"slices"
+)
 
 // Lexicon is what the corrector needs from the word list: a finite-state
 // transducer over lower-case UTF-8 words whose outputs, summed along a
@@ -47,11 +51,14 @@ type appRule struct {
 // partial is a rule whose intended side has been matched for k bytes,
 // starting after the prefix whose row is in slot from of search.rows (the
 // depth-first walk keeps depth d's row in slot d; the best-first one keeps
-// one slot per queued prefix; slot 0 is the empty prefix in both).
+// one slot per queued prefix; slot 0 is the empty prefix in both). next is
+// the intended byte it waits for (the rule's alpha[k]), kept here so that
+// trying a byte does not look the rule up.
 type partial struct {
 	rule int32
 	k    int32
 	from int32
+	next byte
 }
 
 // search is the scratch of one candidate search; it lives in a sync.Pool.
@@ -70,6 +77,9 @@ type search struct {
 	subC      []float32   // subC[c*n+j]: intended c typed as t[j]; 0 when equal
 	pos       [256]uint64 // bit j: t[j] is the byte
 	rules     []appRule   // sorted by cost
+	order     *ruleOrder  // the channel's rules by cost (built if nil or for another channel)
+	ruleSet   []uint64    // while collecting rules: bit r for rank r (else zero)
+	ruleEnds  []uint64    // while collecting rules: their ends, by rank
 	ruleMask  [][4]uint64 // ruleMask[i]: first intended bytes of rules[:i+1]
 	first     [256][]int32
 	usedFirst []byte
@@ -86,6 +96,9 @@ type search struct {
 	prepCh    *channel  // channel the typed-word tables were prepared for
 	nodes     []bfNode  // best-first: queued prefixes, by slot
 	buckets   [][]int32 // best-first: slots by quantized lower bound
+	// rowsDone counts the DP rows computed (for benchmarks; reset by the
+	// caller, not by reset).
+	rowsDone int
 }
 
 // plainByte marks the bytes the search tries as intended letters wherever
@@ -191,15 +204,42 @@ func (s *search) prepare(ch *channel) {
 		s.first[c] = s.first[c][:0]
 	}
 	s.usedFirst = s.usedFirst[:0]
-	s.rules = s.rules[:0]
+	// Rules whose typed side occurs in the word, with their end positions,
+	// collected as a set of cost ranks so that listing the set lists them
+	// by cost (rules of equal cost by index). Cost: one map look-up per
+	// typed substring of a rule's length, plus the rules found. (Adding
+	// them one by one to a list, searched for duplicates, and
+	// insertion-sorting it cost about 60 µs per word: rules with short or
+	// empty typed sides occur in most words; measured, this project.)
+	if s.order == nil || s.order.ch != ch {
+		s.order = newRuleOrder(ch)
+	}
+	if len(s.ruleEnds) != len(ch.rules) {
+		s.ruleSet = make([]uint64, (len(ch.rules)+63)/64)
+		s.ruleEnds = make([]uint64, len(ch.rules))
+	}
+	rank, byRank := s.order.rank, s.order.byRank
 	for _, lb := range ch.betaLens {
 		for e := lb; e <= s.n; e++ {
 			for _, ri := range ch.byBeta[string(s.t[e-lb:e])] {
-				s.addRule(ri, e)
+				r := rank[ri]
+				s.ruleSet[r>>6] |= 1 << (r & 63)
+				s.ruleEnds[r] |= 1 << e
 			}
 		}
 	}
-	sortRules(s.rules)
+	s.rules = s.rules[:0]
+	for wi, word := range s.ruleSet {
+		for word != 0 {
+			r := wi<<6 | bits.TrailingZeros64(word)
+			word &= word - 1
+			ri := byRank[r]
+			cr := &ch.rules[ri]
+			s.rules = append(s.rules, appRule{src: ri, alpha: cr.alpha, la: len(cr.alpha), lb: len(cr.beta), cost: cr.cost, ends: s.ruleEnds[r]})
+			s.ruleEnds[r] = 0
+		}
+		s.ruleSet[wi] = 0
+	}
 	s.ruleMask = s.ruleMask[:0]
 	var rm [4]uint64
 	for i := range s.rules {
@@ -245,26 +285,26 @@ func grow(b []float32, n int) []float32 {
 	return b[:n]
 }
 
-// addRule records that rule ri's typed side ends at e.
-func (s *search) addRule(ri int32, e int) {
-	r := &s.ch.rules[ri]
-	for i := range s.rules {
-		if s.rules[i].src == ri {
-			s.rules[i].ends |= 1 << e
-			return
-		}
-	}
-	s.rules = append(s.rules, appRule{src: ri, alpha: r.alpha, la: len(r.alpha), lb: len(r.beta), cost: r.cost, ends: 1 << e})
+// ruleOrder lists a channel's rules by cost, rules of equal cost by index,
+// for prepare. It is immutable once built and may be shared by searches.
+type ruleOrder struct {
+	ch     *channel
+	rank   []int32 // rank[i]: position of ch.rules[i] in the order
+	byRank []int32 // byRank[r]: the rule at position r
 }
 
-// sortRules orders rules by cost (insertion sort: the lists are short and
-// this allocates nothing).
-func sortRules(r []appRule) {
-	for i := 1; i < len(r); i++ {
-		for j := i; j > 0 && r[j].cost < r[j-1].cost; j-- {
-			r[j], r[j-1] = r[j-1], r[j]
-		}
+// newRuleOrder orders ch's rules. Cost: O(R log R) for R rules.
+func newRuleOrder(ch *channel) *ruleOrder {
+	n := len(ch.rules)
+	o := &ruleOrder{ch: ch, rank: make([]int32, n), byRank: make([]int32, n)}
+	for i := range o.byRank {
+		o.byRank[i] = int32(i)
 	}
+	slices.SortStableFunc(o.byRank, func(a, b int32) int { return cmp.Compare(ch.rules[a].cost, ch.rules[b].cost) })
+	for r, ri := range o.byRank {
+		o.rank[ri] = int32(r)
+	}
+	return o
 }
 
 // run walks the lexicon from its start state and collects every word
@@ -404,7 +444,7 @@ func (s *search) allowed(row, prev []float32, m float32, last byte, parts []part
 		}
 	}
 	for _, p := range parts {
-		add(s.rules[p.rule].alpha[p.k])
+		add(p.next)
 	}
 	// Rules are sorted by cost: the first k within budget contribute their
 	// first bytes, accumulated in ruleMask[k-1].
@@ -449,14 +489,15 @@ func (s *search) extend(lo, hi int, m float32, from int32, c byte) int {
 	}
 	for i := lo; i < hi; i++ {
 		p := s.act[i]
-		r := &s.rules[p.rule]
-		if r.alpha[p.k] != c {
+		if p.next != c {
 			continue
 		}
+		r := &s.rules[p.rule]
 		p.k++
 		if int(p.k) == r.la {
 			s.done = append(s.done, p)
 		} else {
+			p.next = r.alpha[p.k]
 			s.act = append(s.act, p)
 		}
 	}
@@ -469,6 +510,7 @@ func (s *search) extend(lo, hi int, m float32, from int32, c byte) int {
 		if r.la == 1 {
 			s.done = append(s.done, p)
 		} else {
+			p.next = r.alpha[1]
 			s.act = append(s.act, p)
 		}
 	}
@@ -491,6 +533,7 @@ func (s *search) computeRowDepth(d int) float32 {
 // its grandparent's row (slot gs), and the rules in s.done; it stores the
 // row's minimum in mins[rs] and returns it.
 func (s *search) computeRow(rs, ps, gs, d int, c, pc byte) float32 {
+	s.rowsDone++
 	w, n, ch := s.w, s.n, s.ch
 	P := s.rows[ps*w : (ps+1)*w]
 	R := s.rows[rs*w : (rs+1)*w]

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"sort"
+	"strings"
 	"testing"
 
 	"github.com/blevesearch/vellum"
@@ -142,6 +143,46 @@ func TestLeadCost(t *testing.T) {
 			b := ch.distance(tc.mid, tc.midIntended)
 			if diff := a - b; math.Abs(float64(diff-tc.extra)) > 1e-4 {
 				t.Errorf("distance(%q,%q) − distance(%q,%q) = %v, want %v", tc.first, tc.firstIntended, tc.mid, tc.midIntended, diff, tc.extra)
+			}
+		})
+	}
+}
+
+// TestPrepareRules checks the multi-letter rules prepare lists for a typed
+// word against a direct scan of the error model (every rule whose typed
+// side occurs in the word, at every position where it ends), on words of
+// the development misspellings list (corpora/misspellings-dev.tsv), and
+// that the list is ordered by cost, as the search's early exits assume.
+func TestPrepareRules(t *testing.T) {
+	c, _, _ := devCorrector(t, Options{})
+	ch := c.ch
+	pairs := devPairs(t)
+	for i := 0; i < len(pairs); i += 97 {
+		typed := strings.ToLower(pairs[i].Typed)
+		if len(typed) > maxTyped || !latinOnly(typed) {
+			continue
+		}
+		t.Run(typed, func(t *testing.T) {
+			want := map[int32]uint64{}
+			for ri, r := range ch.rules {
+				for e := len(r.beta); e <= len(typed); e++ {
+					if typed[e-len(r.beta):e] == r.beta {
+						want[int32(ri)] |= 1 << e
+					}
+				}
+			}
+			var s search
+			s.reset(ch, c.lex, typed, 13, len(typed)+maxExtra)
+			if len(s.rules) != len(want) {
+				t.Errorf("%d rules listed, scan finds %d", len(s.rules), len(want))
+			}
+			for k, r := range s.rules {
+				if want[r.src] != r.ends {
+					t.Errorf("rule %q→%q: ends %b, scan %b", ch.rules[r.src].alpha, ch.rules[r.src].beta, r.ends, want[r.src])
+				}
+				if k > 0 && r.cost < s.rules[k-1].cost {
+					t.Errorf("rule %d costs %v, less than the one before (%v)", k, r.cost, s.rules[k-1].cost)
+				}
 			}
 		})
 	}
