@@ -51,7 +51,8 @@ func benchModel(b *testing.B, qbits int) built {
 // BenchmarkTopK measures next-word prediction for 2-word contexts taken
 // from the test text, with and without a typed-prefix restriction, and a
 // bigram-context LogProb, for the version-2 layout (plain word IDs, the
-// baseline) and the current one (ranked records at the highest order).
+// baseline), version 3 (ranked records at the highest order), version 4
+// (and Elias-Fano word groups) and the current one (and coded ranks).
 func BenchmarkTopK(b *testing.B) {
 	x := benchModel(b, 8)
 	test := strings.Fields(readFile(b, filepath.Join("testdata", "opticks-test.txt")))
@@ -68,7 +69,7 @@ func BenchmarkTopK(b *testing.B) {
 		})
 		prefixes = append(prefixes, [2]uint32{uint32(lo), uint32(hi)})
 	}
-	for _, ver := range []int{2, sectionVersion} {
+	for _, ver := range []int{2, 3, 4, sectionVersion} {
 		sec, err := AppendSection(nil, x.b, LayoutOptions{QuantBits: 8, Version: ver})
 		if err != nil {
 			b.Fatal(err)
@@ -127,11 +128,15 @@ var layoutText = flag.String("layout-text", "", "text file for BenchmarkLayout's
 // BenchmarkLayout reports the size of the n-gram section per stored n-gram,
 // in all and for each kind of array (codebooks, words, probabilities, ...):
 // on the Opticks order-3 model at 8 bits and lossless, and, with
-// -layout-text, on an order-3 model of that text at 8 bits.
+// -layout-text, on an order-3 model of that text at 8 bits; each in the
+// current layout, in version 4 (ranks of fixed width) and in version 3
+// (plain bigram words), for comparison.
 func BenchmarkLayout(b *testing.B) {
 	x := benchModel(b, 0)
 	for _, q := range []int{8, 0} {
-		b.Run(fmt.Sprintf("opticks/qbits=%d", q), func(b *testing.B) { benchLayout(b, x.b, q) })
+		for _, v := range []int{sectionVersion, 4, 3} {
+			b.Run(fmt.Sprintf("opticks/v%d/qbits=%d", v, q), func(b *testing.B) { benchLayout(b, x.b, q, v) })
+		}
 	}
 	if *layoutText == "" {
 		return
@@ -148,17 +153,19 @@ func BenchmarkLayout(b *testing.B) {
 	if err != nil {
 		b.Fatal(err)
 	}
-	b.Run("text/qbits=8", func(b *testing.B) { benchLayout(b, m, 8) })
+	for _, v := range []int{sectionVersion, 4, 3} {
+		b.Run(fmt.Sprintf("text/v%d/qbits=8", v), func(b *testing.B) { benchLayout(b, m, 8, v) })
+	}
 }
 
-// benchLayout lays m out at q bits and reports bytes per n-gram, in all
-// and per array kind.
-func benchLayout(b *testing.B, m *Backoff, q int) {
+// benchLayout lays m out at q bits in layout version v and reports bytes
+// per n-gram, in all and per array kind.
+func benchLayout(b *testing.B, m *Backoff, q, v int) {
 	b.Helper()
 	var sec []byte
 	for b.Loop() {
 		var err error
-		if sec, err = AppendSection(sec[:0], m, LayoutOptions{QuantBits: q}); err != nil {
+		if sec, err = AppendSection(sec[:0], m, LayoutOptions{QuantBits: q, Version: v}); err != nil {
 			b.Fatal(err)
 		}
 	}
@@ -181,6 +188,7 @@ func arrayBytes(b *testing.B, sec []byte) map[string]int {
 		tagHas: "context-bits", tagHasRank: "context-bits", tagStart: "starts", tagStartLow: "starts",
 		tagStartHigh: "starts", tagStartSel: "starts", tagBow: "bows", tagBig: "top-lists",
 		tagBigRank: "top-lists", tagTop: "top-lists", tagRecords: "records", tagRecCount: "records",
+		tagGroups: "words", tagGroupLow: "group-offsets", tagGroupHigh: "group-offsets", tagGroupSel: "group-offsets",
 	}
 	le := binary.LittleEndian
 	out := map[string]int{}
@@ -189,7 +197,7 @@ func arrayBytes(b *testing.B, sec []byte) map[string]int {
 		d := sec[headerSize+i*dirEntrySize:]
 		kind := le.Uint32(d) >> 8
 		name, ok := names[kind]
-		if !ok && kind >= tagTree && kind < tagRecords {
+		if !ok && kind >= tagTree && kind < tagRecords { // kinds 16..39
 			name, ok = "tree", true
 		}
 		if !ok {

@@ -15,6 +15,12 @@ import (
 //     with the start array; the start array begins at 0, rises strictly (a
 //     context has at least one successor) and ends at the next order's size;
 //   - each successor group is sorted strictly by word;
+//   - version 4: the word groups follow each other without gaps, each of
+//     the length its word count gives it, with exactly one set bit per word
+//     in its high part and every select sample at the bit it names;
+//   - version 5: each group of coded ranks likewise (ranks rising strictly
+//     below the size of their suffix's group), and the group's length
+//     matching the form and count it announces;
 //   - a context has a top list exactly when its group is longer than
 //     the threshold (TopListLen before version 3, 32 since), the
 //     top-list bits agree with their rank directory and the lists fill
@@ -34,7 +40,7 @@ func (m *Model) Check() error {
 		if err := checkCodes(l.probs, l.probBook, n, "probability"); err != nil {
 			return err
 		}
-		if n > 1 && !l.ranked { // ranks are checked with their groups
+		if n > 1 && !l.ranked && !l.ef { // ranks and word groups are checked with their groups
 			for p := range l.size {
 				if w := l.words.at(p); w >= uint64(V) {
 					return corrupt(0, "order %d entry %d: word id %d of %d", n, p, w, V)
@@ -126,6 +132,7 @@ func (m *Model) checkSuccessors(l *level) error {
 	}
 	b := 0 // top lists seen
 	nctx := 0
+	var gbits uint64 // bits of the word groups seen
 	for e := range l.size {
 		if !l.has.get(e) {
 			continue
@@ -145,13 +152,32 @@ func (m *Model) checkSuccessors(l *level) error {
 			return corrupt(0, "order %d context %d: successor group [%d, %d) cannot be read", n, c, lo64, hi64)
 		}
 		lo, hi := nd.lo, nd.hi
+		if next.ef {
+			if g := l.gstart.at(c); g != gbits {
+				return corrupt(0, "order %d context %d: word group at bit %d, the groups before it end at %d", n, c, g, gbits)
+			}
+			g := &nd.eg
+			if why := g.check(m.vocab); why != "" {
+				return corrupt(0, "order %d context %d: word group: %s", n, c, why)
+			}
+			gbits += groupShape(hi-lo, m.vocab).size
+		}
+		if nd.efRanks {
+			var g efGroup
+			if !next.ranksOf(&nd, &g) {
+				return corrupt(0, "order %d context %d: coded ranks do not fit the stream", n, c)
+			}
+			if why := g.check(nd.sn); why != "" {
+				return corrupt(0, "order %d context %d: coded ranks: %s", n, c, why)
+			}
+		}
 		if nd.ranked {
 			records += hi - lo
 			for p := lo; p < hi; p++ {
 				if r := next.rankAt(&nd, p); r >= uint64(nd.sn) || (p > lo && r <= next.rankAt(&nd, p-1)) {
 					return corrupt(0, "order %d context %d: rank %d of record %d out of order or past its suffix's %d successors", n, c, r, p, nd.sn)
 				}
-				if code := bitsAt(next.recs, nd.base+uint64(p)*nd.rec+uint64(nd.rw), next.recCode); next.probBook != nil && code >= uint64(len(next.probBook)) {
+				if code := next.codeAt(&nd, p); next.probBook != nil && code >= uint64(len(next.probBook)) {
 					return corrupt(0, "order %d context %d: record %d code %d, codebook has %d", n, c, p, code, len(next.probBook))
 				}
 			}
@@ -197,6 +223,9 @@ func (m *Model) checkSuccessors(l *level) error {
 			}
 		}
 		b++
+	}
+	if next.ef && gbits != next.efBits {
+		return corrupt(0, "order %d: word groups hold %d bits, the stream %d", n+1, gbits, next.efBits)
 	}
 	if next.ranked && records != next.size {
 		return corrupt(0, "order %d: groups hold %d ranked records, the count says %d", n+1, records, next.size)

@@ -102,3 +102,128 @@ func TestCheckFindsDamage(t *testing.T) {
 		})
 	}
 }
+
+// TestCheckFindsGroupDamage flips single bits inside a version-4 word
+// group long enough to carry select samples (the successors of a frequent
+// word in the Opticks order-3 model): a select sample, a bit of the high
+// part, and the end of the group offsets. Loading or Check must report
+// each as ErrCorrupt, and queries must not panic.
+func TestCheckFindsGroupDamage(t *testing.T) {
+	x := buildText(t, readFile(t, filepath.Join("testdata", "opticks-train.txt")), 3, ScanOptions{Pretokenized: true}, 8)
+	base, err := AppendSection(nil, x.b, LayoutOptions{QuantBits: 8})
+	if err != nil {
+		t.Fatal(err)
+	}
+	m, err := LoadSection(base)
+	if err != nil {
+		t.Fatal(err)
+	}
+	// The first order-1 context with both kinds of samples.
+	u := &m.lv[0]
+	var g efGroup
+	found := false
+	for c := 0; c+1 < u.start.n && !found; c++ {
+		lo, hi := int(u.start.at(c)), int(u.start.at(c+1))
+		if sh := groupShape(hi-lo, m.vocab); sh.n1 > 0 && sh.n0 > 0 {
+			found = g.open(nil, u.gstart.at(c), hi-lo, m.vocab, m.lv[1].efBits)
+		}
+	}
+	if !found {
+		t.Fatal("no word group with select samples in the Opticks model")
+	}
+	d := directory(t, base)[tag(tagGroups, 2)]
+	flip := func(bit uint64) func([]byte) {
+		return func(s []byte) { s[d.off+bit/8] ^= 1 << (bit % 8) }
+	}
+	cases := []struct {
+		name  string
+		spoil func([]byte)
+	}{
+		{"set-bit sample", flip(g.sbase)},
+		{"clear-bit sample", flip(g.sbase + uint64(g.n1)*uint64(g.sw))},
+		{"first high bit", flip(g.hbase)},
+		{"last high bit", flip(g.hbase + g.hlen - 1)},
+		{"group offsets end", func(s []byte) {
+			e := directory(t, s)[tag(tagGroupLow, 1)]
+			setVal(t, s, tag(tagGroupLow, 1), int(e.n)-1, getVal(t, s, tag(tagGroupLow, 1), int(e.n)-1)^1)
+		}},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			s := append([]byte(nil), base...)
+			tc.spoil(s)
+			m, err := LoadSection(s)
+			if err != nil {
+				if !errors.Is(err, ErrCorrupt) {
+					t.Fatalf("LoadSection = %v, want ErrCorrupt", err)
+				}
+				return
+			}
+			if err := exercise(t, m); !errors.Is(err, ErrCorrupt) {
+				t.Errorf("Check() = %v, want ErrCorrupt", err)
+			}
+		})
+	}
+}
+
+// TestCheckFindsRankDamage flips single bits inside a version-5 group of
+// coded ranks that carries select samples: a set-bit sample, a clear-bit
+// sample, a bit of the high part, and the group's form bit. Loading or
+// Check must report each as ErrCorrupt, and queries must not panic.
+func TestCheckFindsRankDamage(t *testing.T) {
+	x := buildText(t, readFile(t, filepath.Join("testdata", "opticks-train.txt")), 3, ScanOptions{Pretokenized: true}, 8)
+	base, err := AppendSection(nil, x.b, LayoutOptions{QuantBits: 8, Version: 5})
+	if err != nil {
+		t.Fatal(err)
+	}
+	m, err := LoadSection(base)
+	if err != nil {
+		t.Fatal(err)
+	}
+	keys, ok := m.levelKeys(2)
+	if !ok {
+		t.Fatal("levelKeys(2) fails on a valid section")
+	}
+	var g efGroup
+	var form uint64 // bit offset of the group's form bit
+	found := false
+	for e := 0; e < m.lv[1].size && !found; e++ {
+		nd, ok := m.groupNode(&m.lv[1], e, keys[2*e:2*e+2])
+		if ok && nd.efRanks && nd.hi > efSample1 && m.lv[2].ranksOf(&nd, &g) && g.n0 > 0 {
+			form = nd.base - uint64(nd.rw) - 1
+			found = true
+		}
+	}
+	if !found {
+		t.Fatal("no group of coded ranks with both kinds of samples in the Opticks model")
+	}
+	d := directory(t, base)[tag(tagRecords, 3)]
+	flip := func(bit uint64) func([]byte) {
+		return func(s []byte) { s[d.off+bit/8] ^= 1 << (bit % 8) }
+	}
+	cases := []struct {
+		name  string
+		spoil func([]byte)
+	}{
+		{"set-bit sample", flip(g.sbase)},
+		{"clear-bit sample", flip(g.sbase + uint64(g.n1)*uint64(g.sw))},
+		{"high bit", flip(g.hbase + g.hlen/2)},
+		{"form bit", flip(form)},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			s := append([]byte(nil), base...)
+			tc.spoil(s)
+			m, err := LoadSection(s)
+			if err != nil {
+				if !errors.Is(err, ErrCorrupt) {
+					t.Fatalf("LoadSection = %v, want ErrCorrupt", err)
+				}
+				return
+			}
+			if err := exercise(t, m); !errors.Is(err, ErrCorrupt) {
+				t.Errorf("Check() = %v, want ErrCorrupt", err)
+			}
+		})
+	}
+}

@@ -26,12 +26,18 @@ type level struct {
 	recs    []uint64
 	recBits uint64
 	recCode uint // probability code width inside a record
+	choose  bool // version 5: each group of records starts with its form bit
+	// word groups (version 4, orders 2..N−1): see efgroup.go
+	ef     bool
+	efw    []uint64
+	efBits uint64
 	// successors of this level's entries in the next level
-	has   rankBits
-	start monoSeq
-	bow   vec
-	big   rankBits
-	top   vec
+	has    rankBits
+	start  monoSeq
+	gstart monoSeq // version 4: bit offset of each context's word group in the next level
+	bow    vec
+	big    rankBits
+	top    vec
 }
 
 // Order returns the highest n-gram order.
@@ -67,7 +73,8 @@ func (m *Model) children(l *level, e int) (lo, hi, c int, ok bool) {
 	if c+1 >= l.start.n {
 		return 0, 0, 0, false
 	}
-	lo, hi = int(l.start.at(c)), int(l.start.at(c+1))
+	slo, shi := l.start.at2(c)
+	lo, hi = int(slo), int(shi)
 	limit := m.lv[l.n].size
 	if m.lv[l.n].ranked {
 		limit = int(m.lv[l.n].recBits) // starts are bit offsets into the records
@@ -117,6 +124,43 @@ type node struct {
 	rw      uint   // rank width
 	rec     uint64 // record width
 	slo, sn int    // suffix group: first entry and size, one level down
+	// eg reads the word group of a plain node, or the suffix group of a
+	// ranked node, when their level stores word groups (efgroup.go).
+	eg efGroup
+	// version 5: a ranked group whose ranks are Elias-Fano coded from
+	// bit base on (see ranksOf), its probability codes from cbase on
+	efRanks bool
+	cbase   uint64
+}
+
+// contextNode sets nd to the successor group of entry e of level l as a
+// plain node (ranked records still need their suffix: see rankedGroup).
+func (m *Model) contextNode(l *level, e int, nd *node) bool {
+	lo, hi, c, ok := m.children(l, e)
+	if !ok {
+		return false
+	}
+	*nd = node{lo: lo, hi: hi, bow: l.bowAt(c), lvl: l.n, ctx: c}
+	if m.lv[l.n].ef {
+		next := &m.lv[l.n]
+		base, ok := m.groupBase(l, c)
+		if !ok || !nd.eg.open(next.efw, base, hi-lo, m.vocab, next.efBits) {
+			return false
+		}
+	}
+	return true
+}
+
+// searchNode returns the entry of word w in a plain node's group, or -1.
+func (m *Model) searchNode(nd *node, w uint32) int {
+	if m.lv[nd.lvl].ef {
+		g := &nd.eg
+		if i, ok := g.lower(uint64(w)); ok {
+			return nd.lo + i
+		}
+		return -1
+	}
+	return m.lv[nd.lvl].search(nd.lo, nd.hi, w)
 }
 
 // contexts fills dst with the successor groups of every suffix of ctx that is
@@ -132,12 +176,10 @@ func (m *Model) contexts(ctx []uint32, dst *[MaxOrder]node) []node {
 		if !found {
 			continue
 		}
-		l := &m.lv[len(h)-1]
-		lo, hi, c, ok := m.children(l, e)
-		if !ok {
-			continue
+		out = out[:len(out)+1]
+		if !m.contextNode(&m.lv[len(h)-1], e, &out[len(out)-1]) {
+			out = out[:len(out)-1]
 		}
-		out = append(out, node{lo: lo, hi: hi, bow: l.bowAt(c), lvl: len(h), ctx: c})
 	}
 	// Only the longest context can own ranked records; its suffix is next.
 	if len(out) > 0 && m.lv[out[0].lvl].ranked {
@@ -164,7 +206,7 @@ func (m *Model) score(nodes []node, w uint32) float64 {
 	for i := 0; i < len(nodes); i++ {
 		nd := &nodes[i]
 		if !nd.ranked {
-			if p := m.lv[nd.lvl].search(nd.lo, nd.hi, w); p >= 0 {
+			if p := m.searchNode(nd, w); p >= 0 {
 				return acc + m.lv[nd.lvl].prob(p)
 			}
 			acc += nd.bow

@@ -18,18 +18,33 @@ type monoSeq struct {
 	lbits  uint     // L
 	high   []uint64 // unary high parts
 	hbits  int      // number of valid bits in high
-	sample vec      // position in high of set bit 64·j
+	sample vec      // position in high of set bit every()·j
+	dense  bool     // a sample every monoSampleDense values instead of monoSample
 }
 
-// monoSample is the distance, in set bits, between samples.
-const monoSample = 64
+// monoSample is the distance, in set bits, between samples;
+// monoSampleDense that of a dense sequence (the word-group offsets of
+// version 4, read on every lookup).
+const (
+	monoSample      = 64
+	monoSampleDense = 16
+)
+
+// every returns the sample distance of s.
+func (s *monoSeq) every() int {
+	if s.dense {
+		return monoSampleDense
+	}
+	return monoSample
+}
 
 func (s *monoSeq) at(i int) uint64 {
 	if s.plain {
 		return s.vals.at(i)
 	}
-	p := int(s.sample.at(i / monoSample)) // position of set bit number i − i%64
-	k := i % monoSample                   // set bits still to skip
+	d := s.every()
+	p := int(s.sample.at(i / d)) // position of set bit number i − i%d
+	k := i % d                   // set bits still to skip
 	w := p >> 6
 	if w >= len(s.high) {
 		return 0
@@ -47,15 +62,53 @@ func (s *monoSeq) at(i int) uint64 {
 		}
 		x = s.high[w]
 	}
-	for ; k > 0; k-- {
-		x &= x - 1
-	}
-	pos := w<<6 + bits.TrailingZeros64(x)
+	pos := w<<6 + int(select64(x, uint(k)))
 	return uint64(pos-i)<<s.lbits | s.low.at(i)
 }
 
+// at2 returns values i and i + 1 (i + 1 < n) with one select: the high
+// part of value i + 1 is at the next set bit.
+func (s *monoSeq) at2(i int) (uint64, uint64) {
+	if s.plain {
+		return s.vals.at(i), s.vals.at(i + 1)
+	}
+	d := s.every()
+	p := int(s.sample.at(i / d))
+	k := i % d
+	w := p >> 6
+	if w >= len(s.high) {
+		return 0, 0
+	}
+	x := s.high[w] &^ (1<<(uint(p)&63) - 1)
+	for {
+		c := bits.OnesCount64(x)
+		if k < c {
+			break
+		}
+		k -= c
+		w++
+		if w >= len(s.high) {
+			return 0, 0 // only a corrupt section runs out of set bits
+		}
+		x = s.high[w]
+	}
+	b := select64(x, uint(k))
+	pos := w<<6 + int(b)
+	// The next set bit: in the rest of this word, or in a later one.
+	x &^= 2<<b - 1
+	for x == 0 {
+		w++
+		if w >= len(s.high) {
+			return 0, 0
+		}
+		x = s.high[w]
+	}
+	pos2 := w<<6 + bits.TrailingZeros64(x)
+	return uint64(pos-i)<<s.lbits | s.low.at(i), uint64(pos2-i-1)<<s.lbits | s.low.at(i+1)
+}
+
 // encodeMono returns the Elias-Fano arrays of vals (non-decreasing).
-func encodeMono(vals []uint64) (low []uint64, lbits uint, high []uint64, hbits int, sample []uint64) {
+func encodeMono(vals []uint64, every int) (low []uint64, lbits uint, high []uint64, hbits int, sample []uint64) {
 	n := len(vals)
 	u := uint64(0)
 	if n > 0 {
@@ -73,7 +126,7 @@ func encodeMono(vals []uint64) (low []uint64, lbits uint, high []uint64, hbits i
 		lo[i] = v & (1<<lbits - 1)
 		p := int(v>>lbits) + i
 		high[p>>6] |= 1 << (uint(p) & 63)
-		if i%monoSample == 0 {
+		if i%every == 0 {
 			sample = append(sample, uint64(p))
 		}
 	}

@@ -23,7 +23,7 @@ func TestMonoSeqRoundTrip(t *testing.T) {
 				}
 				vals[i] = v
 			}
-			low, lb, high, hb, sel := encodeMono(vals)
+			low, lb, high, hb, sel := encodeMono(vals, monoSample)
 			s := monoSeq{n: n, low: newVec(low, n, lb), lbits: lb, high: high[:(hb+63)/64], hbits: hb, sample: newVec(packVec(sel, bitsFor(uint64(hb))), len(sel), bitsFor(uint64(hb)))}
 			for i, want := range vals {
 				if got := s.at(i); got != want {
@@ -41,7 +41,7 @@ func TestMonoSeqRoundTrip(t *testing.T) {
 func TestLayoutVersionsAgree(t *testing.T) {
 	for _, order := range []int{3, 4} {
 		x := buildText(t, smallText(t), order, ScanOptions{Pretokenized: true}, 8)
-		versions := []int{1, 2, 3}
+		versions := []int{1, 2, 3, 4, 5}
 		models := make([]*Model, len(versions))
 		for i, ver := range versions {
 			sec, err := AppendSection(nil, x.b, LayoutOptions{QuantBits: 8, Version: ver})
@@ -57,6 +57,11 @@ func TestLayoutVersionsAgree(t *testing.T) {
 			if err := models[i].Check(); err != nil {
 				t.Fatalf("order %d version %d: Check: %v", order, ver, err)
 			}
+		}
+		if sec, err := AppendSection(nil, x.b, LayoutOptions{QuantBits: 8}); err != nil {
+			t.Fatal(err)
+		} else if got := binary.LittleEndian.Uint32(sec); got != sectionVersion {
+			t.Fatalf("order %d: the default layout of a suffix-closed model is version %d, want %d", order, got, sectionVersion)
 		}
 		V := uint32(models[0].VocabSize())
 		the, of := x.ids(t, []string{"the"})[0], x.ids(t, []string{"of"})[0]
@@ -117,6 +122,33 @@ func damage(sec []byte) {
 			m.LogProb(ctx, 2)
 			m.TopK(ctx, 0, V, 3, nil)
 			m.TopK(ctx, V/3, V/2, 3, nil)
+		}
+	}
+}
+
+// TestMonoSeqAt2 checks that at2 reads the same two values as two calls of
+// at, on the Elias-Fano and the plain form.
+func TestMonoSeqAt2(t *testing.T) {
+	rng := rand.New(rand.NewPCG(21, 2))
+	for _, n := range []int{2, 3, 64, 65, 129, 3000} {
+		for _, gap := range []int{1, 3, 300} {
+			vals := make([]uint64, n)
+			for i := 1; i < n; i++ {
+				vals[i] = vals[i-1] + uint64(rng.IntN(gap+1))
+			}
+			low, lb, high, hb, sel := encodeMono(vals, monoSample)
+			sw := bitsFor(uint64(hb))
+			seqs := []monoSeq{
+				{n: n, low: newVec(low, n, lb), lbits: lb, high: high[:(hb+63)/64], hbits: hb, sample: newVec(packVec(sel, sw), len(sel), sw)},
+				{n: n, plain: true, vals: newVec(packVec(vals, 64), n, 64)},
+			}
+			for _, s := range seqs {
+				for i := range n - 1 {
+					if a, b := s.at2(i); a != vals[i] || b != vals[i+1] {
+						t.Fatalf("n=%d gap=%d plain=%v: at2(%d) = %d, %d; want %d, %d", n, gap, s.plain, i, a, b, vals[i], vals[i+1])
+					}
+				}
+			}
 		}
 	}
 }

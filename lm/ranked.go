@@ -21,11 +21,19 @@ import "slices"
 // bit length over w + c. Ranks rise strictly inside a group because suffix
 // groups are sorted by word.
 
+// Version 5 lets each group choose the cheaper of two forms, named by the
+// group's first bit: 0, the records above; 1, the rank count n − 1 in w
+// bits, then the ranks as one Elias-Fano code over [0, F(h′)) (efgroup.go),
+// then the n probability codes of c bits. Long groups of ranks rising
+// densely through their suffix's successors take a few bits per rank
+// instead of w.
+
 // rankRecords lays out the highest order of b as ranked records with the
-// given probability codes of code width cw. It returns the stream and the
-// bit offset of each successor group (plus the total), or ok = false when b
-// is not suffix-closed or its order is below 3.
-func rankRecords(b *Backoff, codes []uint64, cw uint) (recs bitStream, starts []uint64, ok bool) {
+// given probability codes of code width cw, each group in the cheaper of
+// the two forms of version 5 when choose is set. It returns the stream and
+// the bit offset of each successor group (plus the total), or ok = false
+// when b is not suffix-closed or its order is below 3.
+func rankRecords(b *Backoff, codes []uint64, cw uint, choose bool) (recs bitStream, starts []uint64, ok bool) {
 	N := b.Order()
 	if N < 3 {
 		return bitStream{}, nil, false
@@ -41,14 +49,35 @@ func rankRecords(b *Backoff, codes []uint64, cw uint) (recs bitStream, starts []
 		if slo == shi {
 			return bitStream{}, nil, false
 		}
-		w := bitsFor(uint64(shi - slo - 1))
+		F := shi - slo
+		w := bitsFor(uint64(F - 1))
 		starts = append(starts, recs.n)
+		ranks := make([]uint64, e-g)
 		for i := g; i < e; i++ {
 			s := mid.Find(top.Key(i)[1:])
 			if s < slo || s >= shi {
 				return bitStream{}, nil, false
 			}
-			recs.put(uint64(s-slo), w)
+			ranks[i-g] = uint64(s - slo)
+		}
+		n := uint64(len(ranks))
+		if choose {
+			coded := F >= 3 && uint64(w)+groupShape(len(ranks), F).size < n*uint64(w)
+			if !coded {
+				recs.put(0, 1)
+			} else {
+				recs.put(1, 1)
+				recs.put(n-1, w)
+				putGroup(&recs, ranks, F)
+				for i := g; i < e; i++ {
+					recs.put(codes[i], cw)
+				}
+				g = e
+				continue
+			}
+		}
+		for i := g; i < e; i++ {
+			recs.put(ranks[i-g], w)
 			recs.put(codes[i], cw)
 		}
 		g = e
@@ -82,7 +111,8 @@ func searchKeys(l *Level, f func([]uint32) bool) int {
 // rankedGroup completes a context node whose successors are ranked records:
 // sfx is the node of the context's suffix, whose group (one level down)
 // holds the words the ranks point to. It returns false when the group's bit
-// range does not divide into records (only a damaged section does that).
+// range does not divide into records, or does not hold the coded ranks it
+// announces (only a damaged section does that).
 func (m *Model) rankedGroup(nd *node, sfx *node) bool {
 	l := &m.lv[nd.lvl]
 	F := sfx.hi - sfx.lo
@@ -91,21 +121,65 @@ func (m *Model) rankedGroup(nd *node, sfx *node) bool {
 	}
 	w := bitsFor(uint64(F - 1))
 	rec := uint64(w + l.recCode)
+	base := uint64(nd.lo)
 	bitsLen := uint64(nd.hi - nd.lo)
+	nd.efRanks = false
+	if l.choose {
+		if bitsLen == 0 {
+			return false
+		}
+		coded := bitsAt(l.recs, base, 1) == 1
+		base++
+		bitsLen--
+		if coded {
+			if F < 3 || bitsLen < uint64(w) {
+				return false
+			}
+			n := bitsAt(l.recs, base, w) + 1
+			if n > uint64(F) {
+				return false
+			}
+			size := groupShape(int(n), F).size
+			if uint64(w)+size+n*uint64(l.recCode) != bitsLen {
+				return false
+			}
+			nd.efRanks = true
+			nd.cbase = base + uint64(w) + size
+			base += uint64(w) // the ranks' group
+			bitsLen = n * rec // so that the count below reads n
+		}
+	}
 	if bitsLen%rec != 0 {
 		return false
 	}
 	nd.ranked = true
-	nd.base = uint64(nd.lo)
+	nd.base = base
 	nd.rw, nd.rec = w, rec
 	nd.slo, nd.sn = sfx.lo, F
+	nd.eg = sfx.eg
 	nd.lo, nd.hi = 0, int(bitsLen/rec)
 	return true
 }
 
-// rankAt returns the rank stored in record p of a ranked node.
+// rankAt returns the rank stored in record p of a ranked node (≥ the
+// suffix group's size when the group is damaged).
 func (l *level) rankAt(nd *node, p int) uint64 {
+	if nd.efRanks {
+		var g efGroup
+		if !l.ranksOf(nd, &g) {
+			return ^uint64(0)
+		}
+		return g.at(p)
+	}
 	return bitsAt(l.recs, nd.base+uint64(p)*nd.rec, nd.rw)
+}
+
+// codeAt returns the probability code of record p of a ranked node.
+func (l *level) codeAt(nd *node, p int) uint64 {
+	if nd.efRanks {
+		return bitsAt(l.recs, nd.cbase+uint64(p)*uint64(l.recCode), l.recCode)
+	}
+	return bitsAt(l.recs, nd.base+uint64(p)*nd.rec+uint64(nd.rw), l.recCode)
 }
 
 // wordAt returns the word ID of entry p (a position in [nd.lo, nd.hi)) of
@@ -114,11 +188,19 @@ func (l *level) rankAt(nd *node, p int) uint64 {
 func (m *Model) wordAt(nd *node, p int) uint64 {
 	l := &m.lv[nd.lvl]
 	if !nd.ranked {
+		if l.ef {
+			g := &nd.eg
+			return min(g.at(p-nd.lo), uint64(m.vocab))
+		}
 		return l.words.at(p)
 	}
 	r := l.rankAt(nd, p)
 	if r >= uint64(nd.sn) {
 		return uint64(m.vocab)
+	}
+	if m.lv[nd.lvl-1].ef {
+		g := &nd.eg
+		return min(g.at(int(r)), uint64(m.vocab))
 	}
 	return m.lv[nd.lvl-1].words.at(nd.slo + int(r))
 }
@@ -129,7 +211,7 @@ func (m *Model) probAt(nd *node, p int) float64 {
 	if !nd.ranked {
 		return l.prob(p)
 	}
-	return l.probBook.value(bitsAt(l.recs, nd.base+uint64(p)*nd.rec+uint64(nd.rw), l.recCode))
+	return l.probBook.value(l.codeAt(nd, p))
 }
 
 // lowerIn returns the first position in [lo, hi) of a node's group whose
@@ -137,16 +219,36 @@ func (m *Model) probAt(nd *node, p int) float64 {
 func (m *Model) lowerIn(nd *node, lo, hi int, w uint32) int {
 	l := &m.lv[nd.lvl]
 	if !nd.ranked {
+		if l.ef {
+			g := &nd.eg
+			i, _ := g.lower(uint64(w))
+			return min(max(nd.lo+i, lo), hi)
+		}
 		return l.lowerBound(lo, hi, w)
 	}
 	// The first suffix successor ≥ w, as a rank; ranks ascend with words.
-	r := uint64(m.lv[nd.lvl-1].lowerBound(nd.slo, nd.slo+nd.sn, w) - nd.slo)
+	var r uint64
+	if m.lv[nd.lvl-1].ef {
+		g := &nd.eg
+		i, _ := g.lower(uint64(w))
+		r = uint64(i)
+	} else {
+		r = uint64(m.lv[nd.lvl-1].lowerBound(nd.slo, nd.slo+nd.sn, w) - nd.slo)
+	}
 	return l.rankLower(nd, lo, hi, r)
 }
 
 // rankLower returns the first record in [lo, hi) of a ranked node whose
 // rank is ≥ r.
 func (l *level) rankLower(nd *node, lo, hi int, r uint64) int {
+	if nd.efRanks {
+		var g efGroup
+		if !l.ranksOf(nd, &g) {
+			return hi
+		}
+		i, _ := g.lower(r)
+		return min(max(i, lo), hi)
+	}
 	for lo < hi {
 		mid := int(uint(lo+hi) >> 1)
 		if l.rankAt(nd, mid) < r {
@@ -162,12 +264,28 @@ func (l *level) rankLower(nd *node, lo, hi int, r uint64) int {
 // -1) and w's entry in the suffix group one level down (or -1, in which
 // case w is not in the suffix group either).
 func (m *Model) rankedFind(nd *node, w uint32) (p, s int) {
-	s = m.lv[nd.lvl-1].search(nd.slo, nd.slo+nd.sn, w)
-	if s < 0 {
+	if m.lv[nd.lvl-1].ef {
+		g := &nd.eg
+		i, ok := g.lower(uint64(w))
+		if !ok {
+			return -1, -1
+		}
+		s = nd.slo + i
+	} else if s = m.lv[nd.lvl-1].search(nd.slo, nd.slo+nd.sn, w); s < 0 {
 		return -1, -1
 	}
 	r := uint64(s - nd.slo)
 	l := &m.lv[nd.lvl]
+	if nd.efRanks {
+		var g efGroup
+		if !l.ranksOf(nd, &g) {
+			return -1, s
+		}
+		if i, found := g.lower(r); found {
+			return i, s
+		}
+		return -1, s
+	}
 	lo := l.rankLower(nd, nd.lo, nd.hi, r)
 	if lo < nd.hi && l.rankAt(nd, lo) == r {
 		return lo, s
@@ -182,11 +300,23 @@ func (m *Model) entryOf(h []uint32) (int, bool) {
 	}
 	e := int(h[0])
 	for j := 1; j < len(h); j++ {
-		lo, hi, _, ok := m.children(&m.lv[j-1], e)
+		l := &m.lv[j-1]
+		lo, hi, c, ok := m.children(l, e)
 		if !ok || m.lv[j].ranked {
 			return 0, false
 		}
-		if e = m.lv[j].search(lo, hi, h[j]); e < 0 {
+		if m.lv[j].ef {
+			base, ok := m.groupBase(l, c)
+			var g efGroup
+			if !ok || !g.open(m.lv[j].efw, base, hi-lo, m.vocab, m.lv[j].efBits) {
+				return 0, false
+			}
+			i, found := g.lower(uint64(h[j]))
+			if !found {
+				return 0, false
+			}
+			e = lo + i
+		} else if e = m.lv[j].search(lo, hi, h[j]); e < 0 {
 			return 0, false
 		}
 	}
@@ -197,11 +327,10 @@ func (m *Model) entryOf(h []uint32) (int, bool) {
 // key is the entry's n-gram, needed only when the next level holds ranked
 // records (to find the suffix group).
 func (m *Model) groupNode(l *level, e int, key []uint32) (node, bool) {
-	lo, hi, c, ok := m.children(l, e)
-	if !ok {
+	var nd node
+	if !m.contextNode(l, e, &nd) {
 		return node{}, false
 	}
-	nd := node{lo: lo, hi: hi, bow: l.bowAt(c), lvl: l.n, ctx: c}
 	if !m.lv[l.n].ranked {
 		return nd, true
 	}
@@ -212,12 +341,10 @@ func (m *Model) groupNode(l *level, e int, key []uint32) (node, bool) {
 	if !ok {
 		return node{}, false
 	}
-	sl := &m.lv[l.n-2]
-	slo, shi, sc, ok := m.children(sl, se)
-	if !ok {
+	var sfx node
+	if !m.contextNode(&m.lv[l.n-2], se, &sfx) {
 		return node{}, false
 	}
-	sfx := node{lo: slo, hi: shi, lvl: sl.n, ctx: sc}
 	if !m.rankedGroup(&nd, &sfx) {
 		return node{}, false
 	}
@@ -239,15 +366,15 @@ func (m *Model) levelKeys(n int) (keys []uint32, ok bool) {
 		}
 		nk := make([]uint32, 0, next.size*(j+1))
 		for e := range l.size {
-			lo, hi, _, has := m.children(l, e)
-			if !has {
+			var nd node
+			if !m.contextNode(l, e, &nd) {
 				continue
 			}
-			if lo != len(nk)/(j+1) {
+			if nd.lo != len(nk)/(j+1) {
 				return nil, false
 			}
-			for p := lo; p < hi; p++ {
-				nk = append(append(nk, keys[e*j:(e+1)*j]...), uint32(next.words.at(p)))
+			for p := nd.lo; p < nd.hi; p++ {
+				nk = append(append(nk, keys[e*j:(e+1)*j]...), uint32(m.wordAt(&nd, p)))
 			}
 		}
 		if len(nk) != next.size*(j+1) {

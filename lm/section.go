@@ -16,12 +16,16 @@ import (
 //	directory 32 bytes per array: tag, width, count, offset, words
 //	arrays   8-byte aligned packed vectors (64-bit words, one spare word each)
 const (
-	// sectionVersion is the newest layout written: version 3 stores the
+	// sectionVersion is the newest layout written. Version 3 stores the
 	// highest order of a suffix-closed model as ranks among the successors
-	// of each context's suffix (ranked records). Version 2 (Elias-Fano
-	// successor starts, plain word IDs) is written for models that are not
-	// suffix-closed or of order below 3; versions 1 and 2 are still read.
-	sectionVersion = 3
+	// of each context's suffix (ranked records, ranked.go); version 4 adds
+	// the words of the orders between the unigrams and the highest order as
+	// one Elias-Fano code per successor group (efgroup.go); version 5 lets
+	// each group of ranked records code its ranks so too when that is
+	// shorter. Version 2 (Elias-Fano successor starts, plain word IDs) is
+	// written for models that are not suffix-closed or of order below 3;
+	// versions 1 to 4 are still read and can be written on request.
+	sectionVersion = 5
 	headerSize     = 40
 	dirEntrySize   = 32
 	// TopListLen is the number of best successors kept in probability order
@@ -54,6 +58,10 @@ const (
 	tagTree      = 16 // 16+level: unigram maximum tree
 	tagRecords   = 40 // highest order of a version-3 section: rank and probability code per entry
 	tagRecCount  = 41 // number of entries in the ranked records
+	tagGroups    = 42 // orders 2..N−1 of a version-4 or -5 section: the words as Elias-Fano groups
+	tagGroupLow  = 43 // Elias-Fano low bits of the groups' bit offsets (parent order)
+	tagGroupHigh = 44 // their high bits
+	tagGroupSel  = 45 // their select samples
 )
 
 func tag(kind, order int) uint32 { return uint32(kind<<8 | order) }
@@ -65,9 +73,12 @@ type LayoutOptions struct {
 	// losslessly. The zero value means lossless; build tools default to 8.
 	QuantBits int
 	// Version selects the layout version: 0 means the newest one the model
-	// allows (3 for a suffix-closed model of order ≥ 3, else 2); 1 and 2
+	// allows (5 for a suffix-closed model of order ≥ 3, else 2); 1 to 4
 	// write the older layouts (plain successor starts; plain word IDs at
-	// every order), for compatibility tests.
+	// every order; plain word IDs below the ranked highest order; ranks
+	// always of fixed width), for compatibility tests and comparisons. A
+	// model that is not suffix-closed, or of order below 3, is written as
+	// version 2 when 3, 4 or 5 is asked for.
 	Version int
 }
 
@@ -83,8 +94,8 @@ func AppendSection(dst []byte, b *Backoff, opts LayoutOptions) ([]byte, error) {
 	q := opts.QuantBits
 	version := uint32(sectionVersion)
 	switch opts.Version {
-	case 0, 3:
-	case 1, 2:
+	case 0, 5:
+	case 1, 2, 3, 4:
 		version = uint32(opts.Version)
 	default:
 		return nil, fmt.Errorf("%w: layout version %d", ErrSectionVersion, opts.Version)
@@ -120,19 +131,20 @@ func AppendSection(dst []byte, b *Backoff, opts LayoutOptions) ([]byte, error) {
 			allCodes[n][i] = books[n].encode(x)
 		}
 	}
-	// Version 3: the highest order as ranked records, when the model allows.
+	// Versions 3 and 4: the highest order as ranked records, when the model allows.
 	var recs bitStream
 	var recStart []uint64
-	if version == 3 {
+	if version >= 3 {
 		var ok bool
-		recs, recStart, ok = rankRecords(b, allCodes[N-1], books[N-1].width())
+		recs, recStart, ok = rankRecords(b, allCodes[N-1], books[N-1].width(), version == 5)
 		if !ok {
 			version = 2
 		}
 	}
-	ranked := version == 3
+	ranked := version >= 3
+	grouped := version >= 4 // orders 2..N−1 as word groups
 	topMin := TopListLen
-	if version == 3 {
+	if version >= 3 {
 		topMin = topListMin
 	}
 	var unigramCodes []uint64
@@ -158,6 +170,8 @@ func AppendSection(dst []byte, b *Backoff, opts LayoutOptions) ([]byte, error) {
 		case n == N && ranked:
 			arrs = append(arrs, arr{tag: tag(tagRecords, n), width: 1, n: int(recs.n), words: recs.words()})
 			add(tag(tagRecCount, n), 64, []uint64{uint64(lv.Len())})
+		case grouped:
+			// The words are written with the parent's groups (below).
 		default:
 			ws := make([]uint64, lv.Len())
 			for i := range ws {
@@ -232,13 +246,31 @@ func AppendSection(dst []byte, b *Backoff, opts LayoutOptions) ([]byte, error) {
 		if ranked && n == N-1 {
 			start = recStart // bit offsets of the groups in the ranked records
 		}
+		if grouped && n+1 < N {
+			var gs bitStream
+			var gstart []uint64
+			for _, g := range groups {
+				gstart = append(gstart, gs.n)
+				ws := make([]uint64, g.hi-g.lo)
+				for i := range ws {
+					ws[i] = uint64(next.Key(g.lo + i)[n])
+				}
+				putGroup(&gs, ws, V)
+			}
+			gstart = append(gstart, gs.n)
+			arrs = append(arrs, arr{tag: tag(tagGroups, n+1), width: 1, n: int(gs.n), words: gs.words()})
+			lw, lb, hw, hb, sel := encodeMono(gstart, monoSampleDense)
+			arrs = append(arrs, arr{tag: tag(tagGroupLow, n), width: lb, n: len(gstart), words: lw})
+			arrs = append(arrs, arr{tag: tag(tagGroupHigh, n), width: 1, n: hb, words: hw})
+			add(tag(tagGroupSel, n), bitsFor(uint64(hb)), sel)
+		}
 		hw, hs := buildRank(has)
 		arrs = append(arrs, arr{tag: tag(tagHas, n), width: 1, n: len(has), words: hw})
 		add(tag(tagHasRank, n), 32, hs)
 		if version == 1 {
 			add(tag(tagStart, n), bitsFor(uint64(next.Len())), start)
 		} else {
-			lw, lb, hw, hb, sel := encodeMono(start)
+			lw, lb, hw, hb, sel := encodeMono(start, monoSample)
 			arrs = append(arrs, arr{tag: tag(tagStartLow, n), width: lb, n: len(start), words: lw})
 			arrs = append(arrs, arr{tag: tag(tagStartHigh, n), width: 1, n: hb, words: hw})
 			add(tag(tagStartSel, n), bitsFor(uint64(hb)), sel)
@@ -347,10 +379,10 @@ func LoadSection(b []byte) (*Model, error) {
 		return nil, corrupt(12, "quantization bits %d", q)
 	case topT != TopListLen:
 		return nil, corrupt(16, "top list length %d", topT)
-	case version == 3 && h[9] != topListMin:
+	case version >= 3 && h[9] != topListMin:
 		return nil, corrupt(36, "top-list threshold %d (want %d)", h[9], topListMin)
-	case version == 3 && N < 3:
-		return nil, corrupt(4, "order %d in a version-3 section (ranked records need order 3 or more)", N)
+	case version >= 3 && N < 3:
+		return nil, corrupt(4, "order %d in a version-%d section (ranked records need order 3 or more)", N, version)
 	case int(h[5]) >= V || int(h[6]) >= V || int(h[7]) >= V:
 		return nil, corrupt(20, "special token id out of range")
 	}
@@ -384,7 +416,7 @@ func LoadSection(b []byte) (*Model, error) {
 		arrays[t] = newVec(w, int(n), width)
 	}
 	m := &Model{order: N, vocab: V, qbits: q, bos: h[5], eos: h[6], unk: h[7], topMin: TopListLen}
-	if version == 3 {
+	if version >= 3 {
 		m.topMin = int(h[9])
 	}
 	m.lv = make([]level, N)
@@ -419,7 +451,7 @@ func LoadSection(b []byte) (*Model, error) {
 				return nil, err
 			}
 			l.size = V
-		} else if version == 3 && n == N {
+		} else if version >= 3 && n == N {
 			rv, err := need(tag(tagRecords, n), -1, 1)
 			if err != nil {
 				return nil, err
@@ -433,7 +465,18 @@ func LoadSection(b []byte) (*Model, error) {
 				return nil, corrupt(0, "order %d: %d ranked records cannot fit %d bits", n, cnt, rv.n)
 			}
 			l.ranked, l.recs, l.recBits, l.recCode = true, rv.w, uint64(rv.n), cw
+			l.choose = version >= 5
 			l.size = int(cv.at(0))
+		} else if version >= 4 {
+			gv, err := need(tag(tagGroups, n), -1, 1)
+			if err != nil {
+				return nil, err
+			}
+			l.ef, l.efw, l.efBits = true, gv.w, uint64(gv.n)
+			if l.probs, err = need(tag(tagProbs, n), -1, cw); err != nil {
+				return nil, err
+			}
+			l.size = l.probs.n
 		} else {
 			if l.words, err = need(tag(tagWords, n), -1, 0); err != nil {
 				return nil, err
@@ -461,27 +504,20 @@ func LoadSection(b []byte) (*Model, error) {
 				return nil, err
 			}
 			l.start = monoSeq{n: v.n, plain: true, vals: v}
-		} else {
-			low, err := need(tag(tagStartLow, n), -1, 0)
-			if err != nil {
-				return nil, err
-			}
-			hi, err := need(tag(tagStartHigh, n), -1, 1)
-			if err != nil {
-				return nil, err
-			}
-			sel, err := need(tag(tagStartSel, n), (low.n+monoSample-1)/monoSample, 0)
-			if err != nil {
-				return nil, err
-			}
-			if low.width > 40 || hi.n < low.n {
-				return nil, corrupt(0, "order %d: successor starts: %d low bits, %d high bits for %d values", n, low.width, hi.n, low.n)
-			}
-			l.start = monoSeq{n: low.n, low: low, lbits: low.width, high: hi.w[:(hi.n+63)/64], hbits: hi.n, sample: sel}
+		} else if l.start, err = loadMono(need, n, tagStartLow, false, "successor starts"); err != nil {
+			return nil, err
 		}
 		C := l.start.n - 1
 		if C < 0 {
 			return nil, corrupt(0, "order %d: empty start array", n)
+		}
+		if version >= 4 && n+1 < N {
+			if l.gstart, err = loadMono(need, n, tagGroupLow, true, "word-group offsets"); err != nil {
+				return nil, err
+			}
+			if l.gstart.n != l.start.n {
+				return nil, corrupt(0, "order %d: %d word-group offsets for %d contexts", n, l.gstart.n, C)
+			}
 		}
 		if l.bow, err = need(tag(tagBow, n), C, l.bowBook.width()); err != nil {
 			return nil, err
@@ -509,6 +545,11 @@ func LoadSection(b []byte) (*Model, error) {
 		if int(l.start.at(l.start.n-1)) != end {
 			return nil, corrupt(0, "order %d: successor table ends at %d, order %d needs %d", n, l.start.at(l.start.n-1), n+1, end)
 		}
+		if m.lv[n].ef {
+			if e := l.gstart.at(l.gstart.n - 1); e != m.lv[n].efBits {
+				return nil, corrupt(0, "order %d: word-group offsets end at %d, the groups of order %d hold %d bits", n, e, n+1, m.lv[n].efBits)
+			}
+		}
 	}
 	for lvl, size := 1, V; size > treeFanout; lvl++ {
 		size = (size + treeFanout - 1) / treeFanout
@@ -526,6 +567,32 @@ func LoadSection(b []byte) (*Model, error) {
 		return true
 	})
 	return m, nil
+}
+
+// loadMono returns the Elias-Fano sequence of order n whose low bits have
+// kind lowKind (high bits and select samples: the next two kinds), with a
+// sample every monoSampleDense values if dense, else every monoSample.
+func loadMono(need func(uint32, int, uint) (vec, error), n int, lowKind int, dense bool, what string) (monoSeq, error) {
+	every := monoSample
+	if dense {
+		every = monoSampleDense
+	}
+	low, err := need(tag(lowKind, n), -1, 0)
+	if err != nil {
+		return monoSeq{}, err
+	}
+	hi, err := need(tag(lowKind+1, n), -1, 1)
+	if err != nil {
+		return monoSeq{}, err
+	}
+	sel, err := need(tag(lowKind+2, n), (low.n+every-1)/every, 0)
+	if err != nil {
+		return monoSeq{}, err
+	}
+	if low.width > 40 || hi.n < low.n {
+		return monoSeq{}, corrupt(0, "order %d: %s: %d low bits, %d high bits for %d values", n, what, low.width, hi.n, low.n)
+	}
+	return monoSeq{n: low.n, low: low, lbits: low.width, high: hi.w[:(hi.n+63)/64], hbits: hi.n, sample: sel, dense: dense}, nil
 }
 
 func loadBook(need func(uint32, int, uint) (vec, error), t uint32, q int) (codebook, error) {

@@ -126,7 +126,7 @@ func isLoadError(err error) bool {
 // compress/flate's TestTruncatedStreams does for streams): each prefix must
 // be refused with ErrCorrupt, since the last array reaches the last byte.
 func TestLoadSectionTruncated(t *testing.T) {
-	for _, c := range []struct{ q, version int }{{0, 1}, {8, 1}, {0, sectionVersion}, {8, sectionVersion}} {
+	for _, c := range []struct{ q, version int }{{0, 1}, {8, 1}, {8, 3}, {8, 4}, {0, sectionVersion}, {8, sectionVersion}} {
 		q := c.q
 		sec, _ := smallSectionV(t, 3, q, c.version)
 		for i := range len(sec) {
@@ -147,7 +147,7 @@ func TestLoadSectionTruncated(t *testing.T) {
 // Loading must fail with a documented error or give a model that answers
 // every query without panicking.
 func TestLoadSectionFlipped(t *testing.T) {
-	for _, c := range []struct{ order, q, version int }{{3, 8, 1}, {2, 0, 1}, {2, 4, 1}, {3, 8, sectionVersion}, {3, 0, sectionVersion}} {
+	for _, c := range []struct{ order, q, version int }{{3, 8, 1}, {2, 0, 1}, {2, 4, 1}, {3, 8, 3}, {3, 8, 4}, {3, 8, sectionVersion}, {3, 0, sectionVersion}, {4, 8, sectionVersion}} {
 		t.Run(fmt.Sprintf("order%d/q%d/v%d", c.order, c.q, c.version), func(t *testing.T) {
 			sec, _ := smallSectionV(t, c.order, c.q, c.version)
 			var refused, loaded, caught int
