@@ -91,6 +91,7 @@ type query struct {
 	cMain   []cacheEnt // cache bigram entries with prev = b: main list
 	cRec    []cacheEnt // and recent list (see ovCache)
 	cBiTot  float64
+	cBiMax  float64 // largest weight of cMain and cRec at or above the floor
 	wBase   float64 // weights after moving the empty cache's share to the base
 	wUser   float64
 	wCache  float64
@@ -128,7 +129,7 @@ func (v *OverlayView) prepare(ctx []uint32, q *query) {
 	q.wUser, q.wCache = cfg.lambda, cfg.mu
 	q.invGrow = 1 / v.grow
 	q.invC = 1 / v.cache.grow
-	q.cMain, q.cRec, q.cBiTot = nil, nil, 0
+	q.cMain, q.cRec, q.cBiTot, q.cBiMax = nil, nil, 0, 0
 	if v.cache.sum <= 0 {
 		q.wCache = 0
 	} else if q.hasB {
@@ -137,12 +138,14 @@ func (v *OverlayView) prepare(ctx []uint32, q *query) {
 			for _, e := range q.cMain {
 				if e.w >= v.cache.floor {
 					q.cBiTot += e.w
+					q.cBiMax = max(q.cBiMax, e.w)
 				}
 			}
 		} else {
 			it := cacheIter{q.cMain, q.cRec, v.cache.floor}
 			for e, ok := it.next(); ok; e, ok = it.next() {
 				q.cBiTot += e.w
+				q.cBiMax = max(q.cBiMax, e.w)
 			}
 		}
 	}
@@ -176,10 +179,14 @@ type evidence struct {
 
 // evidenceOf looks up the user-side evidence of w for the prepared history.
 func (v *OverlayView) evidenceOf(q *query, w uint32) evidence {
+	return v.evidenceMemo(q, w, nil)
+}
+
+// evidenceMemo is evidenceOf through the memo m (nil: none), which the
+// caller holds locked.
+func (v *OverlayView) evidenceMemo(q *query, w uint32, m *topKMemo) evidence {
 	var ev evidence
-	if e := v.uniEntry(w); e != nil {
-		ev.c[0], ev.typed, ev.uni = e.cnt, e.typed, true
-	}
+	v.uniOf(m, w, &ev)
 	if e := q.n2.find(w); e != nil {
 		ev.c[1] = e.cnt
 	}
@@ -187,7 +194,7 @@ func (v *OverlayView) evidenceOf(q *query, w uint32) evidence {
 		ev.c[2] = e.cnt
 	}
 	if q.wCache > 0 {
-		ev.cu = v.cache.uniW(w)
+		ev.cu = v.cacheUniOf(m, w)
 		if q.cBiTot > 0 && q.hasB {
 			ev.cb = v.cache.find(q.cMain, q.cRec, q.b, w)
 		}
@@ -264,7 +271,7 @@ func (v *OverlayView) logProbMemo(q *query, w uint32, m *topKMemo) float64 {
 	var own memoWord
 	known := m.word(w)
 	if known == nil || !known.hasEv {
-		ev := v.evidenceOf(q, w)
+		ev := v.evidenceMemo(q, w, m)
 		if known = m.add(w); known == nil {
 			known = &own
 		}

@@ -27,6 +27,11 @@ import (
 // new range, it still holds as many words as asked for, or held every word
 // of its range.
 //
+// What does not depend on the history, a word's user unigram entry and its
+// recency-cache weight as a unigram, stays in the memo across histories
+// (the facts table), so that the frequent words met after every history
+// are not looked up in the overlay's shards again.
+//
 // A memo belongs to one view, and views never change once published: a
 // Learn, Forget or Wipe publishes a new view with an empty memo, which is
 // what invalidates it. Concurrent callers of one view do not wait for each
@@ -70,6 +75,71 @@ type topKMemo struct {
 	gen   uint32
 	nWord int
 	words [memoWords]memoWord
+	// What the view knows of words whatever the history, kept across
+	// histories (direct-mapped by tok; a colliding word replaces the one
+	// in its slot).
+	facts [factSlots]wordFacts
+}
+
+// factSlots is the size of a memo's table of word facts (a power of two).
+const factSlots = 256
+
+// wordFacts is what a view knows of a word whatever the history: its user
+// unigram entry and its recency-cache weight as a unigram, each looked up
+// on first use.
+type wordFacts struct {
+	tok1  uint32 // tok+1; 0: an empty slot
+	typed uint32
+	hasC  bool // uni, typed and cnt are known
+	hasCU bool // cu is known
+	uni   bool
+	cnt   float64
+	cu    float64
+}
+
+// factsOf returns tok's slot of the facts table, emptied first when it
+// held another word.
+func (m *topKMemo) factsOf(tok uint32) *wordFacts {
+	f := &m.facts[(tok*0x9E3779B1)>>(32-8)]
+	if f.tok1 != tok+1 {
+		*f = wordFacts{tok1: tok + 1}
+	}
+	return f
+}
+
+// uniOf sets ev's user unigram evidence of w (count, times typed, whether
+// there is an entry) and returns the count, through the memo m when it is
+// not nil.
+func (v *OverlayView) uniOf(m *topKMemo, w uint32, ev *evidence) float64 {
+	if m == nil {
+		ev.c[0], ev.typed, ev.uni = 0, 0, false
+		if e := v.uniEntry(w); e != nil {
+			ev.c[0], ev.typed, ev.uni = e.cnt, e.typed, true
+		}
+		return ev.c[0]
+	}
+	f := m.factsOf(w)
+	if !f.hasC {
+		if e := v.uniEntry(w); e != nil {
+			f.cnt, f.typed, f.uni = e.cnt, e.typed, true
+		}
+		f.hasC = true
+	}
+	ev.c[0], ev.typed, ev.uni = f.cnt, f.typed, f.uni
+	return f.cnt
+}
+
+// cacheUniOf returns the recency cache's unigram weight of w, through the
+// memo m when it is not nil.
+func (v *OverlayView) cacheUniOf(m *topKMemo, w uint32) float64 {
+	if m == nil {
+		return v.cache.uniW(w)
+	}
+	f := m.factsOf(w)
+	if !f.hasCU {
+		f.cu, f.hasCU = v.cache.uniW(w), true
+	}
+	return f.cu
 }
 
 // memoWords is the size of a memo's word table (a power of two); it takes
@@ -241,11 +311,11 @@ func (m *topKMemo) scan(v *OverlayView, si int, q *query, r *rangeQ, f func(uint
 	}
 	m.byVal[si] = false
 	if r.prefix == "" { // the whole list: walking it is as cheap as copying it
-		v.scan(si, q, r, f)
+		v.scan(si, q, r, m, f)
 		return
 	}
 	list := m.lists[si][:0]
-	v.scan(si, q, r, func(tok uint32, val float64) {
+	v.scan(si, q, r, m, func(tok uint32, val float64) {
 		list = append(list, memoEnt{tok, val})
 		f(tok, val)
 	})

@@ -232,7 +232,7 @@ func (v *OverlayView) scanCache(main, recent []cacheEnt, r *rangeQ, f func(uint3
 }
 
 // scanUni calls f for each user unigram count in the query range.
-func (v *OverlayView) scanUni(r *rangeQ, f func(uint32, float64)) {
+func (v *OverlayView) scanUni(r *rangeQ, m *topKMemo, f func(uint32, float64)) {
 	if r.lo < r.hi {
 		for bkt := r.lo >> ovBucketShift; bkt <= (r.hi-1)>>ovBucketShift; bkt++ {
 			if nd := v.ref(tagUni<<62 | uint64(bkt)); nd.size() > 0 {
@@ -243,8 +243,10 @@ func (v *OverlayView) scanUni(r *rangeQ, f func(uint32, float64)) {
 	// User words with the prefix: a run of byStr.
 	p, _ := v.findUser(r.prefix)
 	for ; p < len(v.byStr) && strings.HasPrefix(v.words[v.byStr[p]], r.prefix); p++ {
-		if e := v.uniEntry(v.V + v.byStr[p]); e != nil {
-			f(e.tok, e.cnt)
+		var ev evidence
+		tok := v.V + v.byStr[p]
+		if v.uniOf(m, tok, &ev); ev.uni {
+			f(tok, ev.c[0])
 		}
 	}
 }
@@ -353,7 +355,7 @@ func (t *thresholdSearch) scan(si int, f func(uint32, float64)) {
 		t.memo.scan(t.v, si, t.q, t.r, f)
 		return
 	}
-	t.v.scan(si, t.q, t.r, f)
+	t.v.scan(si, t.q, t.r, nil, f)
 }
 
 // thresholdSearch is the state of one threshold search.
@@ -372,6 +374,7 @@ type thresholdSearch struct {
 	kth     float64 // probability of the k-th result (0 until there are k)
 	failed  bool
 	memo    *topKMemo // nil: scan the lists themselves
+	cands   baseCands // the base candidates scored for the top list, when it was not reused
 }
 
 func (t *thresholdSearch) run(m int) bool {
@@ -385,7 +388,7 @@ func (t *thresholdSearch) run(m int) bool {
 			base, ok = t.memo.baseTop(r, m, bt[:0])
 		}
 		if !ok {
-			base = v.base.TopK(q.base[:q.nctx], r.lo, r.hi, m, bt[:0])
+			base = v.base.topKNodes(q.nb[:q.nn], r.lo, r.hi, m, bt[:0], &t.cands)
 			if t.memo != nil {
 				t.memo.setBase(base, m)
 			}
@@ -402,7 +405,7 @@ func (t *thresholdSearch) run(m int) bool {
 		if w := t.memo.word(s.ID); w != nil && w.hasEv {
 			ev = w.ev
 		} else {
-			ev = v.evidenceOf(q, s.ID)
+			ev = v.evidenceMemo(q, s.ID, t.memo)
 			if w = t.memo.add(s.ID); w != nil {
 				w.ev, w.hasEv = ev, true
 			}
@@ -485,9 +488,12 @@ func (t *thresholdSearch) consider(si int, tok uint32, val float64) {
 	if t.failed || !t.r.whole && !v.inRange(tok, t.r) || tok == v.bos || tok == v.eos || tok == v.unk {
 		return
 	}
-	pbUB := 0.0
+	pbUB, pbKnown := 0.0, false
 	if tok < v.V {
 		pbUB = t.pbBound
+		if lp, ok := t.cands.logP(tok); ok {
+			pbUB, pbKnown = math.Exp(lp), true
+		}
 	}
 	// Bounds: the word's value in this list, and in every other list that
 	// list's largest value or, for a word not met before, its frontier.
@@ -542,11 +548,11 @@ func (t *thresholdSearch) consider(si int, tok uint32, val float64) {
 				}
 			}
 			done |= 1 << pick
-			x := v.evidenceIn(q, pick, tok, &ev)
+			x := v.evidenceIn(q, pick, tok, &ev, t.memo)
 			ub += c.gamma[pick]*x - bnd[pick]
 		}
 		if si == stUni && tok >= v.V {
-			v.evidenceIn(q, stUni, tok, &ev) // for the typed count
+			v.evidenceIn(q, stUni, tok, &ev, t.memo) // for the typed count
 		}
 		if known = t.memo.add(tok); known != nil {
 			known.ev, known.hasEv = ev, true
@@ -567,6 +573,8 @@ func (t *thresholdSearch) consider(si int, tok uint32, val float64) {
 	pb := 0.0
 	switch {
 	case tok >= v.V:
+	case pbKnown:
+		pb = pbUB
 	case known != nil && known.hasPB:
 		pb = known.pb
 	default:
@@ -593,14 +601,13 @@ func (ev *evidence) set(si int, x float64) {
 	}
 }
 
-// evidenceIn looks up w's value in list si, records it in ev and returns it.
-func (v *OverlayView) evidenceIn(q *query, si int, w uint32, ev *evidence) float64 {
+// evidenceIn looks up w's value in list si, records it in ev and returns
+// it, through the memo m (nil: none), which the caller holds locked.
+func (v *OverlayView) evidenceIn(q *query, si int, w uint32, ev *evidence, m *topKMemo) float64 {
 	x := 0.0
 	switch si {
 	case stUni:
-		if e := v.uniEntry(w); e != nil {
-			x, ev.typed, ev.uni = e.cnt, e.typed, true
-		}
+		return v.uniOf(m, w, ev)
 	case stBi:
 		if e := q.n2.find(w); e != nil {
 			x = e.cnt
@@ -611,7 +618,7 @@ func (v *OverlayView) evidenceIn(q *query, si int, w uint32, ev *evidence) float
 		}
 	case stCacheUni:
 		if q.wCache > 0 {
-			x = v.cache.uniW(w)
+			x = v.cacheUniOf(m, w)
 		}
 	case stCacheBi:
 		if q.wCache > 0 && q.cBiTot > 0 && q.hasB {
@@ -642,7 +649,7 @@ func (v *OverlayView) streamBound(si int, q *query) float64 {
 		}
 	case stCacheBi:
 		if q.wCache > 0 && q.cBiTot > 0 && q.hasB {
-			return q.cBiTot
+			return q.cBiMax
 		}
 	}
 	return 0
@@ -677,10 +684,10 @@ func (v *OverlayView) stage1(si int, s *stream, q *query, r *rangeQ) {
 }
 
 // scan calls f for every entry of list si in the range.
-func (v *OverlayView) scan(si int, q *query, r *rangeQ, f func(uint32, float64)) {
+func (v *OverlayView) scan(si int, q *query, r *rangeQ, m *topKMemo, f func(uint32, float64)) {
 	switch si {
 	case stUni:
-		v.scanUni(r, f)
+		v.scanUni(r, m, f)
 	case stBi:
 		v.scanNode(q.n2, r, f)
 	case stTri:

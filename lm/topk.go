@@ -76,41 +76,7 @@ func (m *Model) TopK(ctx []uint32, lo, hi uint32, k int, dst []Scored) []Scored 
 		return dst
 	}
 	var nb [MaxOrder]node
-	nodes := m.contexts(ctx, &nb)
-	var seen [MaxK * (MaxOrder + 1)]uint32
-	ns := 0
-	addCand := func(id uint32) bool {
-		if id >= uint32(m.vocab) || id == m.bos || id == m.eos || id == m.unk { // only a corrupt section stores an id ≥ vocab
-			return false
-		}
-		for _, x := range seen[:ns] {
-			if x == id {
-				return true
-			}
-		}
-		if ns < len(seen) {
-			seen[ns] = id
-			ns++
-		}
-		return true
-	}
-	// Candidates from each successor group.
-	for i := range nodes {
-		m.groupTop(&nodes[i], lo, hi, k, addCand)
-	}
-	if lo == 0 && hi == uint32(m.vocab) && k <= len(m.uniTop) {
-		for _, id := range m.uniTop[:k] {
-			addCand(id)
-		}
-	} else {
-		m.unigramTop(lo, hi, k, addCand)
-	}
-	var res topBuf
-	res.k = k
-	for _, id := range seen[:ns] {
-		res.push(Scored{ID: id, LogP: m.score(nodes, id)})
-	}
-	return append(dst, res.buf[:res.n]...)
+	return m.topKNodes(m.contexts(ctx, &nb), lo, hi, k, dst, nil)
 }
 
 // groupTop calls add for the best k entries of a successor group whose words lie in [lo, hi).
