@@ -30,10 +30,7 @@ func TestCheckFindsDamage(t *testing.T) {
 	the, _ := b.ID("the")
 	lo, hi, c, big := theGroup(t, base, b)
 	top0 := getVal(t, base, tag(tagTop, 1), big*TopListLen)
-	cases := []struct {
-		name  string
-		spoil func([]byte)
-	}{
+	cases := []spoiler{
 		{"word id out of range", func(s []byte) { setVal(t, s, tag(tagWords, 2), 0, uint64(V)) }},
 		{"group unsorted", func(s []byte) {
 			a, z := getVal(t, s, tag(tagWords, 2), lo), getVal(t, s, tag(tagWords, 2), lo+1)
@@ -135,10 +132,7 @@ func TestCheckFindsGroupDamage(t *testing.T) {
 	flip := func(bit uint64) func([]byte) {
 		return func(s []byte) { s[d.off+bit/8] ^= 1 << (bit % 8) }
 	}
-	cases := []struct {
-		name  string
-		spoil func([]byte)
-	}{
+	cases := []spoiler{
 		{"set-bit sample", flip(g.sbase)},
 		{"clear-bit sample", flip(g.sbase + uint64(g.n1)*uint64(g.sw))},
 		{"first high bit", flip(g.hbase)},
@@ -148,22 +142,7 @@ func TestCheckFindsGroupDamage(t *testing.T) {
 			setVal(t, s, tag(tagGroupLow, 1), int(e.n)-1, getVal(t, s, tag(tagGroupLow, 1), int(e.n)-1)^1)
 		}},
 	}
-	for _, tc := range cases {
-		t.Run(tc.name, func(t *testing.T) {
-			s := append([]byte(nil), base...)
-			tc.spoil(s)
-			m, err := LoadSection(s)
-			if err != nil {
-				if !errors.Is(err, ErrCorrupt) {
-					t.Fatalf("LoadSection = %v, want ErrCorrupt", err)
-				}
-				return
-			}
-			if err := exercise(t, m); !errors.Is(err, ErrCorrupt) {
-				t.Errorf("Check() = %v, want ErrCorrupt", err)
-			}
-		})
-	}
+	expectCorrupt(t, base, cases)
 }
 
 // TestCheckFindsRankDamage flips single bits inside a version-5 group of
@@ -201,15 +180,25 @@ func TestCheckFindsRankDamage(t *testing.T) {
 	flip := func(bit uint64) func([]byte) {
 		return func(s []byte) { s[d.off+bit/8] ^= 1 << (bit % 8) }
 	}
-	cases := []struct {
-		name  string
-		spoil func([]byte)
-	}{
+	cases := []spoiler{
 		{"set-bit sample", flip(g.sbase)},
 		{"clear-bit sample", flip(g.sbase + uint64(g.n1)*uint64(g.sw))},
 		{"high bit", flip(g.hbase + g.hlen/2)},
 		{"form bit", flip(form)},
 	}
+	expectCorrupt(t, base, cases)
+}
+
+// spoiler names one way of damaging a section in place.
+type spoiler struct {
+	name  string
+	spoil func([]byte)
+}
+
+// expectCorrupt damages a copy of base with each case and requires that
+// loading or Check reports ErrCorrupt, and that queries do not panic.
+func expectCorrupt(t *testing.T, base []byte, cases []spoiler) {
+	t.Helper()
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
 			s := append([]byte(nil), base...)
