@@ -18,8 +18,9 @@ import (
 )
 
 // defaultRecipe names the build of the default model; change it whenever the
-// build below changes so that cached copies are rebuilt.
-const defaultRecipe = "default-english-2"
+// build below or the file layout it writes changes so that cached copies
+// are rebuilt.
+const defaultRecipe = "default-english-3"
 
 // contractionPieces are SUBTLEX-US entries that are halves of contractions
 // split by its tokenizer ("don" + "t"); the project's tokenizer keeps
