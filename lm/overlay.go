@@ -156,6 +156,8 @@ type Overlay struct {
 	owned    [ovShardCount]uint64
 	batch    uint64
 	ups      []ovUpdate
+	refs     []groupRef // apply's nodes, one per key
+	touch    uint64     // sink of apply's warming reads, so that they are kept
 	spans    [][2]int
 	toks     []uint32
 	cscratch []cacheEnt

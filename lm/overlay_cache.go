@@ -20,8 +20,9 @@ import (
 // fold and are rebuilt by each add. An entry in a recent list replaces the
 // main list's; readers skip weights below the floor in both. Each add
 // follows exactly the steps of merging its weights into one list (the same
-// drops, the same additions in the same order), so every weight, the sum
-// and the heaviest list are bit for bit those of the single-list cache.
+// drops, the same additions in the same order), so every weight and the
+// heaviest list are bit for bit those of the single-list cache; the sum
+// adds the same terms in another order (see uniSum).
 type ovCache struct {
 	uni   []cacheEnt          // main unigram list, sorted by tok
 	bi    []cacheEnt          // main bigram list, sorted by (prev, tok)
@@ -214,7 +215,7 @@ func (c ovCache) add(toks []uint32, bos uint32, tau float64, scratch []cacheEnt)
 		c.sum *= inv
 		g = 1
 	}
-	slices.SortFunc(ups, cmpCache)
+	sortCache(ups)
 	floor := g * cacheFloor
 	n := 0
 	for _, u := range ups {
@@ -226,10 +227,8 @@ func (c ovCache) add(toks []uint32, bos uint32, tau float64, scratch []cacheEnt)
 	out.rUni = mergeRecent(c.uni, c.rUni, ups[len(ups)-n:], floor)
 	out.rBi = mergeRecent(c.bi, c.rBi, ups[:len(ups)-n], floor)
 	out.markRecent()
-	// The sum adds the weights as one merge of the adds into the whole
-	// list would: each kept old weight, then each add to it, in order.
 	adds := ups[len(ups)-n:]
-	out.sum, out.nUni = uniSum(&c, adds, floor)
+	out.sum, out.nUni = out.uniSum()
 	if len(out.rUni)+len(out.rBi) > cacheRecentMax {
 		out = out.folded()
 	}
@@ -253,40 +252,32 @@ func (c ovCache) add(toks []uint32, bos uint32, tau float64, scratch []cacheEnt)
 	return out, ups
 }
 
-// uniSum returns the sum of the unigram weights, adding the terms in the
-// order a merge of adds into old's whole unigram list adds them (see
-// mergeCache in overlay_cache_test.go): each old weight at or above floor,
-// and each add after the old weight of its key. It also returns the number
-// of entries of the merged list.
-func uniSum(old *ovCache, adds []cacheEnt, floor float64) (float64, int) {
-	sum, n := 0.0, 0
-	lastTok, have := uint32(0), false
-	add := func(a cacheEnt) {
-		if have && lastTok == a.tok {
-			sum += a.w
-		} else if a.w >= floor {
-			sum += a.w
-			lastTok, have = a.tok, true
-			n++
-		}
+// uniSum returns the sum of the unigram weights at or above the floor and
+// their number: the recent list's (which holds no weight below the floor),
+// then the main list's that no recent entry replaces. It adds the terms in
+// another order than one merge into a single list would, so the sum may
+// differ from that list's in the last bits (the relative error of a sum of
+// u positive terms is below u·2⁻⁵³; Higham, Accuracy and Stability of
+// Numerical Algorithms, 2nd ed., §4.2, from memory).
+func (c *ovCache) uniSum() (float64, int) {
+	sum, n := 0.0, len(c.rUni)
+	r := c.rUni
+	for _, e := range r {
+		sum += e.w
 	}
-	it := cacheIter{old.uni, old.rUni, floor}
-	j := 0
-	for e, ok := it.next(); ok; e, ok = it.next() {
-		for j < len(adds) && adds[j].tok < e.tok {
-			add(adds[j])
+	j := 0 // both lists are sorted by tok: walk them together
+	for _, e := range c.uni {
+		if e.w < c.floor {
+			continue
+		}
+		for j < len(r) && r[j].tok < e.tok {
 			j++
+		}
+		if j < len(r) && r[j].tok == e.tok {
+			continue
 		}
 		sum += e.w
 		n++
-		lastTok, have = e.tok, true
-		for j < len(adds) && adds[j].tok == e.tok {
-			sum += adds[j].w
-			j++
-		}
-	}
-	for ; j < len(adds); j++ {
-		add(adds[j])
 	}
 	return sum, n
 }
@@ -373,6 +364,27 @@ func (c *ovCache) noteBest(e cacheEnt) {
 		i--
 	}
 	c.best[i] = e
+}
+
+// sortCache sorts cache entries by (prev, tok), keeping entries of the
+// same key in the order given (the order the tokens came in, so that their
+// weights are added oldest first), with an insertion sort for a sentence's
+// few dozen (see sortUpdates).
+func sortCache(s []cacheEnt) {
+	if len(s) > smallSort {
+		slices.SortStableFunc(s, cmpCache)
+		return
+	}
+	for i := 1; i < len(s); i++ {
+		e := s[i]
+		k := cacheKey(&e)
+		j := i
+		for j > 0 && k < cacheKey(&s[j-1]) {
+			s[j] = s[j-1]
+			j--
+		}
+		s[j] = e
+	}
 }
 
 func scaleCache(s []cacheEnt, f float64) []cacheEnt {

@@ -281,21 +281,99 @@ func (w *writer) shardFor(i int) *ovShard {
 // apply adds the updates (any order; the slice is sorted in place) to the
 // view's delta (see overlay_delta.go).
 func (w *writer) apply(ups []ovUpdate) {
-	slices.SortFunc(ups, func(a, b ovUpdate) int {
-		if c := cmp.Compare(a.key, b.key); c != 0 {
-			return c
-		}
-		return cmp.Compare(a.tok, b.tok)
-	})
+	sortUpdates(ups)
+	// Find every touched node and read the entries the patches will need
+	// in stages: each stage's loads depend only on the stage before, not
+	// on each other, so the processor overlaps their cache misses instead
+	// of waiting for a binary search's probes one after another. The
+	// patches then read memory that is already near.
+	o := w.o
+	v := w.v
+	refs := o.refs[:0]
 	for g := 0; g < len(ups); {
 		e := g + 1
 		for e < len(ups) && ups[e].key == ups[g].key {
 			e++
 		}
-		key := ups[g].key
-		w.patch(w.o, w.v.ref(key), key, ups[g:e])
+		gr := groupRef{lo: g, hi: e}
+		if sh := v.shards[shardOf(ups[g].key)]; sh != nil {
+			gr.slots = sh.slots
+		}
+		refs = append(refs, gr)
 		g = e
 	}
+	o.refs = refs
+	touch := uint64(0)
+	for i := range refs { // every cache line of the shards' slot arrays
+		s := refs[i].slots
+		for j := 0; j < len(s); j += 4 {
+			touch += s[j].key
+		}
+	}
+	for i := range refs {
+		refs[i].r = v.ref(ups[refs[i].lo].key)
+	}
+	for i := range refs { // node headers
+		if nd := refs[i].r.nd; nd != nil && nd.n > 0 {
+			touch += uint64(len(nd.parts[0]))
+		}
+	}
+	for i := range refs { // the chunks the updates fall in
+		nd := refs[i].r.nd
+		if nd == nil || nd.n == 0 {
+			continue
+		}
+		for _, u := range ups[refs[i].lo:refs[i].hi] {
+			p := nd.parts[nd.chunkOf(u.tok)]
+			for j := 0; j < len(p); j += 2 {
+				touch += uint64(p[j].tok)
+			}
+		}
+	}
+	o.touch = touch
+	for i := range refs {
+		g := &refs[i]
+		w.patch(o, g.r, ups[g.lo].key, ups[g.lo:g.hi])
+	}
+}
+
+// sortUpdates sorts updates by key, then tok, keeping updates of the same
+// n-gram in the order given. A sentence's few dozen go through an
+// insertion sort with the comparison inline, which is cheaper at that size
+// than a general sort calling a comparison function.
+func sortUpdates(ups []ovUpdate) {
+	less := func(a, b *ovUpdate) bool { return a.key < b.key || a.key == b.key && a.tok < b.tok }
+	if len(ups) > smallSort {
+		slices.SortStableFunc(ups, func(a, b ovUpdate) int {
+			if c := cmp.Compare(a.key, b.key); c != 0 {
+				return c
+			}
+			return cmp.Compare(a.tok, b.tok)
+		})
+		return
+	}
+	for i := 1; i < len(ups); i++ {
+		u := ups[i]
+		j := i
+		for j > 0 && less(&u, &ups[j-1]) {
+			ups[j] = ups[j-1]
+			j--
+		}
+		ups[j] = u
+	}
+}
+
+// smallSort is the length up to which sortUpdates and sortCache use an
+// insertion sort. Common practice, no source: insertion sort wins for a
+// few dozen elements.
+const smallSort = 64
+
+// groupRef is the node of one key of a batch of updates and the bounds of
+// the key's updates.
+type groupRef struct {
+	r      nref
+	slots  []ovSlot // the main store's slots of the key's shard
+	lo, hi int
 }
 
 // noteTop keeps v.top, the most counted suggestible unigrams, up to date

@@ -3,6 +3,7 @@ package lm
 import (
 	"cmp"
 	"math"
+	"math/rand/v2"
 	"slices"
 	"strings"
 	"testing"
@@ -158,6 +159,57 @@ func TestOverlayStoreInvariants(t *testing.T) {
 				}
 			}
 			checkStore(t, ov.View())
+		})
+	}
+}
+
+// TestOverlaySortsStable checks the writer's small sorts against the
+// standard library's stable sort (slices.SortStableFunc), on both sides of
+// the insertion-sort threshold and with many equal keys.
+func TestOverlaySortsStable(t *testing.T) {
+	for _, c := range []struct {
+		name      string
+		n, keys   int
+		wantInsrt bool
+	}{
+		{"empty", 0, 1, true},
+		{"one", 1, 1, true},
+		{"sentence", 38, 12, true},
+		{"all-equal", 40, 1, true},
+		{"at-threshold", smallSort, 20, true},
+		{"past-threshold", smallSort + 1, 20, false},
+		{"long", 500, 30, false},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			if got := c.n <= smallSort; got != c.wantInsrt {
+				t.Fatalf("case of %d elements: insertion sort %v, want %v", c.n, got, c.wantInsrt)
+			}
+			rng := rand.New(rand.NewPCG(7, uint64(c.n)))
+			ups := make([]ovUpdate, c.n)
+			ents := make([]cacheEnt, c.n)
+			for i := range ups {
+				k := uint64(rng.IntN(c.keys))
+				// delta and w carry the input position, to see stability.
+				ups[i] = ovUpdate{key: k / 3, tok: uint32(k % 3), delta: float64(i)}
+				ents[i] = cacheEnt{prev: uint32(k / 3), tok: uint32(k % 3), w: float64(i)}
+			}
+			wantU := slices.Clone(ups)
+			slices.SortStableFunc(wantU, func(a, b ovUpdate) int {
+				if c := cmp.Compare(a.key, b.key); c != 0 {
+					return c
+				}
+				return cmp.Compare(a.tok, b.tok)
+			})
+			wantE := slices.Clone(ents)
+			slices.SortStableFunc(wantE, cmpCache)
+			sortUpdates(ups)
+			sortCache(ents)
+			if !slices.Equal(ups, wantU) {
+				t.Errorf("sortUpdates gives %v, stable sort %v", ups, wantU)
+			}
+			if !slices.Equal(ents, wantE) {
+				t.Errorf("sortCache gives %v, stable sort %v", ents, wantE)
+			}
 		})
 	}
 }
