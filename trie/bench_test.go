@@ -1,7 +1,13 @@
 package trie
 
 import (
+	"bufio"
 	"fmt"
+	"math/rand/v2"
+	"os"
+	"sort"
+	"strconv"
+	"strings"
 	"testing"
 )
 
@@ -48,13 +54,53 @@ func BenchmarkID(b *testing.B) {
 	})
 }
 
-// BenchmarkAppendWord measures id → word over random-looking ids: block=0
-// is the version-2 layout the writer uses (no word table, a walk down the
-// FST), the others version-1 word tables of several block sizes (the trade
-// of table size against decoding time).
+// BenchmarkAppendWord measures id → word. The version-2 layout the writer
+// uses (no word table) is run three ways on two id streams: "fst" is the
+// uncached walk down the FST (the code before the word cache, kept as the
+// baseline), "cache" is AppendWord with its word cache on a lexicon loaded
+// for the run; "zipf" draws ids in proportion to their SUBTLEX-US counts
+// (the words a keyboard shows again and again), "uniform" steps through all
+// ids. block=N are version-1 word tables of several block sizes (the trade
+// of table size against decoding time), on the uniform stream.
 func BenchmarkAppendWord(b *testing.B) {
 	c := loadCorpus(b, subtlexPath)
-	for _, bs := range []int{0, 4, 8, blockSize, 32} {
+	streams := []struct {
+		name string
+		ids  []uint32
+	}{{"zipf", zipfIDs(b, c, 1<<16)}, {"uniform", uniformIDs(uint32(len(c.words)), 1<<16)}}
+	for _, st := range streams {
+		for _, mode := range []string{"fst", "cache"} {
+			b.Run(fmt.Sprintf("v2-%s/%s", mode, st.name), func(b *testing.B) {
+				lex, err := LoadSection(c.section)
+				if err != nil {
+					b.Fatal(err)
+				}
+				buf := make([]byte, 0, MaxWordLen)
+				ids := st.ids
+				b.ReportAllocs()
+				i := 0
+				for b.Loop() {
+					if mode == "fst" {
+						buf = lex.fstWord(buf[:0], ids[i])
+					} else {
+						buf = lex.AppendWord(buf[:0], ids[i])
+					}
+					i = (i + 1) & (len(ids) - 1)
+				}
+				if mode == "cache" {
+					hits := 0
+					for _, id := range ids {
+						if _, ok := lex.cache.Load().appendWord(buf[:0], id); ok {
+							hits++
+						}
+					}
+					b.ReportMetric(float64(hits)/float64(len(ids)), "hit-ratio")
+				}
+			})
+		}
+	}
+	ids := uniformIDs(uint32(len(c.words)), 1<<16)
+	for _, bs := range []int{4, 8, blockSize, 32} {
 		sec, err := appendSection(nil, c.entries, bs)
 		if err != nil {
 			b.Fatal(err)
@@ -65,17 +111,70 @@ func BenchmarkAppendWord(b *testing.B) {
 		}
 		b.Run(fmt.Sprintf("block=%d", bs), func(b *testing.B) {
 			buf := make([]byte, 0, MaxWordLen)
-			n := uint32(lex.Len())
 			b.ReportAllocs()
-			var id uint32
+			i := 0
 			for b.Loop() {
-				buf = lex.AppendWord(buf[:0], id)
-				id = (id + 7919) % n
+				buf = lex.AppendWord(buf[:0], ids[i])
+				i = (i + 1) & (len(ids) - 1)
 			}
 			_, tb, _ := lex.SizeBreakdown()
-			b.ReportMetric(float64(tb)/float64(n), "table-bytes/word")
+			b.ReportMetric(float64(tb)/float64(lex.Len()), "table-bytes/word")
 		})
 	}
+}
+
+// uniformIDs returns k ids below n, stepping by a prime so that every id
+// comes up.
+func uniformIDs(n uint32, k int) []uint32 {
+	ids := make([]uint32, k)
+	var id uint32
+	for i := range ids {
+		ids[i] = id
+		id = (id + 7919) % n
+	}
+	return ids
+}
+
+// zipfIDs returns k ids drawn (with a fixed seed) in proportion to the
+// SUBTLEX-US counts of their words: real word frequencies, which follow
+// Zipf's law.
+func zipfIDs(b *testing.B, c *corpusLexicon, k int) []uint32 {
+	b.Helper()
+	f, err := os.Open(subtlexPath)
+	if err != nil {
+		b.Fatal(err)
+	}
+	defer f.Close()
+	var ids []uint32
+	var cum []float64
+	total := 0.0
+	sc := bufio.NewScanner(f)
+	for sc.Scan() {
+		w, cnt, ok := strings.Cut(sc.Text(), "\t")
+		if !ok || strings.HasPrefix(w, "#") {
+			continue
+		}
+		n, err := strconv.ParseFloat(cnt, 64)
+		if err != nil {
+			continue
+		}
+		id, ok := c.lex.ID(strings.ToLower(w))
+		if !ok {
+			b.Fatalf("SUBTLEX-US word %q not in its lexicon", w)
+		}
+		total += n
+		ids = append(ids, id)
+		cum = append(cum, total)
+	}
+	if err := sc.Err(); err != nil {
+		b.Fatal(err)
+	}
+	rng := rand.New(rand.NewPCG(1, 2))
+	out := make([]uint32, k)
+	for i := range out {
+		out[i] = ids[sort.SearchFloat64s(cum, rng.Float64()*total)]
+	}
+	return out
 }
 
 // BenchmarkAppendSurface measures id → display form.

@@ -2,13 +2,16 @@ package trie
 
 import (
 	"sync"
+	"sync/atomic"
 
 	"github.com/blevesearch/vellum"
 )
 
 // Lexicon is a loaded lexicon section: a read-only view of the bytes given
-// to [LoadSection]. It is immutable and safe for use by any number of
-// goroutines at once. No method allocates unless its doc says so.
+// to [LoadSection]. It is safe for use by any number of goroutines at once:
+// its only state that changes is a small cache of recently spelled words,
+// read and written with atomic operations. No method allocates unless its
+// doc says so.
 type Lexicon struct {
 	n          uint32
 	maxWordLen int
@@ -18,7 +21,8 @@ type Lexicon struct {
 	words      wordTable
 	casing     casingTable
 	vfst       *vellum.FST
-	lazy       *lazyFST // set when loaded with SkipWalk
+	lazy       *lazyFST                  // set when loaded with SkipWalk
+	cache      atomic.Pointer[wordCache] // version 2 only, made on first AppendWord
 }
 
 // lazyFST checks and loads the vellum FST on first use.
@@ -62,11 +66,14 @@ func (l *Lexicon) ID(word string) (uint32, bool) {
 // following the last transition whose output sum does not pass id
 // (O(len(word)) state decodings, each with a binary search over the
 // state's transitions); in a version-1 section it decodes one front-coded
-// block (O(block size)). It does not allocate when cap(dst)-len(dst) >=
-// MaxWordLen.
+// block (O(block size)). A version-2 lexicon keeps the last words it
+// spelled (up to 24 bytes long) in a direct-mapped cache of 1,024 slots, so
+// a word asked again is copied without the walk. It does not allocate when
+// cap(dst)-len(dst) >= MaxWordLen, apart from the 32 KiB of that cache,
+// allocated once by the first call on a version-2 lexicon.
 func (l *Lexicon) AppendWord(dst []byte, id uint32) []byte {
 	if l.words.bs == 0 {
-		return l.fstWord(dst, id)
+		return l.cachedWord(dst, id)
 	}
 	return l.words.appendWord(dst, id)
 }
