@@ -152,11 +152,15 @@ func evalNoise(ctx context.Context, e *env, model, user, layout string, pos []st
 	sents := splitSentences(text, opts)
 	typist := correct.NewTypist(kb, seed, rate)
 	lex := eng.Lexicon()
+	var fixErr error // RunNoisy calls fix from one goroutine
 	fix := func(hist []string, typed string) evaluate.Fix {
 		core := strings.TrimFunc(typed, func(r rune) bool { return !unicode.IsLetter(r) && !unicode.IsDigit(r) })
 		_, known := lex.ID(lm.Fold(core))
 		f := evaluate.Fix{Word: typed, Known: known}
-		c, _ := eng.Correct(strings.Join(hist, " ") + " " + typed)
+		c, err := eng.Correct(strings.Join(hist, " ") + " " + typed)
+		if err != nil && fixErr == nil {
+			fixErr = err // reported after the run: a typist without corrections would mislead
+		}
 		if c == nil || strings.Contains(c.Typed, " ") {
 			return f
 		}
@@ -170,6 +174,9 @@ func evalNoise(ctx context.Context, e *env, model, user, layout string, pos []st
 		return f
 	}
 	r, err := evaluate.RunNoisy(ctx, eng, fix, sents, typist.Type, k)
+	if err == nil {
+		err = fixErr
+	}
 	if err != nil {
 		return err
 	}
@@ -195,28 +202,28 @@ func printMisses(w io.Writer, r evaluate.NoisyReport) {
 	m := r.Misses
 	pct := func(n, of int64) float64 { return 100 * float64(n) / float64(max(of, 1)) }
 	fmt.Fprintf(w, "\n%-48s %7s %7s\n", "corrupted words", "count", "share")
+	clean := r.Words - r.Corrupted
 	for _, row := range []struct {
-		name string
-		n    int64
-		key  string
+		name  string
+		n, of int64
+		key   string
 	}{
-		{"repaired: intended word suggested while typing", m.Predicted, ""},
-		{"repaired: right correction applied on space", m.Applied, "applied"},
-		{"missed: another known word typed, left alone", m.RealWord, "real_word"},
-		{"missed: right word not offered", m.NotOffered, "not_offered"},
-		{"missed: right word offered first, not applied", m.FirstNotApplied, "first_not_applied"},
-		{"missed: right word offered, not first", m.RankedLower, "ranked_lower"},
-		{"missed: wrong word applied", m.WrongApplied, "wrong_applied"},
+		{"repaired: intended word suggested while typing", m.Predicted, r.Corrupted, ""},
+		{"repaired: right correction applied on space", m.Applied, r.Corrupted, ""},
+		{"missed: another known word typed, left alone", m.RealWord, r.Corrupted, "real_word"},
+		{"missed: right word not offered", m.NotOffered, r.Corrupted, "not_offered"},
+		{"missed: right word offered first, not applied", m.FirstNotApplied, r.Corrupted, "first_not_applied"},
+		{"missed: right word offered, not first", m.RankedLower, r.Corrupted, "ranked_lower"},
+		{"missed: wrong word applied", m.WrongApplied, r.Corrupted, "wrong_applied"},
+		{"clean known words broken", m.BrokenKnown, clean, "broken_known"},
+		{"clean unknown words broken", m.BrokenUnknown, clean, "broken_unknown"},
 	} {
-		fmt.Fprintf(w, "%-48s %7d %6.2f%%", row.name, row.n, pct(row.n, r.Corrupted))
-		if ex := m.Examples[row.key]; len(ex) > 0 && row.key != "applied" {
+		fmt.Fprintf(w, "%-48s %7d %6.2f%%", row.name, row.n, pct(row.n, row.of))
+		if ex := m.Examples[row.key]; len(ex) > 0 && row.key != "" {
 			fmt.Fprintf(w, "   e.g. %s", strings.Join(ex, " "))
 		}
 		fmt.Fprintln(w)
 	}
-	clean := r.Words - r.Corrupted
-	fmt.Fprintf(w, "%-48s %7d %6.2f%%   e.g. %s\n", "clean known words broken", m.BrokenKnown, pct(m.BrokenKnown, clean), strings.Join(m.Examples["broken_known"], " "))
-	fmt.Fprintf(w, "%-48s %7d %6.2f%%   e.g. %s\n", "clean unknown words broken", m.BrokenUnknown, pct(m.BrokenUnknown, clean), strings.Join(m.Examples["broken_unknown"], " "))
 }
 
 func keyboardFor(layout string) (*correct.Keyboard, error) {
