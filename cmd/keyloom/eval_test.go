@@ -2,6 +2,7 @@ package main
 
 import (
 	"encoding/json"
+	"math"
 	"os"
 	"path/filepath"
 	"strings"
@@ -84,4 +85,65 @@ func readTestFile(t *testing.T, p string) string {
 		t.Fatal(err)
 	}
 	return string(b)
+}
+
+// TestEvalNoiseJSON types held-out Opticks sentences with 8 % of letters
+// wrong and checks the report: every corrupted word lands in exactly one
+// row of the breakdown, the repaired ones are those picked while typing or
+// corrected on space, and the share of corrupted words is near what
+// independent letter errors at that rate give, 1 − (1 − 0.08)^len summed
+// over the words (the binomial probability of at least one error; the
+// typist's rate is a per-letter rate, after Azenkot & Zhai 2012). The band
+// is wide (±30 %): letters differ in how often they are missed.
+func TestEvalNoiseJSON(t *testing.T) {
+	dir := t.TempDir()
+	model := buildOpticks(t, dir)
+	test := filepath.Join(dir, "t.txt")
+	lines := strings.SplitN(readTestFile(t, filepath.Join(refDir, "opticks-test.txt")), "\n", 81)
+	text := strings.Join(lines[:80], "\n")
+	os.WriteFile(test, []byte(text), 0o644)
+	code, out, errs := runCmd(t, dir, "eval", "--json", "--tokenized", "--noise", "0.08", "--model", model, test)
+	if code != 0 {
+		t.Fatalf("eval --noise: %d %s", code, errs)
+	}
+	var rep struct {
+		Noisy struct {
+			Words, Corrupted, Repaired, Broken int64
+			Misses                             map[string]any
+		}
+	}
+	if err := json.Unmarshal([]byte(out), &rep); err != nil {
+		t.Fatal(err)
+	}
+	r := rep.Noisy
+	count := func(k string) int64 {
+		v, ok := r.Misses[k].(float64)
+		if !ok {
+			t.Fatalf("misses lacks %q: %v", k, r.Misses)
+		}
+		return int64(v)
+	}
+	var sum int64
+	for _, k := range []string{"predicted", "applied", "real_word", "not_offered", "first_not_applied", "ranked_lower", "wrong_applied"} {
+		sum += count(k)
+	}
+	if sum != r.Corrupted {
+		t.Errorf("breakdown sums to %d, want the %d corrupted words", sum, r.Corrupted)
+	}
+	if got := count("predicted") + count("applied"); got != r.Repaired {
+		t.Errorf("predicted + applied = %d, repaired = %d", got, r.Repaired)
+	}
+	var want float64
+	var words int64
+	for _, w := range strings.Fields(text) {
+		if strings.IndexFunc(w, func(c rune) bool { return c >= 'a' && c <= 'z' || c >= 'A' && c <= 'Z' }) < 0 {
+			continue
+		}
+		words++
+		want += 1 - math.Pow(1-0.08, float64(len(w)))
+	}
+	if got := float64(r.Corrupted); got < 0.7*want || got > 1.3*want {
+		t.Errorf("%d corrupted words of %d, want about %.0f (±30 %%)", r.Corrupted, r.Words, want)
+	}
+	t.Logf("%d words (%d with letters), %d corrupted (binomial %.0f), %d repaired, %d clean broken", r.Words, words, r.Corrupted, want, r.Repaired, r.Broken)
 }
