@@ -61,6 +61,36 @@ func defaultSources() []bundle.Source {
 // defaultModelPath returns the path of the default model, building it into
 // the user's cache directory on first use.
 func defaultModelPath(ctx context.Context, e *env) (string, error) {
+	key := func(h io.Writer) {
+		io.WriteString(h, defaultRecipe)
+		io.WriteString(h, corpora.DemoText())
+		io.Copy(h, corpora.WordCounts())
+		io.Copy(h, corpora.WordList())
+	}
+	return cachedModel(ctx, e, cachedBuild{
+		recipe: defaultRecipe,
+		key:    key,
+		label:  "default model",
+		what:   "the default model",
+		corpus: "default English: invented demo corpus + SUBTLEX-US word counts + SCOWL word list",
+		src:    defaultSources,
+	})
+}
+
+// cachedBuild describes a model that commands build from bundled data into
+// the user's cache directory once and reuse afterwards.
+type cachedBuild struct {
+	recipe string          // file name prefix; see defaultRecipe
+	key    func(io.Writer) // writes everything the model depends on
+	label  string          // error prefix
+	what   string          // the model in the progress line
+	corpus string          // stored description of the training data
+	src    func() []bundle.Source
+}
+
+// cachedModel returns the path of the model b describes, named by its
+// recipe and a CRC-32 of its key, building it on first use.
+func cachedModel(ctx context.Context, e *env, b cachedBuild) (string, error) {
 	dir := e.cacheDir
 	if dir == "" {
 		d, err := os.UserCacheDir()
@@ -70,28 +100,25 @@ func defaultModelPath(ctx context.Context, e *env) (string, error) {
 		dir = filepath.Join(d, "keyloom")
 	}
 	h := crc32.NewIEEE()
-	io.WriteString(h, defaultRecipe)
-	io.WriteString(h, corpora.DemoText())
-	io.Copy(h, corpora.WordCounts())
-	io.Copy(h, corpora.WordList())
-	path := filepath.Join(dir, fmt.Sprintf("%s-%08x.klm", defaultRecipe, h.Sum32()))
+	b.key(h)
+	path := filepath.Join(dir, fmt.Sprintf("%s-%08x.klm", b.recipe, h.Sum32()))
 	if _, err := os.Stat(path); err == nil {
 		return path, nil
 	}
 	if err := os.MkdirAll(dir, 0o755); err != nil {
-		return "", fmt.Errorf("default model: %w", err)
+		return "", fmt.Errorf("%s: %w", b.label, err)
 	}
-	fmt.Fprintf(e.stderr, "keyloom: building the default model into %s (once)…\n", path)
-	_, data, err := bundle.Build(ctx, defaultSources(), bundle.BuildOptions{
+	fmt.Fprintf(e.stderr, "keyloom: building %s into %s (once)…\n", b.what, path)
+	_, data, err := bundle.Build(ctx, b.src(), bundle.BuildOptions{
 		Order:      3,
 		ListWeight: defaultListWeight,
-		Corpus:     "default English: invented demo corpus + SUBTLEX-US word counts + SCOWL word list",
+		Corpus:     b.corpus,
 	})
 	if err != nil {
-		return "", fmt.Errorf("default model: %w", err)
+		return "", fmt.Errorf("%s: %w", b.label, err)
 	}
 	if err := format.WriteFileAtomic(path, data, 0o644); err != nil {
-		return "", fmt.Errorf("default model: %w", err)
+		return "", fmt.Errorf("%s: %w", b.label, err)
 	}
 	return path, nil
 }

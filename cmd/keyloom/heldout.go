@@ -4,16 +4,13 @@ import (
 	"bytes"
 	"context"
 	"fmt"
-	"hash/crc32"
 	"io"
 	"os"
-	"path/filepath"
 	"strings"
 
 	"github.com/keyloom/keyloom"
 	"github.com/keyloom/keyloom/corpora"
 	"github.com/keyloom/keyloom/internal/bundle"
-	"github.com/keyloom/keyloom/internal/format"
 )
 
 // heldOutRecipe names the build of a held-out model; change it whenever
@@ -63,34 +60,19 @@ func openHeldOut(ctx context.Context, e *env, paths []string, opts keyloom.Optio
 		tests = append(tests, b)
 	}
 	src, left := heldOutSources(tests)
-	dir := e.cacheDir
-	if dir == "" {
-		d, err := os.UserCacheDir()
-		if err != nil {
-			d = os.TempDir()
-		}
-		dir = filepath.Join(d, "keyloom")
-	}
-	h := crc32.NewIEEE()
-	io.WriteString(h, heldOutRecipe+"\x00"+defaultRecipe+"\x00"+strings.Join(left, "\x00"))
-	io.WriteString(h, corpora.DemoText())
-	path := filepath.Join(dir, fmt.Sprintf("%s-%08x.klm", heldOutRecipe, h.Sum32()))
-	if _, err := os.Stat(path); err != nil {
-		if err := os.MkdirAll(dir, 0o755); err != nil {
-			return nil, nil, fmt.Errorf("held-out model: %w", err)
-		}
-		fmt.Fprintf(e.stderr, "keyloom: building a model without %v into %s (once)…\n", left, path)
-		_, data, err := bundle.Build(ctx, src, bundle.BuildOptions{
-			Order:      3,
-			ListWeight: defaultListWeight,
-			Corpus:     "held out: " + src[0].Name + " + SUBTLEX-US word counts + SCOWL word list",
-		})
-		if err != nil {
-			return nil, nil, fmt.Errorf("held-out model: %w", err)
-		}
-		if err := format.WriteFileAtomic(path, data, 0o644); err != nil {
-			return nil, nil, fmt.Errorf("held-out model: %w", err)
-		}
+	path, err := cachedModel(ctx, e, cachedBuild{
+		recipe: heldOutRecipe,
+		key: func(h io.Writer) {
+			io.WriteString(h, heldOutRecipe+"\x00"+defaultRecipe+"\x00"+strings.Join(left, "\x00"))
+			io.WriteString(h, corpora.DemoText())
+		},
+		label:  "held-out model",
+		what:   fmt.Sprintf("a model without %v", left),
+		corpus: "held out: " + src[0].Name + " + SUBTLEX-US word counts + SCOWL word list",
+		src:    func() []bundle.Source { return src },
+	})
+	if err != nil {
+		return nil, nil, err
 	}
 	eng, err := keyloom.Open(path, opts)
 	return eng, left, err
