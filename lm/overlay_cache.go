@@ -190,20 +190,7 @@ func (c ovCache) add(toks []uint32, bos uint32, tau float64, scratch []cacheEnt)
 	}
 	step := math.Exp(1 / tau)
 	g := c.grow
-	ups := scratch[:0]
-	prev := noPrev
-	for _, t := range toks {
-		if t == bos {
-			prev = t
-			continue
-		}
-		g *= step
-		ups = append(ups, cacheEnt{prev: noPrev, tok: t, w: g})
-		if prev != noPrev {
-			ups = append(ups, cacheEnt{prev: prev, tok: t, w: g})
-		}
-		prev = t
-	}
+	ups, g := cacheUpdates(scratch[:0], toks, bos, g, step)
 	if g > 1e150 { // rescale to keep weights finite
 		c = c.folded()
 		inv := 1 / g
@@ -459,4 +446,25 @@ func (c ovCache) remap(V uint32, m func(uint32) uint32) ovCache {
 	slices.SortFunc(dropped.bi, cmpCache)
 	dropped.rank()
 	return dropped
+}
+
+// cacheUpdates appends to ups the weighted entries a chain of tokens adds
+// to the cache, a unigram and (after the first word) a bigram entry per
+// token, the weight growing by step from g on; it returns them with the
+// last weight. <s> is context only.
+func cacheUpdates(ups []cacheEnt, toks []uint32, bos uint32, g, step float64) ([]cacheEnt, float64) {
+	prev := noPrev
+	for _, t := range toks {
+		if t == bos {
+			prev = t
+			continue
+		}
+		g *= step
+		ups = append(ups, cacheEnt{prev: noPrev, tok: t, w: g})
+		if prev != noPrev {
+			ups = append(ups, cacheEnt{prev: prev, tok: t, w: g})
+		}
+		prev = t
+	}
+	return ups, g
 }

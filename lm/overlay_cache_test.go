@@ -37,20 +37,7 @@ func (c refCache) add(toks []uint32, bos uint32, tau float64) refCache {
 	}
 	step := math.Exp(1 / tau)
 	g := c.grow
-	var ups []cacheEnt
-	prev := noPrev
-	for _, t := range toks {
-		if t == bos {
-			prev = t
-			continue
-		}
-		g *= step
-		ups = append(ups, cacheEnt{prev: noPrev, tok: t, w: g})
-		if prev != noPrev {
-			ups = append(ups, cacheEnt{prev: prev, tok: t, w: g})
-		}
-		prev = t
-	}
+	ups, g := cacheUpdates(nil, toks, bos, g, step)
 	if g > 1e150 {
 		inv := 1 / g
 		c.uni = scaleCache(c.uni, inv)
