@@ -42,14 +42,27 @@ func (s *monoSeq) at(i int) uint64 {
 	if s.plain {
 		return s.vals.at(i)
 	}
+	w, x, ok := s.highWord(i)
+	if !ok {
+		return 0
+	}
+	pos := w<<6 + bits.TrailingZeros64(x)
+	return uint64(pos-i)<<s.lbits | s.low.at(i)
+}
+
+// highWord returns the index of the word of the high part that holds set
+// bit number i, and that word with the bits below set bit i cleared; ok is
+// false when the high part runs out of set bits, which only a corrupt
+// section does.
+func (s *monoSeq) highWord(i int) (w int, x uint64, ok bool) {
 	d := s.every()
 	p := int(s.sample.at(i / d)) // position of set bit number i − i%d
 	k := i % d                   // set bits still to skip
-	w := p >> 6
+	w = p >> 6
 	if w >= len(s.high) {
-		return 0
+		return 0, 0, false
 	}
-	x := s.high[w] &^ (1<<(uint(p)&63) - 1)
+	x = s.high[w] &^ (1<<(uint(p)&63) - 1)
 	for {
 		c := bits.OnesCount64(x)
 		if k < c {
@@ -58,12 +71,12 @@ func (s *monoSeq) at(i int) uint64 {
 		k -= c
 		w++
 		if w >= len(s.high) {
-			return 0 // only a corrupt section runs out of set bits
+			return 0, 0, false
 		}
 		x = s.high[w]
 	}
-	pos := w<<6 + int(select64(x, uint(k)))
-	return uint64(pos-i)<<s.lbits | s.low.at(i)
+	b := select64(x, uint(k))
+	return w, x &^ (1<<b - 1), true
 }
 
 // at2 returns values i and i + 1 (i + 1 < n) with one select: the high
@@ -72,30 +85,13 @@ func (s *monoSeq) at2(i int) (uint64, uint64) {
 	if s.plain {
 		return s.vals.at(i), s.vals.at(i + 1)
 	}
-	d := s.every()
-	p := int(s.sample.at(i / d))
-	k := i % d
-	w := p >> 6
-	if w >= len(s.high) {
+	w, x, ok := s.highWord(i)
+	if !ok {
 		return 0, 0
 	}
-	x := s.high[w] &^ (1<<(uint(p)&63) - 1)
-	for {
-		c := bits.OnesCount64(x)
-		if k < c {
-			break
-		}
-		k -= c
-		w++
-		if w >= len(s.high) {
-			return 0, 0 // only a corrupt section runs out of set bits
-		}
-		x = s.high[w]
-	}
-	b := select64(x, uint(k))
-	pos := w<<6 + int(b)
+	pos := w<<6 + bits.TrailingZeros64(x)
 	// The next set bit: in the rest of this word, or in a later one.
-	x &^= 2<<b - 1
+	x &= x - 1
 	for x == 0 {
 		w++
 		if w >= len(s.high) {
