@@ -92,10 +92,7 @@ func BenchmarkOverlayLearn(b *testing.B) {
 				cpu = append(cpu, threadClock()-c0)
 				i++
 			}
-			reportSpread(b, "", wall)
-			if threadClockOK {
-				reportSpread(b, "cpu-", cpu)
-			}
+			reportWallCPU(b, wall, cpu)
 			b.ReportMetric(float64(ov.Entries()), "entries")
 		})
 	}
@@ -173,10 +170,7 @@ func BenchmarkOverlayLearnSuggest(b *testing.B) {
 		cpu = append(cpu, threadClock()-c0)
 		i++
 	}
-	reportSpread(b, "", wall)
-	if threadClockOK {
-		reportSpread(b, "cpu-", cpu)
-	}
+	reportWallCPU(b, wall, cpu)
 }
 
 // BenchmarkOverlayAppendSection saves an overlay of about 10k n-grams
@@ -309,5 +303,14 @@ func BenchmarkOverlayTopK(b *testing.B) {
 				i++
 			}
 		})
+	}
+}
+
+// reportWallCPU reports the spread of wall times and, where the thread
+// clock works, of thread CPU times.
+func reportWallCPU(b *testing.B, wall, cpu []time.Duration) {
+	reportSpread(b, "", wall)
+	if threadClockOK {
+		reportSpread(b, "cpu-", cpu)
 	}
 }
