@@ -202,7 +202,7 @@ func (e *Engine) contextOverrules(field string, ctx []uint32, cand correct.Candi
 // punctuation left out) when the lexicon knows it and the user has not
 // taught it.
 func (e *Engine) lexiconOnly(field string) (uint32, bool) {
-	core := strings.ToLower(strings.TrimFunc(field, func(r rune) bool { return !unicode.IsLetter(r) && !unicode.IsDigit(r) }))
+	core := lm.Fold(trimWord(field))
 	id, ok := e.model.Lex.ID(core)
 	if !ok || e.user.ov.Load().View().Known(core) {
 		return 0, false
@@ -262,4 +262,29 @@ func equalDigits(a, b string) bool {
 		}
 		i, j = i+1, j+1
 	}
+}
+
+// CorrectWord is the core of Correct for simulators and measurement tools,
+// as Predict is of Suggest: typed is a finished word after history (the
+// current sentence's folded words, oldest first). It returns the
+// corrections Correct would offer, best first and folded, whether the
+// first would be applied on space, and whether the lexicon knows the word
+// as typed (surrounding punctuation left out). A word that Correct would
+// split in two ("aboutthe") gets no corrections here.
+func (e *Engine) CorrectWord(history []string, typed string) (offered []string, apply, known bool, err error) {
+	_, known = e.model.Lex.ID(lm.Fold(trimWord(typed)))
+	c, err := e.Correct(strings.Join(history, " ") + " " + typed)
+	if err != nil || c == nil || strings.Contains(c.Typed, " ") {
+		return nil, false, known, err
+	}
+	offered = append(offered, lm.Fold(c.Replacement))
+	for _, a := range c.Alternatives {
+		offered = append(offered, lm.Fold(a))
+	}
+	return offered, c.Apply, known, nil
+}
+
+// trimWord returns w without the punctuation around it.
+func trimWord(w string) string {
+	return strings.TrimFunc(w, func(r rune) bool { return !unicode.IsLetter(r) && !unicode.IsDigit(r) })
 }

@@ -167,27 +167,11 @@ func TestTypistHeldOut(t *testing.T) {
 			}
 			sents = append(sents, s)
 		}
-		lex := e.Lexicon()
-		fix := func(hist []string, typed string) evaluate.Fix {
-			_, known := lex.ID(typed)
-			f := evaluate.Fix{Word: typed, Known: known}
-			c, err := e.Correct(strings.Join(hist, " ") + " " + typed)
-			if err != nil {
-				t.Fatalf("Correct: %v", err)
-			}
-			if c == nil || strings.Contains(c.Typed, " ") {
-				return f
-			}
-			f.Offered = append(f.Offered, lm.Fold(c.Replacement))
-			for _, a := range c.Alternatives {
-				f.Offered = append(f.Offered, lm.Fold(a))
-			}
-			if c.Apply {
-				f.Word, f.Applied = f.Offered[0], true
-			}
-			return f
-		}
+		fix, fixErr := evaluate.NewFixer(e.CorrectWord)
 		r, err := evaluate.RunNoisy(context.Background(), e, fix, sents, correct.NewTypist(kb, 1, 0.08).Type, 3)
+		if err == nil {
+			err = fixErr()
+		}
 		if err != nil {
 			t.Fatal(err)
 		}

@@ -8,7 +8,6 @@ import (
 	"io"
 	"os"
 	"strings"
-	"unicode"
 
 	"github.com/keyloom/keyloom"
 	"github.com/keyloom/keyloom/correct"
@@ -151,31 +150,10 @@ func evalNoise(ctx context.Context, e *env, model, user, layout string, pos []st
 	}
 	sents := splitSentences(text, opts)
 	typist := correct.NewTypist(kb, seed, rate)
-	lex := eng.Lexicon()
-	var fixErr error // RunNoisy calls fix from one goroutine
-	fix := func(hist []string, typed string) evaluate.Fix {
-		core := strings.TrimFunc(typed, func(r rune) bool { return !unicode.IsLetter(r) && !unicode.IsDigit(r) })
-		_, known := lex.ID(lm.Fold(core))
-		f := evaluate.Fix{Word: typed, Known: known}
-		c, err := eng.Correct(strings.Join(hist, " ") + " " + typed)
-		if err != nil && fixErr == nil {
-			fixErr = err // reported after the run: a typist without corrections would mislead
-		}
-		if c == nil || strings.Contains(c.Typed, " ") {
-			return f
-		}
-		f.Offered = append(f.Offered, lm.Fold(c.Replacement))
-		for _, a := range c.Alternatives {
-			f.Offered = append(f.Offered, lm.Fold(a))
-		}
-		if c.Apply {
-			f.Word, f.Applied = f.Offered[0], true
-		}
-		return f
-	}
+	fix, fixErr := evaluate.NewFixer(eng.CorrectWord)
 	r, err := evaluate.RunNoisy(ctx, eng, fix, sents, typist.Type, k)
 	if err == nil {
-		err = fixErr
+		err = fixErr()
 	}
 	if err != nil {
 		return err

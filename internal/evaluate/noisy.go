@@ -23,6 +23,32 @@ type Fix struct {
 // did with the word.
 type Fixer func(history []string, typed string) Fix
 
+// WordCorrector is what a Fixer asks of an engine for one finished word
+// (keyloom's Engine.CorrectWord): the corrections offered, best first and
+// folded, whether the first is applied on space, and whether the engine
+// knows the typed word.
+type WordCorrector func(history []string, typed string) (offered []string, apply, known bool, err error)
+
+// NewFixer returns the Fixer of an engine's word corrector, and a function
+// that returns the first error the corrector gave (RunNoisy goes on with
+// such a word left as typed; report the error after the run, since a
+// typist without corrections would mislead).
+func NewFixer(c WordCorrector) (Fixer, func() error) {
+	var first error // RunNoisy calls the Fixer from one goroutine
+	fix := func(history []string, typed string) Fix {
+		offered, apply, known, err := c(history, typed)
+		if err != nil && first == nil {
+			first = err
+		}
+		f := Fix{Word: typed, Offered: offered, Known: known}
+		if apply && len(offered) > 0 {
+			f.Word, f.Applied = offered[0], true
+		}
+		return f
+	}
+	return fix, func() error { return first }
+}
+
 // Misses breaks the words typed with errors down by what became of them,
 // and the clean words broken by why. Each corrupted word is counted in
 // exactly one of the first seven fields, in the order given.

@@ -2,6 +2,7 @@ package evaluate_test
 
 import (
 	"context"
+	"errors"
 	"testing"
 
 	"github.com/keyloom/keyloom/internal/evaluate"
@@ -65,5 +66,50 @@ func TestNoisyMisses(t *testing.T) {
 				t.Errorf("RunNoisy repaired %d broken %d, want %v %v", r.Repaired, r.Broken, tc.repaired, tc.broken)
 			}
 		})
+	}
+}
+
+// TestNewFixer checks how a word corrector's answer becomes a Fix: the
+// first offer replaces the word only when applied, and the first error is
+// the one kept.
+func TestNewFixer(t *testing.T) {
+	errFirst, errLater := errors.New("first"), errors.New("later")
+	answers := map[string]struct {
+		offered      []string
+		apply, known bool
+		err          error
+	}{
+		"teh":   {[]string{"the", "ten"}, true, false, nil},
+		"form":  {[]string{"from"}, false, true, nil},
+		"zzxq":  {nil, false, false, errFirst},
+		"qqzx":  {nil, true, false, errLater},
+		"fine.": {nil, false, true, nil},
+	}
+	fix, firstErr := evaluate.NewFixer(func(_ []string, typed string) ([]string, bool, bool, error) {
+		a := answers[typed]
+		return a.offered, a.apply, a.known, a.err
+	})
+	tests := []struct {
+		typed   string
+		word    string
+		applied bool
+		known   bool
+	}{
+		{"teh", "the", true, false},
+		{"form", "form", false, true},
+		{"zzxq", "zzxq", false, false},
+		{"qqzx", "qqzx", false, false}, // apply without an offer changes nothing
+		{"fine.", "fine.", false, true},
+	}
+	for _, tc := range tests {
+		t.Run(tc.typed, func(t *testing.T) {
+			f := fix(nil, tc.typed)
+			if f.Word != tc.word || f.Applied != tc.applied || f.Known != tc.known {
+				t.Errorf("fix(%q) = %+v, want word %q applied %v known %v", tc.typed, f, tc.word, tc.applied, tc.known)
+			}
+		})
+	}
+	if err := firstErr(); err != errFirst {
+		t.Errorf("first error = %v, want %v", err, errFirst)
 	}
 }
