@@ -114,7 +114,8 @@ func (e *Engine) correctField(corr *correct.Corrector, q query, head, field stri
 	if strings.IndexFunc(field, unicode.IsLetter) < 0 {
 		return nil // a number or a symbol: no lexicon says which one was meant
 	}
-	c := parseCursor(head, e.model.LM.Order()-1)
+	var wb [lm.MaxOrder]string
+	c := parseCursorInto(head, e.model.LM.Order()-1, wb[:0])
 	var ib [lm.MaxOrder + 1]uint32
 	ctx := q.contextIDs(c.words, ib[:0])
 	var buf [4]correct.Candidate
@@ -132,7 +133,7 @@ func (e *Engine) correctField(corr *correct.Corrector, q query, head, field stri
 	}
 	// A space typed inside a word: join with the previous field.
 	if h2, prev := lastField(head); prev != "" && (best == nil || !best.Apply) {
-		pc := parseCursor(h2, e.model.LM.Order()-1)
+		pc := parseCursorInto(h2, e.model.LM.Order()-1, wb[:0])
 		pctx := q.contextIDs(pc.words, ib[:0])
 		if m, mdec, ok := corr.Merge(prev, field, pctx); ok && mdec.Apply {
 			best = &Correction{Typed: prev + " " + field, Replacement: m.Word, Confidence: mdec.Confidence, Apply: true}

@@ -61,7 +61,11 @@ func isWordRune(r rune) bool {
 // parseCursor reads the text before the cursor backwards: the partial word
 // at the end, then at most maxWords words of the current sentence. It reads
 // no further back than maxContextBytes.
-func parseCursor(before string, maxWords int) cursor {
+func parseCursor(before string, maxWords int) cursor { return parseCursorInto(before, maxWords, nil) }
+
+// parseCursorInto is parseCursor with the words appended to words[:0]: give
+// it room for maxWords and it does not allocate for them.
+func parseCursorInto(before string, maxWords int, words []string) cursor {
 	if len(before) > maxContextBytes {
 		cut := len(before) - maxContextBytes
 		for cut < len(before) && !utf8.RuneStart(before[cut]) {
@@ -69,7 +73,7 @@ func parseCursor(before string, maxWords int) cursor {
 		}
 		before = before[cut:]
 	}
-	var c cursor
+	c := cursor{words: words[:0]}
 	i := len(before)
 	// word returns the start of the word ending at end (end excluded).
 	word := func(end int) int {
@@ -133,7 +137,8 @@ func (e *Engine) Suggest(beforeCursor string) (Result, error) {
 	if e.closed.Load() {
 		return Result{}, ErrClosed
 	}
-	c := parseCursor(beforeCursor, e.model.LM.Order()-1)
+	var wb [lm.MaxOrder]string
+	c := parseCursorInto(beforeCursor, e.model.LM.Order()-1, wb[:0])
 	q := e.query()
 	var ib [lm.MaxOrder + 1]uint32
 	ctx := q.contextIDs(c.words, ib[:0])

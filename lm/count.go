@@ -402,8 +402,17 @@ func foldInto(dst, w []byte) []byte {
 	return dst
 }
 
-// Fold returns the folded (lower-case) form used as the vocabulary key of a word.
-func Fold(w string) string { return string(foldInto(nil, []byte(w))) }
+// Fold returns the folded (lower-case) form used as the vocabulary key of a
+// word. A word that is already folded ASCII is returned as it is, without
+// allocating.
+func Fold(w string) string {
+	for i := 0; i < len(w); i++ {
+		if c := w[i]; c >= utf8.RuneSelf || 'A' <= c && c <= 'Z' {
+			return string(foldInto(make([]byte, 0, len(w)), []byte(w)))
+		}
+	}
+	return w
+}
 
 // Merge adds the counts of o (same order) into c.
 func (c *Counter) Merge(o *Counter) error {
