@@ -177,16 +177,63 @@ func zipfIDs(b *testing.B, c *corpusLexicon, k int) []uint32 {
 	return out
 }
 
-// BenchmarkAppendSurface measures id → display form.
+// BenchmarkAppendSurface measures id → display form, in version 2 (the
+// list of exception ids and whole surfaces, kept as the baseline) and
+// version 3 (the non-lower bitmap and exception records the writer uses),
+// on the same words: every SUBTLEX-US id in a spread order (no
+// exceptions); the 605 SCOWL words whose surface is an exception (few
+// enough to stay in the word cache, which a mask record uses to spell
+// the word); and the 1,800 exceptions of 5,000 synthetic words, more than
+// the cache holds. It reports the casing bytes per word of each section.
 func BenchmarkAppendSurface(b *testing.B) {
-	c := loadCorpus(b, subtlexPath)
-	buf := make([]byte, 0, 2*MaxWordLen)
-	n := uint32(c.lex.Len())
-	b.ReportAllocs()
-	var id uint32
-	for b.Loop() {
-		buf = c.lex.AppendSurface(buf[:0], id)
-		id = (id + 7919) % n
+	scowl := loadCorpus(b, scowlPath)
+	var scowlExc []uint32
+	for id := uint32(0); id < uint32(scowl.lex.Len()); id++ {
+		if scowl.lex.casing.code(id) == caseExcept {
+			scowlExc = append(scowlExc, id)
+		}
+	}
+	synth := manyExceptions(5000)
+	var synthExc []uint32
+	for i := range synth {
+		if i%3 == 0 || i%50 == 0 {
+			synthExc = append(synthExc, uint32(i))
+		}
+	}
+	subtlex := loadCorpus(b, subtlexPath)
+	sets := []struct {
+		name    string
+		entries []Entry
+		ids     []uint32
+	}{
+		{"subtlex-all", subtlex.entries, uniformIDs(uint32(len(subtlex.entries)), 4096)},
+		{"scowl-exceptions", scowl.entries, scowlExc},
+		{"synthetic-exceptions", synth, synthExc},
+	}
+	for _, set := range sets {
+		for _, version := range []uint16{listVersion, SectionVersion} {
+			b.Run(fmt.Sprintf("%s/version=%d", set.name, version), func(b *testing.B) {
+				sec, err := appendSectionVersion(nil, set.entries, version, 0)
+				if err != nil {
+					b.Fatal(err)
+				}
+				lex, err := LoadSection(sec)
+				if err != nil {
+					b.Fatal(err)
+				}
+				buf := make([]byte, 0, 2*MaxWordLen)
+				b.ReportAllocs()
+				i := 0
+				for b.Loop() {
+					buf = lex.AppendSurface(buf[:0], set.ids[i])
+					if i++; i == len(set.ids) {
+						i = 0
+					}
+				}
+				_, _, cs := lex.SizeBreakdown()
+				b.ReportMetric(float64(cs)/float64(lex.Len()), "casing-bytes/word")
+			})
+		}
 	}
 }
 

@@ -50,8 +50,18 @@ func AppendSection(dst []byte, entries []Entry) ([]byte, error) {
 }
 
 // appendSection is AppendSection with a given number of words per block of
-// the word table: 0 writes version 2 (no table), 1..maxBlockSize version 1.
+// the word table: 0 writes version 3 (no table), 1..maxBlockSize version 1.
 func appendSection(dst []byte, entries []Entry, bs int) ([]byte, error) {
+	if bs > 0 {
+		return appendSectionVersion(dst, entries, tableVersion, bs)
+	}
+	return appendSectionVersion(dst, entries, SectionVersion, 0)
+}
+
+// appendSectionVersion is AppendSection writing the given layout version:
+// tableVersion with bs words per block, listVersion or SectionVersion with
+// bs 0. Versions before SectionVersion are kept for tests and comparisons.
+func appendSectionVersion(dst []byte, entries []Entry, version uint16, bs int) ([]byte, error) {
 	if err := checkEntries(entries); err != nil {
 		return dst, err
 	}
@@ -63,10 +73,7 @@ func appendSection(dst []byte, entries []Entry, bs int) ([]byte, error) {
 	base := len(dst)
 	out := append(dst, make([]byte, headerSize)...)
 	var h header
-	h.version = SectionVersion
-	if bs > 0 {
-		h.version = tableVersion
-	}
+	h.version = version
 	h.count = uint32(len(entries))
 	h.blockSize = uint32(bs)
 	for _, e := range entries {
@@ -92,34 +99,7 @@ func appendSection(dst []byte, entries []Entry, bs int) ([]byte, error) {
 	out = append(out, words...)
 	out = padTo(out, base)
 
-	h.caseOff = uint32(len(out) - base)
-	codes := make([]byte, (len(entries)+3)/4)
-	var excIDs, excEnds []uint32
-	var excData []byte
-	for i, e := range entries {
-		c := casingCode(e.Word, e.Surface)
-		codes[i/4] |= c << (2 * (i % 4))
-		if c == caseExcept {
-			excIDs = append(excIDs, uint32(i))
-			excData = append(excData, e.Surface...)
-			excEnds = append(excEnds, uint32(len(excData)))
-		}
-	}
-	out = append(out, codes...)
-	out = padTo(out, base)
-	h.excCount = uint32(len(excIDs))
-	h.excIDOff = uint32(len(out) - base)
-	for _, id := range excIDs {
-		out = binary.LittleEndian.AppendUint32(out, id)
-	}
-	h.excEndOff = uint32(len(out) - base)
-	for _, end := range excEnds {
-		out = binary.LittleEndian.AppendUint32(out, end)
-	}
-	h.excDataOff = uint32(len(out) - base)
-	h.excDataLen = uint32(len(excData))
-	out = append(out, excData...)
-	out = padTo(out, base)
+	out = appendCasing(out, base, entries, &h)
 
 	if len(out)-base > math.MaxUint32 {
 		return dst, fmt.Errorf("%w: section would be %d bytes", ErrTooLarge, len(out)-base)

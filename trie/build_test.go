@@ -108,9 +108,9 @@ func TestSmallSectionLayout(t *testing.T) {
 	for _, v := range []struct {
 		version uint16
 		bs      int
-	}{{tableVersion, blockSize}, {SectionVersion, 0}} {
+	}{{tableVersion, blockSize}, {listVersion, 0}, {SectionVersion, 0}} {
 		t.Run(fmt.Sprintf("version=%d", v.version), func(t *testing.T) {
-			sec, err := appendSection(nil, smallEntries, v.bs)
+			sec, err := appendSectionVersion(nil, smallEntries, v.version, v.bs)
 			if err != nil {
 				t.Fatal(err)
 			}
@@ -160,12 +160,28 @@ func checkSmallLayout(t *testing.T, sec []byte, version uint16, bs int) {
 	excEnds := []byte{6, 0, 0, 0}
 	excData := []byte("iPhone")
 
+	wordsField := len(words) // header field 36
+	if version == SectionVersion {
+		// Version 3: the bitmap marks I, iPhone and NASA (words 0, 1, 3:
+		// 0b1011) in one uint64; their codes 1, 3, 2 (1 | 3<<2 | 2<<4)
+		// fill another; field 36 holds their number, 3. One bitmap rank
+		// sample and one exception rank sample (0: nothing before the
+		// first word or code); one record offset sample (record 0 at 0);
+		// the record of iPhone is its mask over "iphone", bit 1 (p), as
+		// the one-byte uvarint 0x02.
+		casing = []byte{0x0b, 0, 0, 0, 0, 0, 0, 0, 0x2d, 0, 0, 0, 0, 0, 0, 0}
+		excIDs = []byte{0, 0, 0, 0, 0, 0, 0, 0}
+		excEnds = []byte{0, 0, 0, 0}
+		excData = []byte{0x02}
+		wordsField = 3
+	}
+
 	blocksOff := al(64 + F)
 	wordsOff := blocksOff + len(blocks)
 	caseOff := al(wordsOff + len(words))
 	excIDOff := al(caseOff + len(casing))
-	excEndOff := excIDOff + 4
-	excDataOff := excEndOff + 4
+	excEndOff := excIDOff + len(excIDs)
+	excDataOff := excEndOff + len(excEnds)
 	total := al(excDataOff + len(excData))
 
 	want := make([]byte, total)
@@ -175,7 +191,7 @@ func checkSmallLayout(t *testing.T, sec []byte, version uint16, bs int) {
 	le.PutUint16(want[6:], 0) // flags
 	for _, f := range []struct{ at, v int }{
 		{8, total}, {12, len(smallEntries)}, {20, 64}, {24, F}, {28, blocksOff},
-		{32, wordsOff}, {36, len(words)}, {40, caseOff}, {44, 1}, {48, excIDOff},
+		{32, wordsOff}, {36, wordsField}, {40, caseOff}, {44, 1}, {48, excIDOff},
 		{52, excEndOff}, {56, excDataOff}, {60, len(excData)},
 	} {
 		le.PutUint32(want[f.at:], uint32(f.v))

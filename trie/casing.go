@@ -1,7 +1,9 @@
 package trie
 
 // This file holds the surface casing of words: a 2-bit code per word and a
-// table of exceptions for surfaces that no code describes.
+// table of exceptions for surfaces that no code describes. The exception
+// table of versions 1 and 2 is here; the compact one of version 3 is in
+// casemask.go.
 
 import (
 	"encoding/binary"
@@ -10,12 +12,24 @@ import (
 )
 
 // casingTable is a read-only view of the casing part of a section. Its
-// slices alias the section bytes.
+// slices alias the section bytes. In versions 1 and 2 codes holds a code
+// for every word and excIDs, excEnds and excData the exceptions. A
+// version-3 section (compact set) keeps a bitmap of the words that are not
+// lower case, codes for those words only, and compact exception records
+// (casemask.go).
 type casingTable struct {
-	codes   []byte // 2 bits per word
+	codes   []byte // 2 bits per word (version 3: per non-lower word)
 	excIDs  []byte // e little-endian uint32 word ids, strictly ascending
 	excEnds []byte // e little-endian uint32 end offsets into excData
 	excData []byte
+
+	compact  bool
+	nonLower uint32 // number of set bits in bitmap
+	bitmap   []byte // bit i (of uint64 i/64) set when word i has a code other than caseSame
+	bitRank  []byte // uint32 per bitRankStep words: set bits before the step
+	rank     []byte // uint32 per rankStep codes: exceptions before the step
+	samples  []byte // uint32 per recordStep records: offset of the record
+	records  []byte // e exception records, see appendRecord
 }
 
 // capitalise appends w with its first rune upper-cased.
@@ -54,11 +68,50 @@ func casingCode(word, surface string) byte {
 // code returns the casing code of word id, which must be below the word
 // count.
 func (c *casingTable) code(id uint32) byte {
-	i := int(id / 4)
-	if i >= len(c.codes) {
+	if c.compact {
+		j, ok := c.nonLowerRank(id)
+		if !ok {
+			return caseSame
+		}
+		return codeAt(c.codes, j)
+	}
+	return codeAt(c.codes, int(id))
+}
+
+// codeAt returns code i of the 2-bit codes, or caseSame past their end.
+func codeAt(codes []byte, id int) byte {
+	i := id / 4
+	if i >= len(codes) {
 		return caseSame
 	}
-	return c.codes[i] >> (2 * (id % 4)) & 3
+	return codes[i] >> (2 * (id % 4)) & 3
+}
+
+// size returns the bytes the casing parts take, padding excluded.
+func (c *casingTable) size() int {
+	return len(c.codes) + len(c.excIDs) + len(c.excEnds) + len(c.excData) +
+		len(c.bitmap) + len(c.bitRank) + len(c.rank) + len(c.samples) + len(c.records)
+}
+
+// appendException appends the surface of word id, which has code
+// caseExcept, to dst: the stored surface, or in a version-3 section the
+// folded word with the runes of its mask upper-cased. It reports false,
+// with dst unchanged, when the table does not hold it.
+func (l *Lexicon) appendException(dst []byte, id uint32) ([]byte, bool) {
+	c := &l.casing
+	if !c.compact {
+		s, ok := c.exception(id)
+		return append(dst, s...), ok
+	}
+	rec, ok := c.compactRecord(id)
+	switch {
+	case !ok:
+		return dst, false
+	case rec.mask == 0:
+		return append(dst, rec.surface...), true
+	}
+	var buf [MaxWordLen]byte
+	return appendMasked(dst, l.AppendWord(buf[:0], id), rec.mask), true
 }
 
 // exception returns the stored surface of word id, or false when the table
@@ -131,4 +184,42 @@ func (c *casingTable) validate(n uint32, caseOff, idOff, endOff, dataOff int) er
 		return corrupt("exceptions", dataOff+int(prevEnd), "%d bytes after the last exception surface", len(c.excData)-int(prevEnd))
 	}
 	return nil
+}
+
+// appendCasing appends the casing parts of entries to out, whose section
+// starts at base, in the layout of h.version, and records their offsets
+// and counts in h.
+func appendCasing(out []byte, base int, entries []Entry, h *header) []byte {
+	if h.version >= SectionVersion {
+		return appendCompactCasing(out, base, entries, h)
+	}
+	le := binary.LittleEndian
+	h.caseOff = uint32(len(out) - base)
+	codes := make([]byte, (len(entries)+3)/4)
+	var excIDs, excEnds []uint32
+	var excData []byte
+	for i, e := range entries {
+		c := casingCode(e.Word, e.Surface)
+		codes[i/4] |= c << (2 * (i % 4))
+		if c == caseExcept {
+			excIDs = append(excIDs, uint32(i))
+			excData = append(excData, e.Surface...)
+			excEnds = append(excEnds, uint32(len(excData)))
+		}
+	}
+	out = append(out, codes...)
+	out = padTo(out, base)
+	h.excCount = uint32(len(excIDs))
+	h.excIDOff = uint32(len(out) - base)
+	for _, id := range excIDs {
+		out = le.AppendUint32(out, id)
+	}
+	h.excEndOff = uint32(len(out) - base)
+	for _, end := range excEnds {
+		out = le.AppendUint32(out, end)
+	}
+	h.excDataOff = uint32(len(out) - base)
+	h.excDataLen = uint32(len(excData))
+	out = append(out, excData...)
+	return padTo(out, base)
 }

@@ -38,8 +38,8 @@ var (
 	ErrCorrupt = errors.New("trie: corrupt lexicon section")
 
 	// ErrVersion is returned when a lexicon section was written with a layout
-	// version other than [SectionVersion] or 1 (the version with a word
-	// table), or with flags this version does not know.
+	// version outside 1 (the version with a word table) to [SectionVersion],
+	// or with flags this version does not know.
 	ErrVersion = errors.New("trie: unsupported lexicon section version")
 )
 

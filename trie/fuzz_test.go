@@ -8,15 +8,19 @@ import (
 )
 
 // FuzzLoadSection feeds arbitrary bytes to LoadSection, seeded from real
-// sections (the worked example, 40 and 200 SUBTLEX-US words, the empty
-// lexicon; version 2 and version 1) and damaged copies of them. Properties: no panic; an error is
+// sections (the worked example, 40 and 200 SUBTLEX-US words, 120 words
+// with many casing exceptions, the empty lexicon; versions 3, 2 and 1) and
+// damaged copies of them. Properties: no panic; an error is
 // ErrCorrupt or ErrVersion; a section that loads answers every query
 // without panicking; if Check also passes, the words and surfaces read back
 // build a section that loads and reads back the same (read → write → read).
 func FuzzLoadSection(f *testing.F) {
-	for _, entries := range [][]Entry{smallEntries, midEntries(f)[:40], midEntries(f), nil} {
-		for _, bs := range []int{0, blockSize} {
-			sec, err := appendSection(nil, entries, bs)
+	for _, entries := range [][]Entry{smallEntries, midEntries(f)[:40], midEntries(f), manyExceptions(120), nil} {
+		for _, v := range []struct {
+			version uint16
+			bs      int
+		}{{SectionVersion, 0}, {listVersion, 0}, {tableVersion, blockSize}} {
+			sec, err := appendSectionVersion(nil, entries, v.version, v.bs)
 			if err != nil {
 				f.Fatal(err)
 			}

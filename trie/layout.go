@@ -10,12 +10,18 @@ const SectionMagic = "KLXw"
 
 // SectionVersion is the layout version this package writes. Version 2 keeps
 // no word table: a word is rebuilt from its id by walking the FST (see
-// [Lexicon.AppendWord]). Versions 1 and 2 are read; a section with any other
-// version is refused with [ErrVersion].
-const SectionVersion uint16 = 2
+// [Lexicon.AppendWord]). Version 3 is version 2 with a compact table of
+// casing exceptions (a rank directory instead of a list of ids, and most
+// surfaces as an upper-case mask over the word). Versions 1, 2 and 3 are
+// read; a section with any other version is refused with [ErrVersion].
+const SectionVersion uint16 = 3
 
 // tableVersion is the layout version that keeps the front-coded word table.
 const tableVersion uint16 = 1
+
+// listVersion is the layout version without a word table whose casing
+// exceptions are a list of ids, end offsets and whole surfaces.
+const listVersion uint16 = 2
 
 // MaxWordLen is the longest Word, in bytes, a lexicon can hold. Word lengths
 // are stored in one byte in the word table, so AppendWord never needs more
@@ -34,7 +40,7 @@ const headerSize = 64
 // blockSize is the number of words per front-coded block of the word table
 // of a version-1 section. The loader accepts any value from 1 to
 // maxBlockSize recorded in a version-1 header and requires 0 (no table) in
-// a version-2 one; AppendSection writes version 2.
+// a version-2 or version-3 one; AppendSection writes version 3.
 const blockSize = 16
 
 // maxBlockSize is the largest block size the loader accepts.
@@ -50,22 +56,23 @@ const partAlign = 8
 const (
 	hMagic      = 0  // [4]byte, SectionMagic
 	hVersion    = 4  // uint16, SectionVersion
-	hFlags      = 6  // uint16, no flags are defined in version 1; must be 0
+	hFlags      = 6  // uint16, no flags are defined; must be 0
 	hTotalLen   = 8  // length of the whole section, a multiple of partAlign
 	hCount      = 12 // number of words n
-	hBlockSize  = 16 // uint16, words per front-coded block (1..maxBlockSize); 0 in version 2
+	hBlockSize  = 16 // uint16, words per front-coded block (1..maxBlockSize); 0 in versions 2 and 3
 	hMaxWordLen = 18 // uint16, length in bytes of the longest word
 	hFSTOff     = 20 // offset of the vellum FST
 	hFSTLen     = 24 // length of the vellum FST
 	hBlocksOff  = 28 // offset of the block offset array: ceil(n/blockSize)+1 uint32
 	hWordsOff   = 32 // offset of the front-coded word bytes
-	hWordsLen   = 36 // length of the front-coded word bytes
-	hCaseOff    = 40 // offset of the 2-bit casing codes: ceil(n/4) bytes
+	hWordsLen   = 36 // length of the front-coded word bytes (version 3: hNonLower)
+	hNonLower   = 36 // version 3: number of words whose surface is not the word itself
+	hCaseOff    = 40 // offset of the 2-bit casing codes: ceil(n/4) bytes (version 3: of the non-lower bitmap)
 	hExcCount   = 44 // number of casing exceptions e
-	hExcIDOff   = 48 // offset of the exception word ids: e uint32, ascending
-	hExcEndOff  = 52 // offset of the exception end offsets: e uint32
-	hExcDataOff = 56 // offset of the exception surfaces, concatenated
-	hExcDataLen = 60 // length of the exception surfaces
+	hExcIDOff   = 48 // offset of the exception word ids: e uint32, ascending (version 3: of the rank samples)
+	hExcEndOff  = 52 // offset of the exception end offsets: e uint32 (version 3: the record offset samples)
+	hExcDataOff = 56 // offset of the exception surfaces, concatenated (version 3: the records)
+	hExcDataLen = 60 // length of the exception surfaces (version 3: of the records)
 )
 
 // Casing codes, two bits per word, word i at bits 2*(i%4) of byte i/4 of the
@@ -89,6 +96,7 @@ type header struct {
 	blocksOff  uint32
 	wordsOff   uint32
 	wordsLen   uint32
+	nonLower   uint32 // version 3 only, stored where wordsLen is
 	caseOff    uint32
 	excCount   uint32
 	excIDOff   uint32
@@ -112,6 +120,9 @@ func (h *header) put(b []byte) {
 	le.PutUint32(b[hBlocksOff:], h.blocksOff)
 	le.PutUint32(b[hWordsOff:], h.wordsOff)
 	le.PutUint32(b[hWordsLen:], h.wordsLen)
+	if h.version >= SectionVersion {
+		le.PutUint32(b[hNonLower:], h.nonLower)
+	}
 	le.PutUint32(b[hCaseOff:], h.caseOff)
 	le.PutUint32(b[hExcCount:], h.excCount)
 	le.PutUint32(b[hExcIDOff:], h.excIDOff)
@@ -134,6 +145,9 @@ func (h *header) get(b []byte) {
 	h.blocksOff = le.Uint32(b[hBlocksOff:])
 	h.wordsOff = le.Uint32(b[hWordsOff:])
 	h.wordsLen = le.Uint32(b[hWordsLen:])
+	if h.version >= SectionVersion {
+		h.nonLower, h.wordsLen = h.wordsLen, 0
+	}
 	h.caseOff = le.Uint32(b[hCaseOff:])
 	h.excCount = le.Uint32(b[hExcCount:])
 	h.excIDOff = le.Uint32(b[hExcIDOff:])
@@ -149,7 +163,7 @@ func numBlocks(n, size uint32) uint32 {
 
 // blockPartLen returns the length in bytes of the block offsets for n words
 // in blocks of size words: ceil(n/size)+1 uint32 values, and none when size
-// is 0 (a version-2 section, which has no word table).
+// is 0 (a version-2 or version-3 section, which has no word table).
 func blockPartLen(n, size uint32) uint64 {
 	if size == 0 {
 		return 0
@@ -172,15 +186,18 @@ type layout struct {
 	fstOff, fstEnd        uint64
 	blocksOff, wordsOff   uint64
 	wordsEnd, caseOff     uint64
+	codesOff              uint64 // version 3: the codes of the non-lower words
 	caseEnd, excIDOff     uint64
 	excEndOff, excDataOff uint64
 	excDataEnd, total     uint64
 }
 
-// layoutFor returns the placement of the parts of a section of n words in
-// blocks of bs words (0: no word table), an FST of fstLen bytes, wordsLen bytes of front-coded
-// words and e exceptions with excDataLen bytes of surfaces.
-func layoutFor(n, bs uint32, fstLen, wordsLen, e, excDataLen uint64) layout {
+// layoutFor returns the placement of the parts of a section of the given
+// layout version with n words in blocks of bs words (0: no word table), an
+// FST of fstLen bytes, wordsLen bytes of front-coded words, m non-lower
+// words (version 3 only) and e exceptions with excDataLen bytes of
+// surfaces (version 3: of records).
+func layoutFor(version uint16, n, bs uint32, fstLen, wordsLen, m, e, excDataLen uint64) layout {
 	al := func(x uint64) uint64 { return (x + partAlign - 1) &^ (partAlign - 1) }
 	var l layout
 	l.fstOff = headerSize
@@ -189,10 +206,29 @@ func layoutFor(n, bs uint32, fstLen, wordsLen, e, excDataLen uint64) layout {
 	l.wordsOff = l.blocksOff + blockPartLen(n, bs)
 	l.wordsEnd = l.wordsOff + wordsLen
 	l.caseOff = al(l.wordsEnd)
-	l.caseEnd = l.caseOff + (uint64(n)+3)/4
-	l.excIDOff = al(l.caseEnd)
-	l.excEndOff = l.excIDOff + 4*e
-	l.excDataOff = l.excEndOff + 4*e
+	if version >= SectionVersion {
+		// The non-lower bitmap and the codes of the non-lower words, both
+		// in whole uint64 words; the rank samples of the bitmap (none
+		// when m is 0) and of the exceptions among the codes (none when e
+		// is 0); the record offset samples.
+		l.codesOff = l.caseOff + 8*((uint64(n)+63)/64)
+		l.caseEnd = l.codesOff + 8*((m+31)/32)
+		l.excIDOff = l.caseEnd
+		l.excEndOff = l.excIDOff
+		if m > 0 {
+			l.excEndOff += 4 * ((uint64(n) + bitRankStep - 1) / bitRankStep)
+		}
+		if e > 0 {
+			l.excEndOff += 4 * ((m + rankStep - 1) / rankStep)
+		}
+		l.excDataOff = l.excEndOff + 4*((e+recordStep-1)/recordStep)
+	} else {
+		l.caseEnd = l.caseOff + (uint64(n)+3)/4
+		l.codesOff = l.caseOff
+		l.excIDOff = al(l.caseEnd)
+		l.excEndOff = l.excIDOff + 4*e
+		l.excDataOff = l.excEndOff + 4*e
+	}
 	l.excDataEnd = l.excDataOff + excDataLen
 	l.total = al(l.excDataEnd)
 	return l

@@ -22,7 +22,7 @@ type Lexicon struct {
 	casing     casingTable
 	vfst       *vellum.FST
 	lazy       *lazyFST                  // set when loaded with SkipWalk
-	cache      atomic.Pointer[wordCache] // version 2 only, made on first AppendWord
+	cache      atomic.Pointer[wordCache] // versions 2 and 3, made on first AppendWord
 }
 
 // lazyFST checks and loads the vellum FST on first use.
@@ -62,15 +62,15 @@ func (l *Lexicon) ID(word string) (uint32, bool) {
 
 // AppendWord appends the folded word with the given id to dst and returns
 // the extended slice; it returns dst unchanged when id is not below Len.
-// In a version-2 section it walks the FST from the root, at each state
+// In a version-2 or version-3 section it walks the FST from the root, at each state
 // following the last transition whose output sum does not pass id
 // (O(len(word)) state decodings, each with a binary search over the
 // state's transitions); in a version-1 section it decodes one front-coded
-// block (O(block size)). A version-2 lexicon keeps the last words it
+// block (O(block size)). A lexicon without a word table keeps the last words it
 // spelled (up to 24 bytes long) in a direct-mapped cache of 1,024 slots, so
 // a word asked again is copied without the walk. It does not allocate when
 // cap(dst)-len(dst) >= MaxWordLen, apart from the 32 KiB of that cache,
-// allocated once by the first call on a version-2 lexicon.
+// allocated once by the first call on such a lexicon.
 func (l *Lexicon) AppendWord(dst []byte, id uint32) []byte {
 	if l.words.bs == 0 {
 		return l.cachedWord(dst, id)
@@ -89,7 +89,7 @@ func (l *Lexicon) Word(id uint32) string {
 // (for example "London" for "london") to dst and returns the extended
 // slice; it returns dst unchanged when id is not below Len. It does not
 // allocate when cap(dst)-len(dst) >= 2*MaxWordLen (or, for a word whose
-// surface is stored as an exception, the length of that surface).
+// surface is stored in full as an exception, the length of that surface).
 func (l *Lexicon) AppendSurface(dst []byte, id uint32) []byte {
 	if id >= l.n {
 		return dst
@@ -102,8 +102,8 @@ func (l *Lexicon) AppendSurface(dst []byte, id uint32) []byte {
 		var buf [MaxWordLen]byte
 		return upperAll(dst, l.AppendWord(buf[:0], id))
 	case caseExcept:
-		if s, ok := l.casing.exception(id); ok {
-			return append(dst, s...)
+		if out, ok := l.appendException(dst, id); ok {
+			return out
 		}
 	}
 	return l.AppendWord(dst, id)
@@ -206,11 +206,10 @@ func (l *Lexicon) FST() *vellum.FST {
 }
 
 // SizeBreakdown returns the bytes taken by the FST, by the front-coded word
-// table (block offsets and words; 0 in a version-2 section) and by the casing codes and exceptions.
+// table (block offsets and words; 0 in versions 2 and 3) and by the casing codes and exceptions
+// (version 3: the non-lower bitmap, codes, rank and record samples and records).
 // The section also holds a 64-byte header and up to 7 bytes of alignment
 // padding after each part, counted in none of them.
 func (l *Lexicon) SizeBreakdown() (fstBytes, tableBytes, casingBytes int) {
-	c := &l.casing
-	return len(l.fst), len(l.words.blocks) + len(l.words.words),
-		len(c.codes) + len(c.excIDs) + len(c.excEnds) + len(c.excData)
+	return len(l.fst), len(l.words.blocks) + len(l.words.words), l.casing.size()
 }

@@ -16,7 +16,9 @@ import (
 // len(b)), the zero padding, the word table of a version-1 section (every
 // word decodes within its block, is valid UTF-8 and sorts strictly after
 // the one before it), the
-// casing codes and exception table, and the FST: one walk over every state
+// casing codes and exception table (version 3: the non-lower bitmap, the
+// codes and both sets of rank samples agree, and every exception record is
+// well formed and where its offset sample says), and the FST: one walk over every state
 // reachable from the root, checking that each lies in bounds, that the FST
 // accepts exactly as many words as the header records, that its longest
 // path is the recorded longest word, that no path can give
@@ -68,12 +70,30 @@ func LoadSectionWith(b []byte, opts LoadOptions) (*Lexicon, error) {
 			blocks: b[h.blocksOff:h.wordsOff],
 			words:  b[h.wordsOff : h.wordsOff+h.wordsLen],
 		},
-		casing: casingTable{
+	}
+	if h.version >= SectionVersion {
+		lay := layoutFor(h.version, h.count, 0, uint64(h.fstLen), 0, uint64(h.nonLower), uint64(h.excCount), uint64(h.excDataLen))
+		bitRankEnd := h.excIDOff
+		if h.nonLower > 0 {
+			bitRankEnd += 4 * ((h.count + bitRankStep - 1) / bitRankStep)
+		}
+		l.casing = casingTable{
+			compact:  true,
+			nonLower: h.nonLower,
+			bitmap:   b[h.caseOff:lay.codesOff],
+			codes:    b[lay.codesOff:h.excIDOff],
+			bitRank:  b[h.excIDOff:bitRankEnd],
+			rank:     b[bitRankEnd:h.excEndOff],
+			samples:  b[h.excEndOff:h.excDataOff],
+			records:  b[h.excDataOff : h.excDataOff+h.excDataLen],
+		}
+	} else {
+		l.casing = casingTable{
 			codes:   b[h.caseOff : h.caseOff+(h.count+3)/4],
 			excIDs:  b[h.excIDOff:h.excEndOff],
 			excEnds: b[h.excEndOff:h.excDataOff],
 			excData: b[h.excDataOff : h.excDataOff+h.excDataLen],
-		},
+		}
 	}
 	if opts.SkipWalk {
 		root, err := fstRoot(l.fst)
@@ -89,7 +109,12 @@ func LoadSectionWith(b []byte, opts LoadOptions) (*Lexicon, error) {
 			return nil, err
 		}
 	}
-	if err := l.casing.validate(h.count, int(h.caseOff), int(h.excIDOff), int(h.excEndOff), int(h.excDataOff)); err != nil {
+	if l.casing.compact {
+		err = l.casing.validateCompact(h.count, h.excCount, int(h.caseOff), int(h.excIDOff), int(h.excEndOff), int(h.excDataOff))
+	} else {
+		err = l.casing.validate(h.count, int(h.caseOff), int(h.excIDOff), int(h.excEndOff), int(h.excDataOff))
+	}
+	if err != nil {
 		return nil, err
 	}
 	states, err := checkFST(l.fst, &l.codes, h.count, l.maxWordLen, int(h.fstOff))
@@ -112,8 +137,8 @@ func parseHeader(b []byte) (header, error) {
 	if string(b[hMagic:hMagic+4]) != SectionMagic {
 		return h, corrupt("header", hMagic, "magic %q, want %q", b[hMagic:hMagic+4], SectionMagic)
 	}
-	if v := uint16(b[hVersion]) | uint16(b[hVersion+1])<<8; v != SectionVersion && v != tableVersion {
-		return h, fmt.Errorf("%w: section version %d, this package reads %d and %d", ErrVersion, v, tableVersion, SectionVersion)
+	if v := uint16(b[hVersion]) | uint16(b[hVersion+1])<<8; v < tableVersion || v > SectionVersion {
+		return h, fmt.Errorf("%w: section version %d, this package reads %d to %d", ErrVersion, v, tableVersion, SectionVersion)
 	}
 	if f := uint16(b[hFlags]) | uint16(b[hFlags+1])<<8; f != 0 {
 		return h, fmt.Errorf("%w: unknown section flags %#x", ErrVersion, f)
@@ -136,7 +161,10 @@ func parseHeader(b []byte) (header, error) {
 	if h.maxWordLen > MaxWordLen {
 		return h, corrupt("header", hMaxWordLen, "longest word %d bytes above the limit %d", h.maxWordLen, MaxWordLen)
 	}
-	want := layoutFor(h.count, h.blockSize, uint64(h.fstLen), uint64(h.wordsLen), uint64(h.excCount), uint64(h.excDataLen))
+	if h.nonLower > h.count || h.excCount > h.nonLower && h.version >= SectionVersion {
+		return h, corrupt("header", hNonLower, "%d non-lower words and %d exceptions among %d words", h.nonLower, h.excCount, h.count)
+	}
+	want := layoutFor(h.version, h.count, h.blockSize, uint64(h.fstLen), uint64(h.wordsLen), uint64(h.nonLower), uint64(h.excCount), uint64(h.excDataLen))
 	fields := []struct {
 		at        int
 		got, want uint64

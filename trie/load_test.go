@@ -96,8 +96,8 @@ func reFST(t testing.TB, sec, fst []byte) []byte {
 	t.Helper()
 	var h header
 	h.get(sec)
-	old := layoutFor(h.count, h.blockSize, uint64(h.fstLen), uint64(h.wordsLen), uint64(h.excCount), uint64(h.excDataLen))
-	nl := layoutFor(h.count, h.blockSize, uint64(len(fst)), uint64(h.wordsLen), uint64(h.excCount), uint64(h.excDataLen))
+	old := layoutFor(h.version, h.count, h.blockSize, uint64(h.fstLen), uint64(h.wordsLen), uint64(h.nonLower), uint64(h.excCount), uint64(h.excDataLen))
+	nl := layoutFor(h.version, h.count, h.blockSize, uint64(len(fst)), uint64(h.wordsLen), uint64(h.nonLower), uint64(h.excCount), uint64(h.excDataLen))
 	out := make([]byte, nl.total)
 	copy(out, sec[:headerSize])
 	copy(out[headerSize:], fst)
@@ -118,12 +118,15 @@ func reFST(t testing.TB, sec, fst []byte) []byte {
 // Cases marked check load (the damage keeps the structure sound) and must
 // be caught by Check.
 func TestLoadCorruption(t *testing.T) {
-	for _, bs := range []int{blockSize, 0} {
-		sec, err := appendSection(nil, smallEntries, bs)
+	for _, v := range []struct {
+		version uint16
+		bs      int
+	}{{tableVersion, blockSize}, {listVersion, 0}, {SectionVersion, 0}} {
+		sec, err := appendSectionVersion(nil, smallEntries, v.version, v.bs)
 		if err != nil {
 			t.Fatal(err)
 		}
-		t.Run(fmt.Sprintf("blocksize=%d", bs), func(t *testing.T) { testLoadCorruption(t, sec) })
+		t.Run(fmt.Sprintf("version=%d", v.version), func(t *testing.T) { testLoadCorruption(t, sec) })
 	}
 }
 
@@ -147,6 +150,16 @@ func testLoadCorruption(t *testing.T, sec []byte) {
 		b = le.AppendUint64(b, count)
 		return le.AppendUint64(b, root)
 	}
+	// Another version whose layout differs from this section's: 1 and 3
+	// differ in the word table, 2 and 3 in the casing parts.
+	swapped := tableVersion
+	if h.version == tableVersion {
+		swapped = SectionVersion
+	}
+	// compact selects the cases of the version-3 casing parts, where
+	// exception ids hold the rank samples and exception ends the record
+	// offset samples.
+	compact := h.version >= SectionVersion
 	tests := []struct {
 		name   string
 		damage func(t testing.TB, b []byte) []byte
@@ -155,9 +168,9 @@ func testLoadCorruption(t *testing.T, sec []byte) {
 		table  bool // needs the word table of a version-1 section
 	}{
 		{"magic", func(t testing.TB, b []byte) []byte { b[0] = 'x'; return b }, ErrCorrupt, false, false},
-		{"version", func(t testing.TB, b []byte) []byte { le.PutUint16(b[hVersion:], 3); return b }, ErrVersion, false, false},
+		{"version", func(t testing.TB, b []byte) []byte { le.PutUint16(b[hVersion:], SectionVersion+1); return b }, ErrVersion, false, false},
 		{"version-0", func(t testing.TB, b []byte) []byte { le.PutUint16(b[hVersion:], 0); return b }, ErrVersion, false, false},
-		{"version-swapped", func(t testing.TB, b []byte) []byte { le.PutUint16(b[hVersion:], 3-h.version); return b }, ErrCorrupt, false, false},
+		{"version-swapped", func(t testing.TB, b []byte) []byte { le.PutUint16(b[hVersion:], swapped); return b }, ErrCorrupt, false, false},
 		{"flags", func(t testing.TB, b []byte) []byte { le.PutUint16(b[hFlags:], 1); return b }, ErrVersion, false, false},
 		{"total-length", func(t testing.TB, b []byte) []byte { le.PutUint32(b[hTotalLen:], h.totalLen+8); return b }, ErrCorrupt, false, false},
 		{"count", func(t testing.TB, b []byte) []byte { le.PutUint32(b[hCount:], h.count+1); return b }, ErrCorrupt, false, false},
@@ -174,6 +187,8 @@ func testLoadCorruption(t *testing.T, sec []byte) {
 		{"casing-code", func(t testing.TB, b []byte) []byte { b[h.caseOff] &^= 0x0c; return b }, ErrCorrupt, false, false},
 		{"exception-id", func(t testing.TB, b []byte) []byte { le.PutUint32(b[h.excIDOff:], 2); return b }, ErrCorrupt, false, false},
 		{"exception-end", func(t testing.TB, b []byte) []byte { le.PutUint32(b[h.excEndOff:], 5); return b }, ErrCorrupt, false, false},
+		{"exception-data-length", func(t testing.TB, b []byte) []byte { le.PutUint32(b[hExcDataLen:], h.excDataLen-1); return b }, ErrCorrupt, false, false},
+		{"exception-count", func(t testing.TB, b []byte) []byte { le.PutUint32(b[hExcCount:], 0); return b }, ErrCorrupt, false, false},
 		{"fst-version", func(t testing.TB, b []byte) []byte { b[fstAt(0)] = 2; return b }, ErrCorrupt, false, false},
 		{"fst-word-count", func(t testing.TB, b []byte) []byte { b[fstEnd-16]++; return b }, ErrCorrupt, false, false},
 		{"fst-root-at-end", func(t testing.TB, b []byte) []byte { le.PutUint64(b[fstEnd-8:], uint64(h.fstLen)); return b }, ErrCorrupt, false, false},
@@ -190,6 +205,34 @@ func testLoadCorruption(t *testing.T, sec []byte) {
 			return reFST(t, b, footer(vellumHeader(0x40, 0x10, 0x80|0x01), 4, 18))
 		}, ErrCorrupt, false, false},
 		{"fst-byte-changed", func(t testing.TB, b []byte) []byte { return swapFSTByte(t, b, 'o', 'u') }, nil, true, true},
+	}
+	if compact {
+		// The worked example's one record is the mask 0x02 (iPhone); the
+		// byte after it is padding.
+		tests = append(tests, []struct {
+			name   string
+			damage func(t testing.TB, b []byte) []byte
+			want   error
+			check  bool
+			table  bool
+		}{
+			{"record-mask-zero", func(t testing.TB, b []byte) []byte { b[h.excDataOff] = 0; return b }, ErrCorrupt, false, false},
+			{"record-unfinished", func(t testing.TB, b []byte) []byte { b[h.excDataOff] = 0x82; return b }, ErrCorrupt, false, false},
+			// The bitmap is the uint64 at caseOff (0x0b), the codes the
+			// next one (0x2d).
+			{"bitmap-past-last-word", func(t testing.TB, b []byte) []byte { b[h.caseOff+7] = 0x40; return b }, ErrCorrupt, false, false},
+			{"bitmap-extra-word", func(t testing.TB, b []byte) []byte { b[h.caseOff] |= 0x04; return b }, ErrCorrupt, false, false},
+			{"code-zero", func(t testing.TB, b []byte) []byte { b[h.caseOff+8] = 0x2c; return b }, ErrCorrupt, false, false},
+			{"unused-code-bits", func(t testing.TB, b []byte) []byte { b[h.caseOff+9] = 0x01; return b }, ErrCorrupt, false, false},
+			{"non-lower-count", func(t testing.TB, b []byte) []byte { le.PutUint32(b[hNonLower:], 5); return b }, ErrCorrupt, false, false},
+			{"bitmap-rank", func(t testing.TB, b []byte) []byte { b[h.excIDOff] = 1; return b }, ErrCorrupt, false, false},
+			{"exception-rank", func(t testing.TB, b []byte) []byte { b[h.excIDOff+4] = 1; return b }, ErrCorrupt, false, false},
+			// A mask over a rune the word lacks (bit 6 of the six-rune
+			// "iphone", still a well-formed record) loads; Check finds it.
+			{"record-mask-past-word", func(t testing.TB, b []byte) []byte { b[h.excDataOff] = 0x40; return b }, nil, true, false},
+			// A mask that gives a surface code 2 describes ("IPHONE").
+			{"record-mask-not-canonical", func(t testing.TB, b []byte) []byte { b[h.excDataOff] = 0x3f; return b }, nil, true, false},
+		}...)
 	}
 	for _, tt := range tests {
 		if tt.table && h.blockSize == 0 {

@@ -5,7 +5,7 @@ import (
 	"sync/atomic"
 )
 
-// Sizes of the word cache of a version-2 lexicon.
+// Sizes of the word cache of a lexicon without a word table (versions 2 and 3).
 const (
 	// cacheBits is log2 of the number of slots.
 	cacheBits = 10
@@ -29,7 +29,7 @@ const (
 )
 
 // wordCache maps recently spelled ids to their folded words for a
-// version-2 lexicon, whose AppendWord otherwise walks the FST. It is a
+// lexicon without a word table, whose AppendWord otherwise walks the FST. It is a
 // direct-mapped table of seqlock slots: every field is read and written
 // through sync/atomic, so any number of goroutines may use it at once
 // without locks and without allocating. A reader that meets a slot being
@@ -92,7 +92,7 @@ func (c *wordCache) store(id uint32, word []byte) {
 	s.tag.Store(uint64(id)<<tagIDShift | uint64(n)<<tagLenShift | (t+2)&tagSeqMask)
 }
 
-// cachedWord is AppendWord for a version-2 lexicon: the cache first, then
+// cachedWord is AppendWord for a lexicon without a word table: the cache first, then
 // the FST walk, whose result it caches. The first call allocates the cache.
 func (l *Lexicon) cachedWord(dst []byte, id uint32) []byte {
 	if id >= l.n {
