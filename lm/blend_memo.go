@@ -193,9 +193,12 @@ func (m *topKMemo) add(tok uint32) *memoWord {
 	return w
 }
 
-// memoSlot holds a view's memo, made by the view's first TopK call.
+// memoSlot holds a view's memo, made by the view's first TopK call, and
+// the counter that picks the length of the base list (see noteShort in
+// blend_topk.go), updated by TopK calls that hold the memo.
 type memoSlot struct {
-	p atomic.Pointer[topKMemo]
+	p     atomic.Pointer[topKMemo]
+	short atomic.Int32
 }
 
 // get returns the memo, making it if needed.
@@ -207,9 +210,14 @@ func (s *memoSlot) get() *topKMemo {
 	return s.p.Load()
 }
 
-// publish makes v the overlay's current view, with an empty memo.
+// publish makes v the overlay's current view, with an empty memo and the
+// previous view's base-list counter.
 func (o *Overlay) publish(v *OverlayView) {
-	v.memo = new(memoSlot)
+	s := new(memoSlot)
+	if old := o.cur.Load(); old != nil && old.memo != nil {
+		s.short.Store(old.memo.short.Load())
+	}
+	v.memo = s
 	o.cur.Store(v)
 }
 

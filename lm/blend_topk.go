@@ -29,12 +29,17 @@ import (
 //
 // Words with no evidence that the base list did not reach all score at most
 // as its last word b does, with ties only possible at b's own base
-// probability; the search asks for the base list one longer than k so that
-// the k-th result can be checked against b strictly. When a check fails
-// (ties at the boundary, or an evidence list that keeps too few entries in
-// order), the base list is read deeper once, and as a last resort every
-// word in the range is scored (topKExhaustive). The result is then the same
-// as scoring every word: same words, same order, same scores.
+// probability, so the k-th result is checked against b strictly. With a
+// base list one longer than k the check fails only on true ties at the
+// boundary; with a list of exactly k words (cheaper for the base model) it
+// also fails whenever the k-th result is b itself with no evidence, which
+// is common while the user's evidence is thin and rare once it is rich.
+// The length is chosen per view by a counter kept in the view's memo (see
+// noteShort). When a check fails (ties at the boundary, or an evidence list
+// that keeps too few entries in order), the base list is read deeper, and
+// as a last resort every word in the range is scored (topKExhaustive). The
+// result is then the same as scoring every word: same words, same order,
+// same scores, whatever the list length tried first.
 
 // boundMargin is the relative margin of the linear upper bounds over the
 // rounding of blendProb (a few ulps; 1e-9 leaves six orders of magnitude).
@@ -295,8 +300,8 @@ func (s *idSet) add(id uint32) bool {
 //
 // The result is exact: the same words, order and scores as ranking every
 // word by LogProb (see the comment at the top of blend_topk.go for the
-// search). It costs the base model's TopK for k+1 words plus a few exact
-// scorings; it does not allocate when dst has room for k results.
+// search). It costs the base model's TopK for k or k+1 words plus a few
+// exact scorings; it does not allocate when dst has room for k results.
 func (v *OverlayView) TopK(ctx []uint32, prefix string, lo, hi uint32, k int, dst []Scored) []Scored {
 	if k > MaxK {
 		k = MaxK
@@ -326,10 +331,72 @@ func (v *OverlayView) TopK(ctx []uint32, prefix string, lo, hi uint32, k int, ds
 	}
 	var res topBuf
 	res.k = k
-	if v.thresholdMemo(q, &r, k, min(k+1, MaxK), &res, m) || v.thresholdMemo(q, &r, k, MaxK, &res, m) {
+	short := m != nil && k < MaxK && v.memo.short.Load() >= 0 // see noteShort
+	first := min(k+1, MaxK)
+	if short {
+		first = k
+	}
+	t := thresholdSearch{v: v, q: q, r: &r, k: k, res: &res, c: v.coefficients(q), memo: m}
+	ok := t.run(first)
+	if m != nil && k < MaxK {
+		v.memo.noteShort(short, ok, t.shortOK)
+	}
+	if !ok && short {
+		ok = v.thresholdMemo(q, &r, k, k+1, &res, m)
+	}
+	if ok || v.thresholdMemo(q, &r, k, MaxK, &res, m) {
 		return append(dst, res.buf[:res.n]...)
 	}
 	return v.topKExhaustive(q, &r, k, dst)
+}
+
+// Choosing the base list's length.
+//
+// A search over a base list of exactly k words costs the base model less
+// than one over k+1 words but must be run again with k+1 when its final
+// check fails (see the comment at the top of this file). Which one is
+// cheaper depends on how often that happens, which depends on the user's
+// evidence, so a view's memo slot keeps a counter (short): a search with k
+// words that succeeds adds one, one that fails takes shortFail away; a
+// search with k+1 words also tells whether k would have been enough (its
+// result's k-th score above the no-evidence blend of its k-th base word:
+// then, and only then, a search with k words gives the same result and
+// passes its check) and counts the same way. Searches use k words while
+// the counter is not negative, so they do when fewer than about one in
+// shortFail+1 would fail. Both lengths give the same, exact result; the
+// counter only picks the cheaper one. A new view starts from its
+// predecessor's counter (see publish).
+//
+// shortFail and shortCap are project choices, no source: a failed short
+// search costs about a second search (somewhat less, as the memo keeps the
+// words' evidence), while a successful one saves the base model up to a
+// tenth of its work (its top list of k+1 words cost 5–13 % more than one
+// of k in a throw-away probe over the root benchmark's keystrokes), so k
+// words pay off below a failure rate of about one in ten. The counter asks
+// for fewer than one in seventeen: with shortFail 8 an overlay that had
+// learned 2 % of the demo corpus (about 17 % of its searches would fail
+// short) ran 2–4 % slower than with k+1 words always; with 16, within
+// noise (BENCHMARKS.md, sixth round).
+const (
+	shortFail = 16 // counter steps taken away by a failure
+	shortCap  = 16 // counter bound either way
+)
+
+// noteShort updates the counter after a search with a base list of k
+// words (short) or of k+1 words; ok tells whether the search passed its
+// check, kEnough (for a search of k+1 words) whether k would have passed.
+func (s *memoSlot) noteShort(short, ok, kEnough bool) {
+	good := ok
+	if !short {
+		good = ok && kEnough
+	}
+	c := s.short.Load()
+	if good {
+		c = min(c+1, shortCap)
+	} else {
+		c = max(c-shortFail, -shortCap)
+	}
+	s.short.Store(c)
 }
 
 // threshold runs the threshold search with a base list of m words. It
@@ -373,6 +440,7 @@ type thresholdSearch struct {
 	pbBound float64
 	kth     float64 // probability of the k-th result (0 until there are k)
 	failed  bool
+	shortOK bool      // after a search of k+1 base words: one of k would have passed its check
 	memo    *topKMemo // nil: scan the lists themselves
 	cands   baseCands // the base candidates scored for the top list, when it was not reused
 }
@@ -469,6 +537,13 @@ func (t *thresholdSearch) run(m int) bool {
 	if t.failed {
 		return false
 	}
+	var none evidence
+	if m == k+1 && t.memo != nil {
+		// Would a base list of k words have been enough? Only a guide for
+		// the choice of length, so compared as probabilities, which saves
+		// a logarithm.
+		t.shortOK = len(base) < k || res.n == k && t.kth > v.blendProb(q, math.Exp(base[k-1].LogP), &none)
+	}
 	// Words with no evidence beyond the base list.
 	if baseDone {
 		return true
@@ -476,7 +551,6 @@ func (t *thresholdSearch) run(m int) bool {
 	if res.n < k {
 		return false
 	}
-	var none evidence
 	last := math.Log(v.blendProb(q, t.pbBound, &none))
 	return res.buf[res.n-1].LogP > last
 }

@@ -632,3 +632,74 @@ func FuzzLoadOverlay(f *testing.F) {
 		}
 	})
 }
+
+// Whichever length of base list the view's counter picks first (k words,
+// or k+1; see noteShort), TopK must equal ranking every word by LogProb
+// (bruteBlend; this checks the search against the blend's definition, not
+// against an outside source). The queries type words of held-out sentences
+// letter by letter over an overlay that has learned much and one that has
+// learned little, so that searches over k words both pass their check and
+// fail it (then TopK searches again); the test asserts that both happened.
+func TestOverlayTopKBaseListLength(t *testing.T) {
+	d := ksrSetup(t)
+	n := len(d.sentences)
+	for _, c := range []struct {
+		name  string
+		learn int
+	}{
+		{"rich", n * 8 / 10},
+		{"little", 12},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			ov, err := NewOverlay(d.base.m, bvocab{d.base.b}, OverlayOptions{MinTyped: 1})
+			if err != nil {
+				t.Fatal(err)
+			}
+			learnAll(ov, d.sentences[:c.learn])
+			v := ov.View()
+			passed, failed, queries := 0, 0, 0
+			for _, s := range d.sentences[n*8/10:][:8] {
+				ctx := []uint32{v.bos}
+				for _, w := range s {
+					for i := 0; i <= min(len(w), 3); i++ {
+						prefix := w[:i]
+						lo, hi := prefixRange(d.base.b.Vocab, prefix)
+						h := ctx[max(0, len(ctx)-2):]
+						want := bruteBlend(v, h, prefix, lo, hi, 3)
+						for _, counter := range []int32{shortCap, -shortCap} {
+							v.memo.short.Store(counter)
+							got := v.TopK(h, prefix, lo, hi, 3, nil)
+							same := len(got) == len(want)
+							for j := 0; same && j < len(got); j++ {
+								same = got[j].ID == want[j].ID && math.Abs(got[j].LogP-want[j].LogP) <= 1e-12
+							}
+							if !same {
+								t.Errorf("counter %d: TopK(ctx %v, prefix %q) = %v, want %v", counter, h, prefix, words(v, got), words(v, want))
+							}
+						}
+						var q query
+						v.prepare(h, &q)
+						var res topBuf
+						res.k = 3
+						r := rangeQ{prefix: prefix, lo: lo, hi: min(hi, v.V), whole: prefix == "" && lo == 0 && hi >= v.V}
+						if v.threshold(&q, &r, 3, 3, &res) {
+							passed++
+						} else {
+							failed++
+						}
+						queries++
+					}
+					id, ok := v.ID(w)
+					if !ok {
+						id = v.unk
+					}
+					ctx = append(ctx, id)
+				}
+			}
+			t.Logf("%d queries: a base list of k words passed the check %d times, failed %d times", queries, passed, failed)
+			if c.name == "little" && failed == 0 || passed == 0 {
+				t.Errorf("searches over k base words: %d passed, %d failed; the test needs both", passed, failed)
+			}
+		})
+	}
+}
