@@ -24,6 +24,13 @@ type Backoff struct {
 	Discounts [][3]float64
 	// Tokens is the number of training tokens the model was estimated from.
 	Tokens int64
+	// TopCounts holds the raw count c(hw) of every n-gram of the highest
+	// order, parallel to its level, when the model comes straight from
+	// Estimate or EstimateCounts (nil otherwise). With Discounts and the
+	// back-off weights of the order below it lets AppendSection store
+	// counts instead of probability codes at the highest order (version
+	// 6); whoever changes the highest level or the weights must drop it.
+	TopCounts []uint64
 }
 
 // Level holds the n-grams of one order.

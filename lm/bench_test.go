@@ -52,7 +52,8 @@ func benchModel(b *testing.B, qbits int) built {
 // from the test text, with and without a typed-prefix restriction, and a
 // bigram-context LogProb, for the version-2 layout (plain word IDs, the
 // baseline), version 3 (ranked records at the highest order), version 4
-// (and Elias-Fano word groups) and the current one (and coded ranks).
+// (and Elias-Fano word groups), version 5 (and coded ranks) and the
+// current one (counts instead of probability codes at the highest order).
 func BenchmarkTopK(b *testing.B) {
 	x := benchModel(b, 8)
 	test := strings.Fields(readFile(b, filepath.Join("testdata", "opticks-test.txt")))
@@ -69,7 +70,7 @@ func BenchmarkTopK(b *testing.B) {
 		})
 		prefixes = append(prefixes, [2]uint32{uint32(lo), uint32(hi)})
 	}
-	for _, ver := range []int{2, 3, 4, sectionVersion} {
+	for _, ver := range []int{2, 3, 4, 5, sectionVersion} {
 		sec, err := AppendSection(nil, x.b, LayoutOptions{QuantBits: 8, Version: ver})
 		if err != nil {
 			b.Fatal(err)
@@ -81,7 +82,7 @@ func BenchmarkTopK(b *testing.B) {
 		V := uint32(m.VocabSize())
 		dst := make([]Scored, 0, MaxK)
 		b.Run(fmt.Sprintf("v%d/next-word/k=3", ver), func(b *testing.B) {
-			b.ReportAllocs()
+			defer threadCPUPerOp(b)()
 			i := 0
 			for b.Loop() {
 				dst = m.TopK(ctxs[i%len(ctxs)], 0, V, 3, dst[:0])
@@ -89,7 +90,7 @@ func BenchmarkTopK(b *testing.B) {
 			}
 		})
 		b.Run(fmt.Sprintf("v%d/prefix2/k=3", ver), func(b *testing.B) {
-			b.ReportAllocs()
+			defer threadCPUPerOp(b)()
 			i := 0
 			for b.Loop() {
 				r := prefixes[i%len(prefixes)]
@@ -98,7 +99,7 @@ func BenchmarkTopK(b *testing.B) {
 			}
 		})
 		b.Run(fmt.Sprintf("v%d/logprob", ver), func(b *testing.B) {
-			b.ReportAllocs()
+			defer threadCPUPerOp(b)()
 			i := 0
 			for b.Loop() {
 				c := ctxs[i%len(ctxs)]
@@ -107,7 +108,7 @@ func BenchmarkTopK(b *testing.B) {
 			}
 		})
 		b.Run(fmt.Sprintf("v%d/logprob-trigram", ver), func(b *testing.B) {
-			b.ReportAllocs()
+			defer threadCPUPerOp(b)()
 			i := 0
 			for b.Loop() {
 				j := i % len(ctxs)
@@ -115,6 +116,24 @@ func BenchmarkTopK(b *testing.B) {
 				i++
 			}
 		})
+	}
+}
+
+// threadCPUPerOp locks the benchmark to its thread, turns on allocation
+// reports and returns a function that reports the thread's CPU time per
+// operation ("cpu-ns/op", where the platform has a thread clock): on a
+// shared machine it moves less than wall time, which counts the time the
+// thread waits for a core.
+func threadCPUPerOp(b *testing.B) func() {
+	b.Helper()
+	runtime.LockOSThread()
+	b.ReportAllocs()
+	c0 := threadClock()
+	return func() {
+		if threadClockOK && b.N > 0 {
+			b.ReportMetric(float64(threadClock()-c0)/float64(b.N), "cpu-ns/op")
+		}
+		runtime.UnlockOSThread()
 	}
 }
 
@@ -129,12 +148,13 @@ var layoutText = flag.String("layout-text", "", "text file for BenchmarkLayout's
 // in all and for each kind of array (codebooks, words, probabilities, ...):
 // on the Opticks order-3 model at 8 bits and lossless, and, with
 // -layout-text, on an order-3 model of that text at 8 bits; each in the
-// current layout, in version 4 (ranks of fixed width) and in version 3
-// (plain bigram words), for comparison.
+// current layout, in version 5 (probability codes at the highest order),
+// version 4 (ranks of fixed width) and version 3 (plain bigram words), for
+// comparison.
 func BenchmarkLayout(b *testing.B) {
 	x := benchModel(b, 0)
 	for _, q := range []int{8, 0} {
-		for _, v := range []int{sectionVersion, 4, 3} {
+		for _, v := range []int{sectionVersion, 5, 4, 3} {
 			b.Run(fmt.Sprintf("opticks/v%d/qbits=%d", v, q), func(b *testing.B) { benchLayout(b, x.b, q, v) })
 		}
 	}
@@ -153,7 +173,7 @@ func BenchmarkLayout(b *testing.B) {
 	if err != nil {
 		b.Fatal(err)
 	}
-	for _, v := range []int{sectionVersion, 4, 3} {
+	for _, v := range []int{sectionVersion, 5, 4, 3} {
 		b.Run(fmt.Sprintf("text/v%d/qbits=8", v), func(b *testing.B) { benchLayout(b, m, 8, v) })
 	}
 }
@@ -189,6 +209,7 @@ func arrayBytes(b *testing.B, sec []byte) map[string]int {
 		tagStartHigh: "starts", tagStartSel: "starts", tagBow: "bows", tagBig: "top-lists",
 		tagBigRank: "top-lists", tagTop: "top-lists", tagRecords: "records", tagRecCount: "records",
 		tagGroups: "words", tagGroupLow: "group-offsets", tagGroupHigh: "group-offsets", tagGroupSel: "group-offsets",
+		tagDiscounts: "records",
 	}
 	le := binary.LittleEndian
 	out := map[string]int{}

@@ -21,6 +21,9 @@ import (
 //   - version 5: each group of coded ranks likewise (ranks rising strictly
 //     below the size of their suffix's group), and the group's length
 //     matching the form and count it announces;
+//   - version 6: each group's count width is the least that holds its
+//     largest count, a stored count sum equals the counts' sum, and every
+//     probability the reader computes from them is a number;
 //   - a context has a top list exactly when its group is longer than
 //     the threshold (TopListLen before version 3, 32 since), the
 //     top-list bits agree with their rank directory and the lists fill
@@ -177,9 +180,17 @@ func (m *Model) checkSuccessors(l *level) error {
 				if r := next.rankAt(&nd, p); r >= uint64(nd.sn) || (p > lo && r <= next.rankAt(&nd, p-1)) {
 					return corrupt(0, "order %d context %d: rank %d of record %d out of order or past its suffix's %d successors", n, c, r, p, nd.sn)
 				}
+				if nd.counted {
+					continue
+				}
 				if code := next.codeAt(&nd, p); next.probBook != nil && code >= uint64(len(next.probBook)) {
 					return corrupt(0, "order %d context %d: record %d code %d, codebook has %d", n, c, p, code, len(next.probBook))
 				}
+			}
+		}
+		if nd.counted {
+			if why := m.checkCounted(&nd); why != "" {
+				return corrupt(0, "order %d context %d: counts: %s", n, c, why)
 			}
 		}
 		for p := lo + 1; p < hi; p++ {

@@ -271,8 +271,13 @@ func (m *Model) groupBase(l *level, c int) (uint64, bool) {
 	return l.gstart.at(c), true
 }
 
-// ranksOf opens the coded ranks of a ranked node (version 5).
+// ranksOf opens the coded ranks of a ranked node (version 5; a version-6
+// node opened them once, in countedGroup).
 func (l *level) ranksOf(nd *node, g *efGroup) bool {
+	if nd.counted {
+		*g = nd.rg
+		return true
+	}
 	return g.open(l.recs, nd.base, nd.hi, nd.sn, l.recBits)
 }
 

@@ -126,6 +126,9 @@ func EstimateCounts(ctx context.Context, cs *Counts, opts EstimateOptions) (*Bac
 	}
 
 	b := &Backoff{Vocab: vocab, Surface: cs.surface, Tokens: cs.tokens}
+	if N >= 2 {
+		b.TopCounts = adj[N-1] // raw counts: version 6 stores them (section.go)
+	}
 	b.Levels = make([]Level, N)
 	b.Discounts = make([][3]float64, N)
 

@@ -61,13 +61,15 @@ func FuzzLoadSection(f *testing.F) {
 	// Small seeds keep each execution cheap: two toy models and one with a
 	// top list and a maximum tree.
 	toy := readFile(f, filepath.Join("testdata", "reference", "toy-train.txt"))
-	// Version 0 is the newest layout (version 5 for the suffix-closed
-	// models of order 3 and 4); version 3 keeps plain bigram words,
-	// version 4 ranks of fixed width.
+	// Version 0 is the newest layout (version 6 for the models of order 3
+	// and 4, which carry their counts); version 3 keeps plain bigram
+	// words, version 4 ranks of fixed width, version 5 probability codes
+	// at the highest order. The last seed is version 6 with counts wider
+	// than 0 bits and a group long enough to store its count sum.
 	for _, c := range []struct {
 		text              string
 		order, q, version int
-	}{{"a b\na b\na c\n", 2, 8, 0}, {toy, 3, 0, 0}, {toy, 3, 8, 0}, {toy, 3, 8, 3}, {toy, 3, 8, 4}, {toy, 4, 8, 0}, {smallText(f), 2, 4, 0}} {
+	}{{"a b\na b\na c\n", 2, 8, 0}, {toy, 3, 0, 0}, {toy, 3, 8, 0}, {toy, 3, 8, 3}, {toy, 3, 8, 4}, {toy, 3, 8, 5}, {toy, 4, 8, 0}, {smallText(f), 2, 4, 0}, {longGroupText(), 3, 4, 6}} {
 		x := buildText(f, c.text, c.order, ScanOptions{Pretokenized: true}, c.q)
 		sec, err := AppendSection(nil, x.b, LayoutOptions{QuantBits: c.q, Version: c.version})
 		if err != nil {

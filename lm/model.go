@@ -27,6 +27,12 @@ type level struct {
 	recBits uint64
 	recCode uint // probability code width inside a record
 	choose  bool // version 5: each group of records starts with its form bit
+	// version 6: the records hold counts, not probability codes (counted.go)
+	counted bool
+	disc    [3]float64 // D1, D2, D3+ of this (the highest) order
+	// order N − 1 of version 6: e^value of each probability and back-off
+	// code (nil when the codebooks are too large or absent; see expTables)
+	expProb, expBow []float64
 	// word groups (version 4, orders 2..N−1): see efgroup.go
 	ef     bool
 	efw    []uint64
@@ -131,6 +137,13 @@ type node struct {
 	// bit base on (see ranksOf), its probability codes from cbase on
 	efRanks bool
 	cbase   uint64
+	// version 6: counts of cw bits from cbase on (none when cw = 0), their
+	// sum, and γ(h) = e^bow (counted.go)
+	counted bool
+	cw      uint
+	sum     float64
+	gamma   float64
+	rg      efGroup // the coded ranks, opened (efRanks only)
 }
 
 // contextNode sets nd to the successor group of entry e of level l as a
@@ -217,7 +230,7 @@ func (m *Model) score(nodes []node, w uint32) float64 {
 		// there (or found it absent): answer that node too.
 		p, s := m.rankedFind(nd, w)
 		if p >= 0 {
-			return acc + m.probAt(nd, p)
+			return acc + m.recordProb(nd, p, s)
 		}
 		acc += nd.bow
 		if i+1 < len(nodes) {

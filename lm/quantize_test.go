@@ -14,13 +14,15 @@ import (
 // quantRun is the cost of one code width on the Opticks split.
 type quantRun struct {
 	qbits        int
+	version      int // as written
 	perplexity   float64
 	bytes        int
 	bytesPerGram float64
 }
 
-// quantCost lays b out at each width and measures test perplexity and size.
-func quantCost(t testing.TB, b *Backoff, test string, widths []int) []quantRun {
+// quantCost lays b out at each width, in layout version 5 when v5 is set
+// (else the newest the model allows), and measures test perplexity and size.
+func quantCost(t testing.TB, b *Backoff, test string, widths []int, v5 bool) []quantRun {
 	t.Helper()
 	bos, eos, unk := b.specials()
 	lookup := func(w []byte) (uint32, bool) { return b.ID(string(w)) }
@@ -30,7 +32,11 @@ func quantCost(t testing.TB, b *Backoff, test string, widths []int) []quantRun {
 	}
 	var out []quantRun
 	for _, q := range widths {
-		sec, err := AppendSection(nil, b, LayoutOptions{QuantBits: q})
+		opts := LayoutOptions{QuantBits: q}
+		if v5 {
+			opts.Version = 5
+		}
+		sec, err := AppendSection(nil, b, opts)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -42,7 +48,7 @@ func quantCost(t testing.TB, b *Backoff, test string, widths []int) []quantRun {
 		if err != nil {
 			t.Fatal(err)
 		}
-		out = append(out, quantRun{q, res.Perplexity, len(sec), float64(len(sec)) / float64(grams)})
+		out = append(out, quantRun{q, sectionVersionOf(sec), res.Perplexity, len(sec), float64(len(sec)) / float64(grams)})
 	}
 	return out
 }
@@ -57,19 +63,35 @@ func TestQuantizationCost(t *testing.T) {
 	ref := loadReference(t, "opticks-order3.json")
 	x := buildText(t, readFile(t, filepath.Join("testdata", "opticks-train.txt")), 3, ScanOptions{Pretokenized: true}, 0)
 	test := readFile(t, filepath.Join("testdata", "opticks-test.txt"))
-	runs := quantCost(t, x.b, test, []int{0, 16, 12, 8, 6, 4})
+	widths := []int{0, 16, 12, 8, 6, 4}
+	runs6 := quantCost(t, x.b, test, widths, false)
+	runs5 := quantCost(t, x.b, test, widths, true)
 	t.Logf("n-grams per order %v", x.b.NGrams())
-	t.Logf("%5s %12s %10s %10s %12s", "qbits", "perplexity", "vs 0 bits", "bytes", "bytes/ngram")
-	for _, r := range runs {
-		t.Logf("%5d %12.4f %+9.3f%% %10d %12.3f", r.qbits, r.perplexity, 100*(r.perplexity/runs[0].perplexity-1), r.bytes, r.bytesPerGram)
-	}
-	if !near(runs[0].perplexity, ref.Perplexity, 1e-9) {
-		t.Errorf("lossless perplexity %.10f, reference %.10f", runs[0].perplexity, ref.Perplexity)
-	}
-	for _, r := range runs {
-		if r.qbits == 8 && math.Abs(r.perplexity/runs[0].perplexity-1) > 0.02 {
-			t.Errorf("8-bit perplexity %.4f is more than 2%% from lossless %.4f", r.perplexity, runs[0].perplexity)
+	t.Logf("%7s %5s %12s %10s %10s %12s", "version", "qbits", "perplexity", "vs 0 bits", "bytes", "bytes/ngram")
+	for _, runs := range [][]quantRun{runs5, runs6} {
+		for _, r := range runs {
+			t.Logf("%7d %5d %12.4f %+9.3f%% %10d %12.3f", r.version, r.qbits, r.perplexity, 100*(r.perplexity/runs[0].perplexity-1), r.bytes, r.bytesPerGram)
 		}
+	}
+	for i, r := range runs6 {
+		if r.version != 6 || runs5[i].version != 5 {
+			t.Fatalf("q%d: versions %d and %d written, want 6 and 5", r.qbits, r.version, runs5[i].version)
+		}
+	}
+	for _, runs := range [][]quantRun{runs5, runs6} {
+		if !near(runs[0].perplexity, ref.Perplexity, 1e-9) {
+			t.Errorf("version %d: lossless perplexity %.10f, reference %.10f", runs[0].version, runs[0].perplexity, ref.Perplexity)
+		}
+		for _, r := range runs {
+			if r.qbits == 8 && math.Abs(r.perplexity/runs[0].perplexity-1) > 0.02 {
+				t.Errorf("version %d: 8-bit perplexity %.4f is more than 2%% from lossless %.4f", r.version, r.perplexity, runs[0].perplexity)
+			}
+		}
+	}
+	// Version 6 computes the highest order's first term exactly, so at 8
+	// bits its perplexity must be no worse than version 5's.
+	if p5, p6 := runs5[3].perplexity, runs6[3].perplexity; p6 > p5 {
+		t.Errorf("8-bit perplexity: version 6 %.4f, worse than version 5 %.4f", p6, p5)
 	}
 }
 
@@ -92,6 +114,9 @@ func TestCodebooks(t *testing.T) {
 				}{{"probability", l.probBook, lv.LogP}, {"back-off", l.bowBook, lv.Bow}} {
 					if n == 3 && c.name == "back-off" {
 						continue // the highest order has no weights
+					}
+					if n == 3 && l.counted {
+						continue // version 6 stores counts there, no probability codes
 					}
 					checkCodebook(t, fmt.Sprintf("order %d %s", n, c.name), c.cb, q, c.vals)
 				}
@@ -192,7 +217,7 @@ func BenchmarkQuantBits(b *testing.B) {
 					b.Fatal(err)
 				}
 			}
-			r := quantCost(b, x.b, test, []int{q})[0]
+			r := quantCost(b, x.b, test, []int{q}, false)[0]
 			b.ReportMetric(r.bytesPerGram, "bytes/ngram")
 			b.ReportMetric(r.perplexity, "ppl")
 		})

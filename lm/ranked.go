@@ -1,6 +1,9 @@
 package lm
 
-import "slices"
+import (
+	"slices"
+	"sort"
+)
 
 // Ranked records: the highest order of a version-3 section.
 //
@@ -28,17 +31,23 @@ import "slices"
 // densely through their suffix's successors take a few bits per rank
 // instead of w.
 
-// rankRecords lays out the highest order of b as ranked records with the
-// given probability codes of code width cw, each group in the cheaper of
-// the two forms of version 5 when choose is set. It returns the stream and
-// the bit offset of each successor group (plus the total), or ok = false
-// when b is not suffix-closed or its order is below 3.
-func rankRecords(b *Backoff, codes []uint64, cw uint, choose bool) (recs bitStream, starts []uint64, ok bool) {
+// rankRecords lays out the highest order of b as ranked records in the
+// layout of the given version: 3 and 4, records of rank and probability
+// code (codes, of width cw); 5, each group in the cheaper of the two forms
+// of version 5; 6, counted groups (counted.go), which needs b's top-order
+// counts; it then also fills bowW, indexed by the entries of order N − 1,
+// with the weights countedBowWeight gives the contexts. It returns the
+// stream and the bit offset of each successor group (plus the total), or
+// ok = false when b is not suffix-closed, its order is below 3, or
+// (version 6) its counts do not give its probabilities.
+func rankRecords(b *Backoff, codes []uint64, cw uint, version int, bowW []float64) (recs bitStream, starts []uint64, ok bool) {
 	N := b.Order()
-	if N < 3 {
+	if N < 3 || (version >= 6 && !countsUsable(b)) {
 		return bitStream{}, nil, false
 	}
 	top, mid := &b.Levels[N-1], &b.Levels[N-2]
+	var sfx []int
+	jp := 0 // version 6: the entry of the current context at order N − 1
 	for g := 0; g < top.Len(); {
 		h := top.Key(g)[:N-1]
 		e := g
@@ -53,15 +62,31 @@ func rankRecords(b *Backoff, codes []uint64, cw uint, choose bool) (recs bitStre
 		w := bitsFor(uint64(F - 1))
 		starts = append(starts, recs.n)
 		ranks := make([]uint64, e-g)
+		sfx = sfx[:0]
 		for i := g; i < e; i++ {
-			s := mid.Find(top.Key(i)[1:])
-			if s < slo || s >= shi {
+			s := findLast(mid, slo, shi, top.Key(i)[N-1])
+			if s < 0 {
 				return bitStream{}, nil, false
 			}
 			ranks[i-g] = uint64(s - slo)
+			sfx = append(sfx, s)
 		}
 		n := uint64(len(ranks))
-		if choose {
+		if version >= 6 {
+			// Contexts come in order: walk to h's entry instead of searching.
+			for jp < mid.Len() && slices.Compare(mid.Key(jp), h) < 0 {
+				jp++
+			}
+			j := jp
+			if j == mid.Len() || !equalIDs(mid.Key(j), h) || !countsAgree(b, g, e, j, sfx) {
+				return bitStream{}, nil, false
+			}
+			bowW[j] = countedBowWeight(b, g, e, j, sfx)
+			putCountedGroup(&recs, ranks, b.TopCounts[g:e], F)
+			g = e
+			continue
+		}
+		if version == 5 {
 			coded := F >= 3 && uint64(w)+groupShape(len(ranks), F).size < n*uint64(w)
 			if !coded {
 				recs.put(0, 1)
@@ -83,6 +108,17 @@ func rankRecords(b *Backoff, codes []uint64, cw uint, choose bool) (recs bitStre
 		g = e
 	}
 	return recs, append(starts, recs.n), true
+}
+
+// findLast returns the entry in [lo, hi) of l (entries sharing all but
+// their last ID) whose last ID is w, or -1.
+func findLast(l *Level, lo, hi int, w uint32) int {
+	last := l.N - 1
+	i := lo + sort.Search(hi-lo, func(i int) bool { return l.Key(lo + i)[last] >= w })
+	if i < hi && l.Key(i)[last] == w {
+		return i
+	}
+	return -1
 }
 
 // prefixRange returns the entries [lo, hi) of l whose keys begin with p.
@@ -124,6 +160,11 @@ func (m *Model) rankedGroup(nd *node, sfx *node) bool {
 	base := uint64(nd.lo)
 	bitsLen := uint64(nd.hi - nd.lo)
 	nd.efRanks = false
+	if l.counted {
+		nd.slo, nd.sn = sfx.lo, F
+		nd.eg = sfx.eg
+		return m.countedGroup(nd, base, bitsLen, F, w)
+	}
 	if l.choose {
 		if bitsLen == 0 {
 			return false
@@ -165,6 +206,9 @@ func (m *Model) rankedGroup(nd *node, sfx *node) bool {
 // suffix group's size when the group is damaged).
 func (l *level) rankAt(nd *node, p int) uint64 {
 	if nd.efRanks {
+		if nd.counted {
+			return nd.rg.at(p)
+		}
 		var g efGroup
 		if !l.ranksOf(nd, &g) {
 			return ^uint64(0)
@@ -205,13 +249,28 @@ func (m *Model) wordAt(nd *node, p int) uint64 {
 	return m.lv[nd.lvl-1].words.at(nd.slo + int(r))
 }
 
-// probAt returns ln p of entry p of a node's successor group.
+// probAt returns ln p of entry p of a node's successor group. Every read
+// of a stored probability goes through it (or through recordProb, which
+// gives the same value).
 func (m *Model) probAt(nd *node, p int) float64 {
 	l := &m.lv[nd.lvl]
 	if !nd.ranked {
 		return l.prob(p)
 	}
+	if nd.counted {
+		return m.countedProb(nd, p, l.rankAt(nd, p))
+	}
 	return l.probBook.value(l.codeAt(nd, p))
+}
+
+// recordProb is probAt for record p of a ranked node whose word is entry s
+// of the suffix group (as rankedFind returns them), without reading the
+// rank again.
+func (m *Model) recordProb(nd *node, p, s int) float64 {
+	if nd.counted {
+		return m.countedProb(nd, p, uint64(s-nd.slo))
+	}
+	return m.probAt(nd, p)
 }
 
 // lowerIn returns the first position in [lo, hi) of a node's group whose

@@ -22,10 +22,13 @@ const (
 	// the words of the orders between the unigrams and the highest order as
 	// one Elias-Fano code per successor group (efgroup.go); version 5 lets
 	// each group of ranked records code its ranks so too when that is
-	// shorter. Version 2 (Elias-Fano successor starts, plain word IDs) is
-	// written for models that are not suffix-closed or of order below 3;
-	// versions 1 to 4 are still read and can be written on request.
-	sectionVersion = 5
+	// shorter; version 6 stores the highest order's counts instead of its
+	// probability codes (counted.go) when the model carries them. Version 5
+	// is written for suffix-closed models without counts, version 2
+	// (Elias-Fano successor starts, plain word IDs) for models that are not
+	// suffix-closed or of order below 3; versions 1 to 5 are still read and
+	// can be written on request.
+	sectionVersion = 6
 	headerSize     = 40
 	dirEntrySize   = 32
 	// TopListLen is the number of best successors kept in probability order
@@ -73,12 +76,15 @@ type LayoutOptions struct {
 	// losslessly. The zero value means lossless; build tools default to 8.
 	QuantBits int
 	// Version selects the layout version: 0 means the newest one the model
-	// allows (5 for a suffix-closed model of order ≥ 3, else 2); 1 to 4
-	// write the older layouts (plain successor starts; plain word IDs at
-	// every order; plain word IDs below the ranked highest order; ranks
-	// always of fixed width), for compatibility tests and comparisons. A
-	// model that is not suffix-closed, or of order below 3, is written as
-	// version 2 when 3, 4 or 5 is asked for.
+	// allows (6 for a suffix-closed model of order ≥ 3 that carries its
+	// highest order's counts, as Estimate's do; 5 for other suffix-closed
+	// models of order ≥ 3; else 2); 1 to 5 write the older layouts (plain
+	// successor starts; plain word IDs at every order; plain word IDs below
+	// the ranked highest order; ranks always of fixed width; probability
+	// codes at the highest order), for compatibility tests and comparisons.
+	// A model without counts is written as version 5 when 6 is asked for,
+	// and one that is not suffix-closed, or of order below 3, as version 2
+	// when 3 to 6 is.
 	Version int
 }
 
@@ -94,8 +100,8 @@ func AppendSection(dst []byte, b *Backoff, opts LayoutOptions) ([]byte, error) {
 	q := opts.QuantBits
 	version := uint32(sectionVersion)
 	switch opts.Version {
-	case 0, 5:
-	case 1, 2, 3, 4:
+	case 0, 6:
+	case 1, 2, 3, 4, 5:
 		version = uint32(opts.Version)
 	default:
 		return nil, fmt.Errorf("%w: layout version %d", ErrSectionVersion, opts.Version)
@@ -117,11 +123,30 @@ func AppendSection(dst []byte, b *Backoff, opts LayoutOptions) ([]byte, error) {
 		arrs = append(arrs, arr{tag: t, width: width, n: len(vals), words: packVec(vals, width)})
 	}
 	wbits := bitsFor(uint64(max(V-1, 0)))
+	// Version 6: the highest order as counted records, when the model
+	// carries its counts; it needs no probability codes there.
+	var recs bitStream
+	var recStart []uint64
+	var bowW []float64 // version 6: weights of the order N − 1 back-off codebook
+	if version == 6 {
+		ok := N >= 3
+		if ok {
+			bowW = make([]float64, b.Levels[N-2].Len())
+			recs, recStart, ok = rankRecords(b, nil, 0, 6, bowW)
+		}
+		if !ok {
+			version = 5
+		}
+	}
+	counted := version == 6
 	// Probability codebooks and codes of every level, computed once: a
 	// level's codes are also needed to order its parent's top lists.
 	books := make([]codebook, N)
 	allCodes := make([][]uint64, N)
 	for n := range N {
+		if counted && n == N-1 {
+			break
+		}
 		lv := &b.Levels[n]
 		if q > 0 {
 			books[n] = trainCodebook(lv.LogP, q)
@@ -131,12 +156,10 @@ func AppendSection(dst []byte, b *Backoff, opts LayoutOptions) ([]byte, error) {
 			allCodes[n][i] = books[n].encode(x)
 		}
 	}
-	// Versions 3 and 4: the highest order as ranked records, when the model allows.
-	var recs bitStream
-	var recStart []uint64
-	if version >= 3 {
+	// Versions 3 to 5: the highest order as ranked records, when the model allows.
+	if version >= 3 && version <= 5 {
 		var ok bool
-		recs, recStart, ok = rankRecords(b, allCodes[N-1], books[N-1].width(), version == 5)
+		recs, recStart, ok = rankRecords(b, allCodes[N-1], books[N-1].width(), int(version), nil)
 		if !ok {
 			version = 2
 		}
@@ -154,14 +177,28 @@ func AppendSection(dst []byte, b *Backoff, opts LayoutOptions) ([]byte, error) {
 		pb, codes := books[n-1], allCodes[n-1]
 		var bb codebook
 		if q > 0 {
-			var bows []float64
-			for i, x := range lv.Bow {
-				if x != 0 || (n < N && hasChildren(b, n, i)) {
-					bows = append(bows, x)
+			if counted && n == N-1 {
+				// The weights of these contexts also scale every
+				// highest-order probability (counted.go).
+				var vals, wts []float64
+				for i, w := range bowW {
+					if w > 0 {
+						vals, wts = append(vals, lv.Bow[i]), append(wts, w)
+					}
 				}
+				bb = trainWeightedCodebook(append(vals, 0), append(wts, 1), q)
+			} else {
+				var bows []float64
+				for i, x := range lv.Bow {
+					if x != 0 || (n < N && hasChildren(b, n, i)) {
+						bows = append(bows, x)
+					}
+				}
+				bb = trainCodebook(append(bows, 0), q)
 			}
-			bb = trainCodebook(append(bows, 0), q)
-			add(tag(tagProbBook, n), 64, floatBits(pb))
+			if !counted || n < N {
+				add(tag(tagProbBook, n), 64, floatBits(pb))
+			}
 			add(tag(tagBowBook, n), 64, floatBits(bb))
 		}
 		switch {
@@ -170,6 +207,9 @@ func AppendSection(dst []byte, b *Backoff, opts LayoutOptions) ([]byte, error) {
 		case n == N && ranked:
 			arrs = append(arrs, arr{tag: tag(tagRecords, n), width: 1, n: int(recs.n), words: recs.words()})
 			add(tag(tagRecCount, n), 64, []uint64{uint64(lv.Len())})
+			if counted {
+				add(tag(tagDiscounts, n), 64, floatBits(codebook(b.Discounts[N-1][:])))
+			}
 		case grouped:
 			// The words are written with the parent's groups (below).
 		default:
@@ -227,8 +267,14 @@ func AppendSection(dst []byte, b *Backoff, opts LayoutOptions) ([]byte, error) {
 				for i := range idx {
 					idx[i] = i
 				}
+				val := func(i int) float64 { return nb.value(nextCodes[g.lo+i]) }
+				if counted && n == N-1 {
+					// The order the reader's values give (topLogProb).
+					vals := countedValues(b, g.lo, g.hi, bb.value(bb.encode(lv.Bow[p])), pb, codes)
+					val = func(i int) float64 { return vals[i] }
+				}
 				slices.SortStableFunc(idx, func(x, y int) int {
-					vx, vy := nb.value(nextCodes[g.lo+x]), nb.value(nextCodes[g.lo+y])
+					vx, vy := val(x), val(y)
 					switch {
 					case vx > vy:
 						return -1
@@ -437,9 +483,12 @@ func LoadSection(b []byte) (*Model, error) {
 		l := &m.lv[n-1]
 		l.n = n
 		var err error
+		counted := version >= 6 && n == N
 		if q > 0 {
-			if l.probBook, err = loadBook(need, tag(tagProbBook, n), q); err != nil {
-				return nil, err
+			if !counted {
+				if l.probBook, err = loadBook(need, tag(tagProbBook, n), q); err != nil {
+					return nil, err
+				}
 			}
 			if l.bowBook, err = loadBook(need, tag(tagBowBook, n), q); err != nil {
 				return nil, err
@@ -460,12 +509,29 @@ func LoadSection(b []byte) (*Model, error) {
 			if err != nil {
 				return nil, err
 			}
-			// A record holds at least one rank bit and its code.
+			// A record holds at least one rank bit and its code (version 6:
+			// at least one rank bit).
+			if counted {
+				cw = 0
+			}
 			if cnt := cv.at(0); cnt > uint64(rv.n)/(uint64(cw)+1) {
 				return nil, corrupt(0, "order %d: %d ranked records cannot fit %d bits", n, cnt, rv.n)
 			}
 			l.ranked, l.recs, l.recBits, l.recCode = true, rv.w, uint64(rv.n), cw
 			l.choose = version >= 5
+			if counted {
+				dv, err := need(tag(tagDiscounts, n), 3, 64)
+				if err != nil {
+					return nil, err
+				}
+				for i := range l.disc {
+					l.disc[i] = math.Float64frombits(dv.at(i))
+				}
+				if !validDiscounts(l.disc) {
+					return nil, corrupt(0, "order %d: discounts %v", n, l.disc)
+				}
+				l.counted = true
+			}
 			l.size = int(cv.at(0))
 		} else if version >= 4 {
 			gv, err := need(tag(tagGroups, n), -1, 1)
@@ -534,6 +600,9 @@ func LoadSection(b []byte) (*Model, error) {
 		if l.top, err = need(tag(tagTop, n), -1, 0); err != nil {
 			return nil, err
 		}
+	}
+	if m.lv[N-1].counted {
+		m.lv[N-2].expTables()
 	}
 	// Successor counts must agree with the next level's size.
 	for n := 1; n < N; n++ {

@@ -107,6 +107,10 @@ func (m *Model) groupTop(nd *node, lo, hi uint32, k int, add func(uint32) bool) 
 			}
 		}
 	}
+	if nd.counted {
+		m.countedTop(nd, glo, ghi, k, add)
+		return
+	}
 	var t topBuf
 	t.k = k + 3 // room for the special tokens, which add refuses
 	// Positions ascend with word IDs inside a group, so ranking positions
