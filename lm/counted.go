@@ -403,3 +403,10 @@ func countedBowWeight(b *Backoff, g, e, j int, sfx []int) float64 {
 	}
 	return w
 }
+
+// countedSlack is how far, in nats, Check lets a successor computed from
+// counts exceed the last entry of its top list: a few units in the last
+// place of a log-probability, so that a near tie rounded differently by
+// another machine's math.Exp or math.Log is not reported as damage, while
+// any real misordering (at least one count or code apart) still is.
+const countedSlack = 1e-12

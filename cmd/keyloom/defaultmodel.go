@@ -20,7 +20,7 @@ import (
 // defaultRecipe names the build of the default model; change it whenever the
 // build below or the file layout it writes changes so that cached copies
 // are rebuilt.
-const defaultRecipe = "default-english-3"
+const defaultRecipe = "default-english-4"
 
 // contractionPieces are SUBTLEX-US entries that are halves of contractions
 // split by its tokenizer ("don" + "t"); the project's tokenizer keeps
