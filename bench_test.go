@@ -94,7 +94,7 @@ func statusKB(field string) int64 {
 // query: the file-backed pages it touched (RssFile of /proc/self/status,
 // Linux only), after a warm-up open has paid the one-time setup.
 func BenchmarkOpen(b *testing.B) {
-	path, data := syntheticModel(b, 2_500_000)
+	path, data := syntheticModel(b, 5_000_000)
 	warm, err := Open(path, Options{})
 	if err != nil {
 		b.Fatal(err)
