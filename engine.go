@@ -45,10 +45,11 @@ type Options struct {
 	Layout Layout
 	// Keyboard, if not nil, replaces Layout (see ParseLayout).
 	Keyboard *Keyboard
-	// CorrectionStates caps the lexicon states one correction may visit,
-	// bounding its worst case (about 0.3–0.5 µs per state on a phone-class
-	// core): default DefaultCorrectionStates; −1 removes the cap (slightly
-	// better recall on badly misspelled long words, tens of milliseconds).
+	// CorrectionStates caps the lexicon prefixes one correction may
+	// examine (one DP row each), bounding its worst case (about 0.2–0.4 µs
+	// per prefix on a phone-class core): default DefaultCorrectionStates;
+	// −1 removes the cap (a few milliseconds for badly misspelled long
+	// words).
 	CorrectionStates int
 	// AutoApplyConfidence is the confidence a correction of an unknown word
 	// needs to be applied on space (default DefaultAutoApplyConfidence).
@@ -62,8 +63,12 @@ type Options struct {
 // the engine prefers leaving a typo to making a wrong correction.
 const DefaultAutoApplyConfidence = 0.8
 
-// DefaultCorrectionStates is the default of Options.CorrectionStates.
-const DefaultCorrectionStates = 15000
+// DefaultCorrectionStates is the default of Options.CorrectionStates. On
+// the development misspellings list, 8,000 prefixes gave the same or
+// better top-1, top-3 and auto-apply figures as the previous cap of 15,000
+// entered states; 5,000 lost 0.05 point of top-3 and 3,000 lost 0.4
+// (BENCHMARKS.md).
+const DefaultCorrectionStates = 8000
 
 func (o Options) withDefaults() (Options, error) {
 	if o.Suggestions == 0 {

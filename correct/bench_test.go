@@ -1,6 +1,7 @@
 package correct
 
 import (
+	"runtime"
 	"slices"
 	"strings"
 	"testing"
@@ -15,9 +16,13 @@ import (
 // API, which decodes and allocates a state per call) and trie (the same
 // FST bytes read by the trie package's decoder, as the engine does).
 // The trie is also searched with the previous depth-first widest pass
-// (trie-depthfirst), and both with the engine's state cap (-cap). Besides
-// latency it reports the states visited and the DP rows computed per word,
-// which do not depend on the machine's load.
+// (trie-depthfirst), and both with the engine's cap (-cap);
+// trie-cap-rowbound is the search before the letters-below bound (row
+// minimum only, the previous cap of 15,000 states entered). Besides
+// latency (wall and, where the thread's CPU clock is read, CPU time of
+// the calling thread, which other processes disturb less) it reports the
+// states visited and the DP rows computed per word, which do not depend
+// on the machine's load.
 func BenchmarkCorrect8(b *testing.B) {
 	d := corpus(b)
 	var typed []string
@@ -38,13 +43,15 @@ func BenchmarkCorrect8(b *testing.B) {
 		words      []string
 		depthFirst bool
 		cap        int
+		rowBound   bool // the previous bound: no letters-below table
 	}{
-		{"flat", newFlatLex(d.subtlexLex), d.subtlexLex, false, 0},
-		{"vellum", newVellumLex(b, d.subtlexLex), d.subtlexLex, false, 0},
-		{"trie", newTrieLex(b, d.subtlexLex), d.subtlexLex, false, 0},
-		{"trie-depthfirst", newTrieLex(b, d.subtlexLex), d.subtlexLex, true, 0},
-		{"trie-cap", newTrieLex(b, d.subtlexLex), d.subtlexLex, false, benchCap},
-		{"trie-depthfirst-cap", newTrieLex(b, d.subtlexLex), d.subtlexLex, true, benchCap},
+		{"flat", newFlatLex(d.subtlexLex), d.subtlexLex, false, 0, false},
+		{"vellum", newVellumLex(b, d.subtlexLex), d.subtlexLex, false, 0, false},
+		{"trie", newTrieLex(b, d.subtlexLex), d.subtlexLex, false, 0, false},
+		{"trie-depthfirst", newTrieLex(b, d.subtlexLex), d.subtlexLex, true, 0, false},
+		{"trie-cap", newTrieLex(b, d.subtlexLex), d.subtlexLex, false, benchCap, false},
+		{"trie-depthfirst-cap", newTrieLex(b, d.subtlexLex), d.subtlexLex, true, benchCap, false},
+		{"trie-cap-rowbound", newTrieLex(b, d.subtlexLex), d.subtlexLex, false, prevBenchCap, true},
 	}
 	for _, l := range lexicons {
 		b.Run(l.name, func(b *testing.B) {
@@ -53,15 +60,21 @@ func BenchmarkCorrect8(b *testing.B) {
 				b.Fatal(err)
 			}
 			c.depthFirst = l.depthFirst
+			if l.rowBound {
+				c.below, c.capRows = nil, false
+			}
+			runtime.LockOSThread()
+			defer runtime.UnlockOSThread()
 			var buf []Candidate
-			var lat []time.Duration
+			var lat, cpu []time.Duration
 			cands, i := 0, 0
 			b.ReportAllocs()
 			for b.Loop() {
 				w := typed[i%len(typed)]
 				i++
-				start := time.Now()
+				start, cpu0 := time.Now(), threadClock()
 				buf, _ = c.Correct(w, nil, 3, buf)
+				cpu = append(cpu, threadClock()-cpu0)
 				lat = append(lat, time.Since(start))
 			}
 			var states, rows []int
@@ -81,14 +94,22 @@ func BenchmarkCorrect8(b *testing.B) {
 			slices.Sort(lat)
 			b.ReportMetric(float64(lat[len(lat)/2].Nanoseconds()), "median-ns")
 			b.ReportMetric(float64(lat[len(lat)*99/100].Nanoseconds()), "p99-ns")
+			slices.Sort(cpu)
+			b.ReportMetric(float64(cpu[len(cpu)/2].Nanoseconds()), "cpu-median-ns")
+			b.ReportMetric(float64(cpu[len(cpu)*99/100].Nanoseconds()), "cpu-p99-ns")
 			b.ReportMetric(float64(cands)/float64(len(typed)), "candidates/word")
 		})
 	}
 }
 
-// benchCap is the state cap of the -cap runs: the engine's default
+// benchCap is the cap of the -cap runs: the engine's default
 // (keyloom.DefaultCorrectionStates, which this package cannot import).
-const benchCap = 15000
+const benchCap = 8000
+
+// prevBenchCap is the engine's previous default, 15,000 states entered,
+// used by trie-cap-rowbound: the search before the letters-below bound
+// (below.go), kept selectable as the baseline.
+const prevBenchCap = 15000
 
 // work returns the lexicon states one correction of w visits and the DP
 // rows it computes (deterministic; not timed).
@@ -96,7 +117,7 @@ func (c *Corrector) work(w string) (states, rows int) {
 	var sc scratch
 	id, inLex := c.lex.ID(w)
 	sc.rk.start(c, nil, id, inLex, 8, nil)
-	states = c.searchPasses(&sc.s, &sc.rk, w, inLex, !c.depthFirst)
+	_, states = c.searchPasses(&sc.s, &sc.rk, w, inLex, !c.depthFirst)
 	return states, sc.s.rowsDone
 }
 
@@ -111,8 +132,10 @@ func (c *Corrector) lastHits(w string) []hit {
 
 // BenchmarkWidePass times the widest pass alone (13 nats, no cap) over
 // the 8-letter misspellings of BenchmarkCorrect8 and the trie lexicon,
-// walked depth-first and best-first, and reports the time per state each
-// walk enters (best-first: per prefix queued) and the states per word.
+// walked depth-first and best-first with the row-minimum bound, and
+// best-first with the letters-below bound (below.go), and reports the
+// time per state each walk enters (best-first: per prefix queued), the
+// states and the DP rows per word.
 func BenchmarkWidePass(b *testing.B) {
 	d := corpus(b)
 	var typed []string
@@ -126,14 +149,17 @@ func BenchmarkWidePass(b *testing.B) {
 	if err != nil {
 		b.Fatal(err)
 	}
-	for _, bestFirst := range []bool{false, true} {
-		name := "depthfirst"
-		if bestFirst {
-			name = "bestfirst"
-		}
-		b.Run(name, func(b *testing.B) {
+	for _, v := range []struct {
+		name             string
+		bestFirst, below bool
+	}{{"depthfirst", false, false}, {"bestfirst", true, false}, {"bestfirst-below", true, true}} {
+		bestFirst := v.bestFirst
+		b.Run(v.name, func(b *testing.B) {
 			var s search
-			states, i := 0, 0
+			if v.below {
+				s.below = c.below
+			}
+			states, rows, i := 0, 0, 0
 			b.ReportAllocs()
 			for b.Loop() {
 				w := typed[i%len(typed)]
@@ -145,9 +171,11 @@ func BenchmarkWidePass(b *testing.B) {
 					s.run()
 				}
 				states += s.visited
+				rows += s.examined
 			}
 			b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(max(states, 1)), "ns/state")
 			b.ReportMetric(float64(states)/float64(i), "states/word")
+			b.ReportMetric(float64(rows)/float64(i), "rows/word")
 		})
 	}
 }

@@ -55,7 +55,7 @@ func (s *search) runBest() {
 			b++
 			continue
 		}
-		if s.limit > 0 && s.visited >= s.limit {
+		if s.limit > 0 && s.spent() >= s.limit {
 			return // out of time: keep what was found
 		}
 		i := q[len(q)-1]
@@ -115,6 +115,7 @@ func (s *search) expand(i int32) int {
 		}
 	}
 	s.edges[0] = edges
+	pn := s.partialNext(&s.pnBest, parts)
 	d := int(nd.d) + 1
 	for k := range edges {
 		e := &edges[k]
@@ -129,7 +130,10 @@ func (s *search) expand(i int32) int {
 		}
 		j := len(s.nodes)
 		s.growSlots(j + 1)
+		s.pnext = pn
+		s.setChild(e.Next)
 		base := s.extend(int(nd.actLo), int(nd.actHi), m, i, c)
+		s.pnext = nil
 		g := int(nd.parent)
 		cm := s.computeRow(j, int(i), g, d, c, nd.c)
 		if cm > s.budget && len(s.act) == base {
@@ -141,17 +145,23 @@ func (s *search) expand(i int32) int {
 				s.found(uint32(nd.acc+e.Out+fo), cost)
 			}
 		}
-		// Lower bound of any word below the child: its row minimum; a rule
-		// under way, from the row it started at; a transposition of the
-		// child's byte with the next, from this node's row.
-		lb := cm
-		for _, p := range s.act[base:] {
-			lb = min(lb, s.mins[p.from]+s.rules[p.rule].cost)
-		}
-		if s.ch.trans < inf {
-			for ps := s.pos[c] &^ 1; ps != 0; ps &= ps - 1 {
-				x := bits.TrailingZeros64(ps)
-				lb = min(lb, row[x-1]+s.ch.trans)
+		// Lower bound of any word below the child: with the letters-below
+		// table, childBound (below.go); else its row minimum, a rule under
+		// way from the row it started at, and a transposition of the
+		// child's byte with the next from this node's row.
+		var lb float32
+		if s.below != nil {
+			lb = s.childBound(s.rows[j*w:(j+1)*w], row, cm, c, s.act[base:], s.childSetsNow())
+		} else {
+			lb = cm
+			for _, p := range s.act[base:] {
+				lb = min(lb, s.mins[p.from]+s.rules[p.rule].cost)
+			}
+			if s.ch.trans < inf {
+				for ps := s.pos[c] &^ 1; ps != 0; ps &= ps - 1 {
+					x := bits.TrailingZeros64(ps)
+					lb = min(lb, row[x-1]+s.ch.trans)
+				}
 			}
 		}
 		if lb > s.budget {

@@ -53,3 +53,84 @@ func hitList(h []hit) []hit {
 	slices.SortFunc(h, func(a, b hit) int { return int(a.id) - int(b.id) })
 	return h
 }
+
+// TestBelowBoundKeepsWords checks that the letters-below lower bound
+// (below.go) prunes only prefixes with no word within budget: with the
+// bound, both walks find exactly the words and costs of the depth-first
+// walk without it, for 150 words of the development misspellings list
+// (corpora/misspellings-dev.tsv, a public list of real misspellings) over
+// the SUBTLEX-US lexicon and each pass budget; and for 12 of them the
+// words found are exactly the lexicon words whose channel cost, computed
+// one by one by the row recurrence, is within budget.
+func TestBelowBoundKeepsWords(t *testing.T) {
+	d := corpus(t)
+	lex := newTrieLex(t, d.subtlexLex)
+	c, err := New(lex, d.unigramScorer(lex.words), Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if c.below == nil {
+		t.Fatal("no letters-below table for a lexicon that lists edges")
+	}
+	pairs := devPairs(t)
+	checked, found, brute := 0, 0, 0
+	var one search
+	for i := 3; i < len(pairs) && checked < 150; i += 13 {
+		typed := strings.ToLower(pairs[i].Typed)
+		if len(typed) > maxTyped || !latinOnly(typed) {
+			continue
+		}
+		checked++
+		for _, budget := range []float32{firstPass, secondPass, float32(c.opts.MaxCost)} {
+			var ref, dfs, bfs search
+			ref.reset(c.ch, lex, typed, budget, len(typed)+maxExtra)
+			ref.run()
+			dfs.below, bfs.below = c.below, c.below
+			dfs.reset(c.ch, lex, typed, budget, len(typed)+maxExtra)
+			dfs.run()
+			bfs.reset(c.ch, lex, typed, budget, len(typed)+maxExtra)
+			bfs.runBest()
+			want := fmt.Sprint(hitList(ref.hits))
+			if got := fmt.Sprint(hitList(dfs.hits)); got != want {
+				t.Errorf("%q at %v nats: depth-first with the bound found\n %v\nwithout\n %v", typed, budget, got, want)
+			}
+			if got := fmt.Sprint(hitList(bfs.hits)); got != want {
+				t.Errorf("%q at %v nats: best-first with the bound found\n %v\nwithout\n %v", typed, budget, got, want)
+			}
+			if bfs.examined > ref.examined {
+				t.Errorf("%q at %v nats: %d rows with the bound, %d without", typed, budget, bfs.examined, ref.examined)
+			}
+			found += len(ref.hits)
+			if checked <= 12 && budget == float32(c.opts.MaxCost) {
+				var all []hit
+				for id, w := range lex.words {
+					if len(w) > len(typed)+maxExtra {
+						continue
+					}
+					if v := one.cost(c.ch, typed, w); v <= budget {
+						all = append(all, hit{id: uint32(id), cost: v})
+					}
+				}
+				brute++
+				if got, want := fmt.Sprint(hitList(bfs.hits)), fmt.Sprint(all); got != want {
+					t.Errorf("%q: best-first with the bound found\n %v\nword by word\n %v", typed, got, want)
+				}
+			}
+		}
+	}
+	if checked < 150 || found < 1000 || brute < 12 {
+		t.Errorf("checked %d words, %d hits, %d word by word; the comparison is too thin", checked, found, brute)
+	}
+}
+
+// cost is channel.distance reusing s, whose typed-word tables are kept
+// while typed stays the same.
+func (s *search) cost(ch *channel, typed, intended string) float32 {
+	s.reset(ch, nil, typed, inf, len(intended))
+	for d := 0; d < len(intended); d++ {
+		s.path[d] = intended[d]
+		s.advance(d, intended[d])
+		s.computeRowDepth(d + 1)
+	}
+	return s.rows[len(intended)*s.w+s.n]
+}

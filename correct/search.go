@@ -89,7 +89,9 @@ type search struct {
 	done      []partial // rules completed by the row being computed
 	hits      []hit
 	visited   int
-	limit     int // states this search may visit (0 = no limit)
+	examined  int  // DP rows computed by this pass
+	capRows   bool // limit counts examined prefixes (rows), not entered states
+	limit     int  // work (see spent) this search may do (0 = no limit)
 	el        EdgeLister
 	edges     [][]Edge  // per depth
 	rk        *ranker   // if not nil, takes the words found instead of hits
@@ -99,6 +101,26 @@ type search struct {
 	// rowsDone counts the DP rows computed (for benchmarks; reset by the
 	// caller, not by reset).
 	rowsDone int
+	// below, if not nil, gives the letters below each lexicon state, for
+	// the tighter lower bound of childBound (see below.go); the fields
+	// after it are that bound's typed-word tables.
+	below      *belowTable
+	subGCh     *channel                 // channel subG and delG were made for
+	subG       [256][]hopt              // substitution groups by typed byte (subGroups)
+	delG       []hopt                   // deletions by class of the left-out letter
+	tbits      uint32                   // byte classes (belowBit) of the typed bytes
+	posBit     [29]uint64               // posBit[i]: typed positions of byte class i
+	ruleMiss   [][]hopt                 // per typed byte, see prepareBelow
+	stepCls    [][29]float32            // per typed byte, see prepareBelow
+	hsCache    []float32                // leftOver answers, n+1 per slot
+	hsKeys     [1 << hsCacheBits]uint32 // below set + 1 of each hsCache slot
+	hzero      []float32                // n+1 zeros
+	pnext      *[4]uint64               // if not nil: the bytes the parent's partials wait for
+	childState int                      // state of the child prefix extend works for (see setChild)
+	childSets  belowSets                // its sets, once childOK
+	childOK    bool
+	pnDepth    [][4]uint64 // partialNext sets of the depth-first walk, by depth
+	pnBest     [4]uint64   // partialNext set of the best-first walk
 }
 
 // plainByte marks the bytes the search tries as intended letters wherever
@@ -150,6 +172,7 @@ func (s *search) reset(ch *channel, lex Lexicon, typed string, budget float32, m
 	s.path = s.path[:s.maxDepth+1]
 	s.hits = s.hits[:0]
 	s.visited = 0
+	s.examined = 0
 	s.limit = 0
 	s.el, _ = lex.(EdgeLister)
 	for len(s.edges) < s.maxDepth+1 {
@@ -167,6 +190,9 @@ func (s *search) reset(ch *channel, lex Lexicon, typed string, budget float32, m
 		s.actStart = make([]int, s.maxDepth+1)
 	}
 	s.actStart = s.actStart[:s.maxDepth+1]
+	for len(s.pnDepth) < s.maxDepth+1 {
+		s.pnDepth = append(s.pnDepth, [4]uint64{})
+	}
 	s.actStart[0], s.actEnd[0] = 0, 0
 	// Row zero: typed bytes before any intended one are extra.
 	r := s.rows[:s.w]
@@ -251,6 +277,7 @@ func (s *search) prepare(ch *channel) {
 		}
 		s.first[c] = append(s.first[c], int32(i))
 	}
+	s.prepareBelow()
 }
 
 // leadFirst adds the first-letter surcharge (leadCost) to the spelling
@@ -322,7 +349,7 @@ func (s *search) run() {
 // visit explores the lexicon below state, reached at depth d with output
 // sum acc.
 func (s *search) visit(d int, state int, acc uint64) {
-	if s.limit > 0 && s.visited >= s.limit {
+	if s.limit > 0 && s.spent() >= s.limit {
 		return // out of time: keep what was found
 	}
 	s.visited++
@@ -363,6 +390,7 @@ func (s *search) visit(d int, state int, acc uint64) {
 		}
 	}
 	s.edges[d] = edges
+	pn := s.partialNext(&s.pnDepth[d], s.act[s.actStart[d]:s.actEnd[d]])
 	for i := range edges {
 		e := &edges[i]
 		c := e.Byte
@@ -377,12 +405,31 @@ func (s *search) visit(d int, state int, acc uint64) {
 			}
 		}
 		s.path[d] = c
+		s.pnext = pn
+		s.setChild(e.Next)
 		base := s.advance(d, c)
-		if s.computeRowDepth(d+1) <= budget || s.actEnd[d+1] > base {
+		s.pnext = nil
+		m := s.computeRowDepth(d + 1)
+		keep := m <= budget || s.actEnd[d+1] > base
+		if keep && s.below != nil {
+			// The tighter bound of below.go, which also prunes children
+			// kept only by a rule under way that cannot finish in budget.
+			keep = s.childBound(s.rows[(d+1)*w:(d+2)*w], s.rows[d*w:(d+1)*w], m, c, s.act[base:s.actEnd[d+1]], s.childSetsNow()) <= budget
+		}
+		if keep {
 			s.visit(d+1, e.Next, acc+e.Out)
 		}
 		s.act = s.act[:base]
 	}
+}
+
+// spent returns the work the cap counts: rows computed (with capRows) or
+// states entered.
+func (s *search) spent() int {
+	if s.capRows {
+		return s.examined
+	}
+	return s.visited
 }
 
 // setMinEdges is the number of edges from which a state's edges are
@@ -467,6 +514,20 @@ func (s *search) allowed(row, prev []float32, m float32, last byte, parts []part
 	return set
 }
 
+// partialNext fills m with the set of bytes the partial rule matches
+// parts wait for and returns it, so that extend can skip them for other
+// bytes; it returns nil when there are too few for the set to pay.
+func (s *search) partialNext(m *[4]uint64, parts []partial) *[4]uint64 {
+	if len(parts) < 4 {
+		return nil
+	}
+	*m = [4]uint64{}
+	for _, p := range parts {
+		m[p.next>>6] |= 1 << (p.next & 63)
+	}
+	return m
+}
+
 // advance extends the partial rule matches of depth d by byte c into
 // depth d+1 and lists the rules c completes in s.done. It returns where
 // depth d+1's partials start.
@@ -487,6 +548,9 @@ func (s *search) extend(lo, hi int, m float32, from int32, c byte) int {
 	if lo == hi && len(first) == 0 {
 		return base
 	}
+	if s.pnext != nil && s.pnext[c>>6]&(1<<(c&63)) == 0 {
+		hi = lo // no partial match waits for c
+	}
 	for i := lo; i < hi; i++ {
 		p := s.act[i]
 		if p.next != c {
@@ -496,20 +560,37 @@ func (s *search) extend(lo, hi int, m float32, from int32, c byte) int {
 		p.k++
 		if int(p.k) == r.la {
 			s.done = append(s.done, p)
-		} else {
+		} else if s.below == nil || s.canFinish(r.alpha[p.k:]) { // else no word below can use it
 			p.next = r.alpha[p.k]
 			s.act = append(s.act, p)
 		}
 	}
+	var row []float32
 	for _, ri := range first {
 		r := &s.rules[ri]
 		if m+r.cost > s.budget {
 			break // first[c] is sorted by cost
 		}
+		if s.below != nil {
+			// The rule can only end where its typed side does: it starts
+			// from the row entry just before one of those places. (A
+			// completion dearer than the budget only changes row entries
+			// already above it.)
+			if row == nil {
+				row = s.rows[int(from)*s.w : (int(from)+1)*s.w]
+			}
+			v := inf
+			for ends := r.ends; ends != 0; ends &= ends - 1 {
+				v = min(v, row[bitIndex64(ends)-r.lb])
+			}
+			if v+r.cost > s.budget {
+				continue
+			}
+		}
 		p := partial{rule: ri, k: 1, from: from}
 		if r.la == 1 {
 			s.done = append(s.done, p)
-		} else {
+		} else if s.below == nil || s.canFinish(r.alpha[1:]) {
 			p.next = r.alpha[1]
 			s.act = append(s.act, p)
 		}
@@ -534,6 +615,7 @@ func (s *search) computeRowDepth(d int) float32 {
 // row's minimum in mins[rs] and returns it.
 func (s *search) computeRow(rs, ps, gs, d int, c, pc byte) float32 {
 	s.rowsDone++
+	s.examined++
 	w, n, ch := s.w, s.n, s.ch
 	P := s.rows[ps*w : (ps+1)*w]
 	R := s.rows[rs*w : (rs+1)*w]

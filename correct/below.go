@@ -1,0 +1,556 @@
+package correct
+
+import "math/bits"
+
+// This file holds the letters-below table and the lower bound the search
+// draws from it (an admissible heuristic in the sense of A* search), for
+// lexicons that list edges. For each automaton state the table keeps two
+// byte sets: the bytes on some path below it, and the bytes of its own
+// edges. For a prefix whose row says the typed bytes before j cost row[j]:
+//
+//   - a typed byte from j on that is on no path below cannot be matched by
+//     any word below: it is typed extra, typed for a letter that is below,
+//     or part of a rule's typed side whose intended side is below (charged
+//     its share, the rule's cost over its typed length, so that the bytes
+//     one rule covers never cost more together than the rule);
+//   - if t[j] is below but on none of the state's edges, the first step
+//     after the prefix is an edit: t[j] typed extra or for an edge letter,
+//     an edge letter left out, a transposition with an edge letter, or a
+//     rule starting on an edge letter (its share, or all of its cost if its
+//     typed side is empty).
+//
+// The bound is the least over j of row[j] plus those costs, together with
+// the same for rules under way and transpositions across the prefix's end
+// (childBound). No alignment is charged twice for one edit, so the bound
+// never exceeds the cost of a word below: pruning on it and ordering the
+// best-first queue by it find exactly the words the row minimum finds
+// (TestBelowBoundKeepsWords), with a third of the rows at the median of
+// 8-letter words (BenchmarkCorrect8). Rules under way whose rest cannot
+// follow (its next byte on no edge, or a byte on no path below) are
+// dropped, as are rules that cannot end within budget where their typed
+// side ends.
+
+// belowBit returns the bit of byte c in a letters-below set: a–z are bits
+// 0–25, the apostrophe 26, the hyphen 27 and every other byte shares bit 28.
+func belowBit(c byte) uint32 {
+	switch {
+	case c >= 'a' && c <= 'z':
+		return 1 << (c - 'a')
+	case c == '\'':
+		return 1 << 26
+	case c == '-':
+		return 1 << 27
+	}
+	return 1 << 28
+}
+
+// belowAll is the set holding every byte.
+const belowAll = 1<<29 - 1
+
+// belowTable maps the states of a lexicon to two byte sets (see
+// belowBit): the bytes on the paths below a state, and the bytes of its
+// own edges. It is an open-addressing hash table filled once by
+// newBelowTable and read-only afterwards, so searches may share it.
+// States outside [0, 2³²-1) are not stored (get answers unknownSets).
+type belowTable struct {
+	slots []belowSlot
+	shift uint // 64 - log2(len(slots))
+	count int  // states stored
+}
+
+// belowSlot is one entry of belowTable; key is the state plus one, zero
+// for an empty slot.
+type belowSlot struct {
+	key         uint32
+	below, next uint32
+}
+
+// belowSets is the entry of belowTable for a state: the bytes below it in
+// the low half, the bytes of its edges in the high half.
+type belowSets uint64
+
+// below returns the bytes on the paths below the state.
+func (b belowSets) below() uint32 { return uint32(b) }
+
+// next returns the bytes of the state's own edges.
+func (b belowSets) next() uint32 { return uint32(b >> 32) }
+
+// unknownSets is the answer for states the table does not hold: every
+// byte, which only weakens the bound.
+const unknownSets = belowSets(belowAll | belowAll<<32)
+
+// slot returns the home slot of key.
+func (t *belowTable) slot(key uint32) int {
+	return int((uint64(key) * 0x9e3779b97f4a7c15) >> t.shift)
+}
+
+// tableKey returns the key of state, or false if the table cannot hold it.
+func tableKey(state int) (uint32, bool) {
+	if state < 0 || state >= 1<<32-1 {
+		return 0, false
+	}
+	return uint32(state) + 1, true
+}
+
+// get returns the sets of state, or unknownSets when the table does not
+// hold it.
+func (t *belowTable) get(state int) belowSets {
+	v, ok := t.lookup(state)
+	if !ok {
+		return unknownSets
+	}
+	return v
+}
+
+// lookup returns the sets of state and whether the table holds it.
+func (t *belowTable) lookup(state int) (belowSets, bool) {
+	key, ok := tableKey(state)
+	if !ok {
+		return 0, false
+	}
+	mask := len(t.slots) - 1
+	for i := t.slot(key); ; i = (i + 1) & mask {
+		sl := &t.slots[i]
+		if sl.key == key {
+			return belowSets(sl.below) | belowSets(sl.next)<<32, true
+		}
+		if sl.key == 0 {
+			return 0, false
+		}
+	}
+}
+
+// put stores the sets of state (not yet in the table), growing the table
+// to keep it at most three quarters full (a smaller table stays in cache
+// better; probes stay short). A state the table cannot hold is skipped.
+func (t *belowTable) put(state int, v belowSets) {
+	key, ok := tableKey(state)
+	if !ok {
+		return
+	}
+	if t.count*4 >= len(t.slots)*3 {
+		t.grow()
+	}
+	mask := len(t.slots) - 1
+	i := t.slot(key)
+	for t.slots[i].key != 0 {
+		i = (i + 1) & mask
+	}
+	t.slots[i] = belowSlot{key: key, below: v.below(), next: v.next()}
+	t.count++
+}
+
+// grow doubles the table and re-inserts its entries.
+func (t *belowTable) grow() {
+	old := t.slots
+	size := max(2*len(old), 1024)
+	t.slots = make([]belowSlot, size)
+	t.shift = 64
+	for s := size; s > 1; s >>= 1 {
+		t.shift--
+	}
+	t.count = 0
+	for _, sl := range old {
+		if sl.key != 0 {
+			t.put(int(sl.key-1), belowSets(sl.below)|belowSets(sl.next)<<32)
+		}
+	}
+}
+
+// newBelowTable walks every state of lex reachable from its start, listing
+// edges with el, and records the byte sets of each. Cost: one edge
+// listing per state (the lexicon is a DAG; shared suffix states are listed
+// once) and 12 to 24 bytes of table per state.
+func newBelowTable(lex Lexicon, el EdgeLister) *belowTable {
+	t := &belowTable{}
+	t.grow()
+	var bufs [][]Edge
+	var walk func(state, depth int) uint32
+	walk = func(state, depth int) uint32 {
+		if _, ok := tableKey(state); !ok {
+			return belowAll
+		}
+		if v, ok := t.lookup(state); ok {
+			return v.below()
+		}
+		for len(bufs) <= depth {
+			bufs = append(bufs, nil)
+		}
+		bufs[depth] = el.AppendEdges(bufs[depth][:0], state)
+		var below, next uint32
+		for k := 0; k < len(bufs[depth]); k++ {
+			e := bufs[depth][k]
+			next |= belowBit(e.Byte)
+			if depth < 4*maxTyped {
+				below |= walk(e.Next, depth+1)
+			} else {
+				below = belowAll // deeper than any search goes: no bound
+			}
+		}
+		below |= next
+		t.put(state, belowSets(below)|belowSets(next)<<32)
+		return below
+	}
+	walk(lex.Start(), 0)
+	return t
+}
+
+// hopt is one way of paying for a typed byte in the letters-below bound,
+// with what it needs of a state. Substitution and deletion groups need one
+// of the classes in any (below the state, or on its edges); rules need
+// all of needNext on the state's edges and all of needBelow below it.
+type hopt struct {
+	cost      float32
+	any       uint32
+	needNext  uint32
+	needBelow uint32
+}
+
+// firstAny returns the cost of the first option of g (sorted by cost)
+// that has a class in set, or bound if none is cheaper than bound.
+func firstAny(g []hopt, set uint32, bound float32) float32 {
+	for i := range g {
+		if g[i].cost >= bound {
+			break
+		}
+		if g[i].any&set != 0 {
+			return g[i].cost
+		}
+	}
+	return bound
+}
+
+// firstRule returns the cost of the first rule option of g (sorted by
+// cost) that a state with the given sets allows, or bound if none is
+// cheaper than bound.
+func firstRule(g []hopt, next, below uint32, bound float32) float32 {
+	for i := range g {
+		if g[i].cost >= bound {
+			break
+		}
+		if g[i].needNext&^next == 0 && g[i].needBelow&^below == 0 {
+			return g[i].cost
+		}
+	}
+	return bound
+}
+
+// classBits returns the classes (belowBit) of the bytes of s.
+func classBits(s string) uint32 {
+	var m uint32
+	for i := 0; i < len(s); i++ {
+		m |= belowBit(s[i])
+	}
+	return m
+}
+
+// groupByCost turns per-class costs into options sorted by cost, the
+// classes of equal cost in one option.
+func groupByCost(dst []hopt, byClass *[29]float32) []hopt {
+	dst = dst[:0]
+	for i, v := range byClass {
+		if v >= inf {
+			continue
+		}
+		k := 0
+		for k < len(dst) && dst[k].cost != v {
+			k++
+		}
+		if k == len(dst) {
+			dst = append(dst, hopt{cost: v})
+		}
+		dst[k].any |= 1 << i
+	}
+	sortByCost(dst)
+	return dst
+}
+
+// sortByCost sorts g by cost, stably; an insertion sort, fast on the
+// short or nearly sorted lists it is given.
+func sortByCost(g []hopt) {
+	for i := 1; i < len(g); i++ {
+		for j := i; j > 0 && g[j].cost < g[j-1].cost; j-- {
+			g[j], g[j-1] = g[j-1], g[j]
+		}
+	}
+}
+
+// subGroups returns the substitutions of typed byte t by an intended
+// byte, grouped by cost (see groupByCost); it caches them per channel.
+func (s *search) subGroups(t byte) []hopt {
+	if g := s.subG[t]; g != nil {
+		return g
+	}
+	var byClass [29]float32
+	for i := range byClass {
+		byClass[i] = inf
+	}
+	for c := 0; c < 256; c++ {
+		if c != int(t) {
+			i := bitIndex(belowBit(byte(c)))
+			byClass[i] = min(byClass[i], s.ch.sub[t][c])
+		}
+	}
+	s.subG[t] = groupByCost(make([]hopt, 0, 8), &byClass)
+	return s.subG[t]
+}
+
+// prepareBelow fills the typed-word tables of the letters-below bound:
+// the typed positions of each byte class; for each typed position, the
+// rules whose typed side covers it, for missCost (ruleMiss, by share); and
+// for each typed position and byte class, the cheapest first step that
+// needs an edge letter of that class, for stepCost (stepCls: a
+// substitution, a left-out letter, or a rule starting with it whose typed
+// side starts there or is empty). A rule of cost c with a typed side of l
+// bytes is charged c/l per byte, so that the shares of the bytes one rule
+// covers never add up to more than the rule. Cost: O(typed length × (29 +
+// rules)); substitution and deletion groups are cached per channel.
+func (s *search) prepareBelow() {
+	ch, n := s.ch, s.n
+	if s.subGCh != ch {
+		s.subGCh = ch
+		clear(s.subG[:])
+		var byClass [29]float32
+		for i := range byClass {
+			byClass[i] = inf
+		}
+		for c, v := range ch.del {
+			i := bitIndex(belowBit(byte(c)))
+			byClass[i] = min(byClass[i], v, ch.slipDel)
+		}
+		s.delG = groupByCost(s.delG, &byClass)
+	}
+	s.tbits = 0
+	clear(s.posBit[:])
+	for len(s.ruleMiss) < n {
+		s.ruleMiss = append(s.ruleMiss, nil)
+	}
+	for k, tk := range s.t {
+		b := belowBit(tk)
+		s.tbits |= b
+		s.posBit[bitIndex(b)] |= 1 << k
+		s.subGroups(tk)
+		s.ruleMiss[k] = s.ruleMiss[k][:0]
+	}
+	// stepCls[k][b]: the cheapest first step at k that needs an edge
+	// letter of class b: a substitution, a deletion, or a rule starting
+	// with it.
+	s.stepCls = s.stepCls[:0]
+	var empty [29]float32
+	for i := range empty {
+		empty[i] = inf
+	}
+	for k := 0; k < n; k++ {
+		cls := empty
+		for _, g := range s.subG[s.t[k]] {
+			for a := g.any; a != 0; a &= a - 1 {
+				b := bitIndex(a)
+				cls[b] = min(cls[b], g.cost)
+			}
+		}
+		for _, g := range s.delG {
+			for a := g.any; a != 0; a &= a - 1 {
+				b := bitIndex(a)
+				cls[b] = min(cls[b], g.cost)
+			}
+		}
+		s.stepCls = append(s.stepCls, cls)
+	}
+	for i := range s.rules {
+		r := &s.rules[i]
+		o := hopt{cost: r.cost, needNext: belowBit(r.alpha[0]), needBelow: classBits(r.alpha)}
+		b := bitIndex(o.needNext)
+		if r.lb == 0 {
+			for k := 0; k < n; k++ {
+				s.stepCls[k][b] = min(s.stepCls[k][b], r.cost)
+			}
+			continue
+		}
+		o.cost = r.cost / float32(r.lb)
+		// ruleMiss is read only for a typed byte that is not below the
+		// state at all: a rule that needs it there cannot apply.
+		for ends := r.ends; ends != 0; ends &= ends - 1 {
+			e := bitIndex64(ends)
+			k := e - r.lb
+			s.stepCls[k][b] = min(s.stepCls[k][b], o.cost)
+			for ; k < e; k++ {
+				if o.needBelow&belowBit(s.t[k]) == 0 {
+					s.ruleMiss[k] = append(s.ruleMiss[k], hopt{cost: o.cost, needBelow: o.needBelow})
+				}
+			}
+		}
+	}
+	// Shares do not follow the rules' cost order: sort (the lists are
+	// nearly sorted already).
+	for k := 0; k < n; k++ {
+		sortByCost(s.ruleMiss[k])
+	}
+	s.hsCache = grow(s.hsCache, (n+1)<<hsCacheBits)
+	clear(s.hsKeys[:])
+	s.hzero = grow(s.hzero, n+1)
+	clear(s.hzero)
+}
+
+// missCost returns the least that typed byte k costs when no intended
+// letter below the state matches it: typed extra, typed for a letter that
+// is below, or its share of a rule whose intended side is below.
+func (s *search) missCost(k int, below uint32) float32 {
+	v := firstAny(s.subG[s.t[k]], below, s.ins[k])
+	return firstRule(s.ruleMiss[k], 0, below, v)
+}
+
+// stepCost returns the least that the first step of aligning the typed
+// bytes from k on costs when no edge of the state matches t[k] (a letter
+// below does): t[k] typed extra or for an edge letter, an edge letter left
+// out (doubled or not; cbit is the class of the prefix's last byte), a
+// transposition, or a rule whose intended side starts with an edge letter
+// and whose typed side starts at k (its share) or is empty (its cost).
+func (s *search) stepCost(k int, next, cbit uint32) float32 {
+	v := s.ins[k]
+	if s.ch.delDbl < v && cbit&next != 0 {
+		v = s.ch.delDbl
+	}
+	if k+1 < s.n && s.ch.trans < v && belowBit(s.t[k+1])&next != 0 {
+		v = s.ch.trans
+	}
+	cls := &s.stepCls[k]
+	for ; next != 0; next &= next - 1 {
+		v = min(v, cls[bitIndex(next)])
+	}
+	return v
+}
+
+// childBound returns a lower bound on the channel cost of any word below
+// a child prefix, given its row (minimum m), its parent's row prev, its
+// last byte c, its partial rule matches parts and the byte sets of its
+// state: the cheapest of its row entries plus the cost of the typed bytes
+// left over that no letter below can match and, where the next typed byte
+// is not on one of the state's edges, the cheapest first step; a rule
+// under way, completed from the row it started at; and a transposition of
+// c with the next intended byte, from the parent's row; the last two plus
+// the cost of the unmatched bytes after them.
+func (s *search) childBound(row, prev []float32, m float32, c byte, parts []partial, sets belowSets) float32 {
+	w, n := s.w, s.n
+	next, below := sets.next(), sets.below()
+	notNext := s.tbits &^ next
+	if notNext == 0 {
+		// Every typed byte is on an edge: the row minimum, rules under
+		// way and transpositions, with nothing left over to charge.
+		lb := m
+		for _, p := range parts {
+			r := &s.rules[p.rule]
+			base := s.rows[int(p.from)*w : (int(p.from)+1)*w]
+			for ends := r.ends; ends != 0; ends &= ends - 1 {
+				e := bitIndex64(ends)
+				lb = min(lb, base[e-r.lb]+r.cost)
+			}
+		}
+		if prev != nil && s.ch.trans < inf {
+			for ps := s.pos[c] &^ 1; ps != 0; ps &= ps - 1 {
+				x := bitIndex64(ps)
+				lb = min(lb, prev[x-1]+s.ch.trans)
+			}
+		}
+		return lb
+	}
+	var missPos, stepPos uint64
+	for miss := s.tbits &^ below; miss != 0; miss &= miss - 1 {
+		missPos |= s.posBit[bitIndex(miss)]
+	}
+	for ; notNext != 0; notNext &= notNext - 1 {
+		stepPos |= s.posBit[bitIndex(notNext)]
+	}
+	stepPos &^= missPos
+	hs := s.hzero
+	if missPos != 0 {
+		hs = s.leftOver(missPos, below)
+	}
+	lb := row[n]
+	for _, p := range parts {
+		r := &s.rules[p.rule]
+		base := s.rows[int(p.from)*w : (int(p.from)+1)*w]
+		for ends := r.ends; ends != 0; ends &= ends - 1 {
+			e := bitIndex64(ends)
+			lb = min(lb, base[e-r.lb]+r.cost+hs[e])
+		}
+	}
+	if prev != nil && s.ch.trans < inf {
+		for ps := s.pos[c] &^ 1; ps != 0; ps &= ps - 1 {
+			x := bitIndex64(ps)
+			lb = min(lb, prev[x-1]+s.ch.trans+hs[x+1])
+		}
+	}
+	var cbit uint32
+	if s.ch.delDbl < inf {
+		cbit = belowBit(c)
+	}
+	for j := 0; j < n; j++ {
+		v := row[j] + hs[j]
+		if v >= lb {
+			continue
+		}
+		if stepPos&(1<<j) != 0 {
+			v += s.stepCost(j, next, cbit)
+		}
+		lb = min(lb, v)
+	}
+	return lb
+}
+
+// leftOver returns hs, hs[j] being the least cost of the typed bytes from
+// j on that are not below a state whose below set is below (missPos marks
+// them). States with the same below set share the answer through a small
+// cache, reset for each typed word.
+func (s *search) leftOver(missPos uint64, below uint32) []float32 {
+	n := s.n
+	slot := int((below * 0x9e3779b1) >> (32 - hsCacheBits))
+	hs := s.hsCache[slot*(n+1) : (slot+1)*(n+1)]
+	if s.hsKeys[slot] == below+1 {
+		return hs
+	}
+	s.hsKeys[slot] = below + 1
+	h := float32(0)
+	hs[n] = 0
+	for j := n - 1; j >= 0; j-- {
+		if missPos&(1<<j) != 0 {
+			h += s.missCost(j, below)
+		}
+		hs[j] = h
+	}
+	return hs
+}
+
+// hsCacheBits is the log2 of the number of slots of search.hsCache.
+const hsCacheBits = 8
+
+// canFinish reports whether the rest of a rule's intended side can
+// follow the child prefix named by setChild: its first
+// byte on one of the state's edges and all of it below the state.
+func (s *search) canFinish(rest string) bool {
+	sets := s.childSetsNow()
+	if belowBit(rest[0])&sets.next() == 0 {
+		return false
+	}
+	return classBits(rest[1:])&^sets.below() == 0
+}
+
+// setChild names the state of the child prefix that extend and
+// childSetsNow work for; its sets are looked up when first needed.
+func (s *search) setChild(state int) {
+	s.childState, s.childOK = state, false
+}
+
+// childSetsNow returns the sets of the state named by setChild (s.below
+// must not be nil).
+func (s *search) childSetsNow() belowSets {
+	if !s.childOK {
+		s.childSets, s.childOK = s.below.get(s.childState), true
+	}
+	return s.childSets
+}
+
+// bitIndex returns the index of the lowest set bit of x (x != 0).
+func bitIndex(x uint32) int { return bits.TrailingZeros32(x) }
+
+// bitIndex64 returns the index of the lowest set bit of x (x != 0).
+func bitIndex64(x uint64) int { return bits.TrailingZeros64(x) }

@@ -1,0 +1,102 @@
+package correct
+
+import (
+	"sort"
+	"strings"
+	"testing"
+)
+
+// TestBelowBit checks the byte classes of the letters-below sets: one bit
+// per letter a–z, the apostrophe and the hyphen, one shared by every other
+// byte (the layout documented in below.go).
+func TestBelowBit(t *testing.T) {
+	tests := []struct {
+		name string
+		c    byte
+		want uint32
+	}{
+		{"first letter", 'a', 1},
+		{"last letter", 'z', 1 << 25},
+		{"apostrophe", '\'', 1 << 26},
+		{"hyphen", '-', 1 << 27},
+		{"upper case is other", 'A', 1 << 28},
+		{"digit is other", '7', 1 << 28},
+		{"UTF-8 lead byte is other", 0xc3, 1 << 28},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			if got := belowBit(tt.c); got != tt.want {
+				t.Errorf("belowBit(%q) = %#x, want %#x", tt.c, got, tt.want)
+			}
+		})
+	}
+}
+
+// TestBelowTableMatchesWordList checks the table built from the lexicon
+// automaton against the word list it was built from (SUBTLEX-US words,
+// corpora/subtlex-us-word-counts.tsv): for every prefix of 3,000 words,
+// the bytes below the prefix's state are the bytes that follow the prefix
+// in some listed word, and the bytes of its edges are the bytes right
+// after the prefix. Both lexicons stand for the same list, so the table
+// (walked through the automaton's shared states) must agree with the
+// plain listing.
+func TestBelowTableMatchesWordList(t *testing.T) {
+	d := corpus(t)
+	for _, lexName := range []string{"trie", "flat"} {
+		t.Run(lexName, func(t *testing.T) {
+			var lex interface {
+				Lexicon
+				EdgeLister
+			}
+			var words []string
+			if lexName == "trie" {
+				l := newTrieLex(t, d.subtlexLex)
+				lex, words = l, l.words
+			} else {
+				l := newFlatLex(d.subtlexLex)
+				lex, words = l, l.words
+			}
+			tab := newBelowTable(lex, lex)
+			checked := 0
+			cache := map[string][2]uint32{}
+			for i := 0; i < len(words); i += len(words) / 3000 {
+				w := words[i]
+				st := lex.Start()
+				for k := 0; k <= len(w); k++ {
+					if k > 0 {
+						var ok bool
+						if st, _, ok = lex.Step(st, w[k-1]); !ok {
+							t.Fatalf("%q: no transition on %q", w, w[:k])
+						}
+					}
+					prefix := w[:k]
+					want, seen := cache[prefix]
+					if !seen {
+						// Words sharing the prefix are consecutive in the
+						// sorted list.
+						lo := sort.SearchStrings(words, prefix)
+						for j := lo; j < len(words) && strings.HasPrefix(words[j], prefix); j++ {
+							want[0] |= classBits(words[j][k:])
+							if len(words[j]) > k {
+								want[1] |= belowBit(words[j][k])
+							}
+						}
+						cache[prefix] = want
+					}
+					wantBelow, wantNext := want[0], want[1]
+					sets, ok := tab.lookup(st)
+					if !ok {
+						t.Fatalf("%q: prefix %q: state not in the table", w, prefix)
+					}
+					if sets.below() != wantBelow || sets.next() != wantNext {
+						t.Errorf("%q: prefix %q: below %#x next %#x, want %#x %#x", w, prefix, sets.below(), sets.next(), wantBelow, wantNext)
+					}
+					checked++
+				}
+			}
+			if checked < 10000 {
+				t.Errorf("checked %d prefixes; too few", checked)
+			}
+		})
+	}
+}
