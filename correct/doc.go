@@ -33,22 +33,25 @@
 // # Search and ranking
 //
 // The lexicon is walked depth first carrying one DP row per depth; a
-// branch is cut when its row minimum exceeds the cost budget and no
-// multi-letter rule in progress could bring it back. A lexicon that lists
-// a state's edges at once ([EdgeLister]) has every alphabet letter below
-// the state tried; otherwise, and for bytes outside the alphabet, only
-// bytes whose substitution, deletion or rule cost fits the budget. The walk
-// runs in widening passes (6, 9, then Options.MaxCost nats) and stops
-// after a pass whose best candidate scores above -16 nats;
-// a word the lexicon or Known knows gets only the first pass. The narrow
-// passes walk depth first; the widest walks best first: prefixes wait in
-// a bucket queue ordered by a lower bound on the cost of any word below
-// them (the row minimum, a rule in progress from the row it started at, a
-// transposition from the parent's row), so that when Options.MaxStates
-// ends the walk, the prefixes left out are the least promising rather
-// than the alphabetically last. Without a cap it finds exactly the words
-// of the depth-first walk; each of its states costs about a third more
-// (a row and a queue entry per prefix). Words
+// branch is cut when a lower bound on the cost of any word below it
+// exceeds the cost budget. Without more knowledge the bound is the row
+// minimum (and a multi-letter rule in progress that could bring it back);
+// a lexicon that lists a state's edges at once ([EdgeLister]) also gets a
+// table of the letters below each state, built in [New], and the bound
+// then charges every typed letter still ahead that no word below can match
+// (an A* heuristic that stays admissible: below.go). Such a lexicon has
+// every alphabet letter below the state tried; otherwise, and for bytes
+// outside the alphabet, only bytes whose substitution, deletion or rule
+// cost fits the budget. The walk runs in widening passes (6, 9, then
+// Options.MaxCost nats) and stops after a pass whose best candidate scores
+// above -16 nats; a word the lexicon or Known knows gets only the first
+// pass. The narrow passes walk depth first; the widest walks best first:
+// prefixes wait in a bucket queue ordered by the same bound, so that when
+// Options.MaxStates ends the walk, the prefixes left out are the least
+// promising rather than the alphabetically last. With the letters-below
+// table the cap counts prefixes examined (DP rows), without it states
+// entered. Without a cap either walk finds exactly the words the row
+// minimum alone would find. Words
 // found are ranked by Score = -Cost + LMWeight × ln P(word | context).
 // Missing spaces ("aboutthe" → "about the") are [KindSplit] candidates;
 // stray spaces ("ab out") are handled by [Corrector.Merge], which needs the
@@ -84,8 +87,8 @@
 //
 // A Corrector is immutable and safe for concurrent use; per-call scratch
 // comes from a sync.Pool. Correct allocates the candidates' Word strings.
-// Its cost grows with the number of lexicon states within budget: see
-// BenchmarkCorrect8 and the figures in the package's report.
+// Its cost grows with the number of prefixes whose bound stays within
+// budget: see BenchmarkCorrect8 and BENCHMARKS.md.
 //
 // # Caveats
 //
