@@ -122,15 +122,3 @@ func TestBelowBoundKeepsWords(t *testing.T) {
 		t.Errorf("checked %d words, %d hits, %d word by word; the comparison is too thin", checked, found, brute)
 	}
 }
-
-// cost is channel.distance reusing s, whose typed-word tables are kept
-// while typed stays the same.
-func (s *search) cost(ch *channel, typed, intended string) float32 {
-	s.reset(ch, nil, typed, inf, len(intended))
-	for d := 0; d < len(intended); d++ {
-		s.path[d] = intended[d]
-		s.advance(d, intended[d])
-		s.computeRowDepth(d + 1)
-	}
-	return s.rows[len(intended)*s.w+s.n]
-}

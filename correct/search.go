@@ -697,6 +697,12 @@ func (s *search) computeRow(rs, ps, gs, d int, c, pc byte) float32 {
 // meant, by the same row recurrence the search uses.
 func (ch *channel) distance(typed, intended string) float32 {
 	var s search
+	return s.cost(ch, typed, intended)
+}
+
+// cost is channel.distance reusing s, whose typed-word tables are kept
+// while typed stays the same.
+func (s *search) cost(ch *channel, typed, intended string) float32 {
 	s.reset(ch, nil, typed, inf, len(intended))
 	for d := 0; d < len(intended); d++ {
 		s.path[d] = intended[d]
