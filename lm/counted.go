@@ -340,6 +340,16 @@ func countsUsable(b *Backoff) bool {
 	return true
 }
 
+// groupCount returns the sum of the counts of b's highest-order records
+// [lo, hi): S(h) of their context.
+func groupCount(b *Backoff, lo, hi int) uint64 {
+	var sum uint64
+	for _, c := range b.TopCounts[lo:hi] {
+		sum += c
+	}
+	return sum
+}
+
 // countsAgree reports whether the stored probabilities of the records
 // [g, e) of b's highest order (one successor group, context entry j at
 // order N − 1, suffix entries sfx) are what the interpolation formula gives
@@ -349,14 +359,10 @@ func countsUsable(b *Backoff) bool {
 func countsAgree(b *Backoff, g, e, j int, sfx []int) bool {
 	N := b.Order()
 	top, mid := &b.Levels[N-1], &b.Levels[N-2]
-	var sum uint64
-	for i := g; i < e; i++ {
-		sum += b.TopCounts[i]
-	}
-	d := b.Discounts[N-1]
+	sum, d := float64(groupCount(b, g, e)), b.Discounts[N-1]
 	gamma := math.Exp(mid.Bow[j])
 	for i := g; i < e; i++ {
-		x := topLogProb(b.TopCounts[i], float64(sum), &d, gamma, math.Exp(mid.LogP[sfx[i-g]]))
+		x := topLogProb(b.TopCounts[i], sum, &d, gamma, math.Exp(mid.LogP[sfx[i-g]]))
 		if !(math.Abs(x-top.LogP[i]) <= 1e-9) {
 			return false
 		}
@@ -371,17 +377,13 @@ func countsAgree(b *Backoff, g, e, j int, sfx []int) bool {
 func countedValues(b *Backoff, lo, hi int, bow float64, book codebook, codes []uint64) []float64 {
 	N := b.Order()
 	top, mid := &b.Levels[N-1], &b.Levels[N-2]
-	var sum uint64
-	for i := lo; i < hi; i++ {
-		sum += b.TopCounts[i]
-	}
-	d := b.Discounts[N-1]
+	sum, d := float64(groupCount(b, lo, hi)), b.Discounts[N-1]
 	gamma := math.Exp(bow)
 	out := make([]float64, hi-lo)
 	slo, shi := keyPrefixRange(mid, top.Key(lo)[1:N-1])
 	for i := lo; i < hi; i++ {
 		s := findLast(mid, slo, shi, top.Key(i)[N-1]) // present: rankRecords checked
-		out[i-lo] = topLogProb(b.TopCounts[i], float64(sum), &d, gamma, math.Exp(book.value(codes[s])))
+		out[i-lo] = topLogProb(b.TopCounts[i], sum, &d, gamma, math.Exp(book.value(codes[s])))
 	}
 	return out
 }

@@ -360,19 +360,13 @@ func appendCompactCasing(out []byte, base int, entries []Entry, h *header) []byt
 	h.nonLower, h.excCount = uint32(m), uint32(e)
 	h.excIDOff = uint32(len(out) - base)
 	if m > 0 {
-		for _, r := range bitRank {
-			out = le.AppendUint32(out, r)
-		}
+		out = appendUint32s(out, bitRank)
 	}
 	if e > 0 {
-		for _, r := range rank {
-			out = le.AppendUint32(out, r)
-		}
+		out = appendUint32s(out, rank)
 	}
 	h.excEndOff = uint32(len(out) - base)
-	for _, o := range samples {
-		out = le.AppendUint32(out, o)
-	}
+	out = appendUint32s(out, samples)
 	h.excDataOff = uint32(len(out) - base)
 	h.excDataLen = uint32(len(records))
 	out = append(out, records...)

@@ -193,7 +193,6 @@ func appendCasing(out []byte, base int, entries []Entry, h *header) []byte {
 	if h.version >= SectionVersion {
 		return appendCompactCasing(out, base, entries, h)
 	}
-	le := binary.LittleEndian
 	h.caseOff = uint32(len(out) - base)
 	codes := make([]byte, (len(entries)+3)/4)
 	var excIDs, excEnds []uint32
@@ -211,13 +210,9 @@ func appendCasing(out []byte, base int, entries []Entry, h *header) []byte {
 	out = padTo(out, base)
 	h.excCount = uint32(len(excIDs))
 	h.excIDOff = uint32(len(out) - base)
-	for _, id := range excIDs {
-		out = le.AppendUint32(out, id)
-	}
+	out = appendUint32s(out, excIDs)
 	h.excEndOff = uint32(len(out) - base)
-	for _, end := range excEnds {
-		out = le.AppendUint32(out, end)
-	}
+	out = appendUint32s(out, excEnds)
 	h.excDataOff = uint32(len(out) - base)
 	h.excDataLen = uint32(len(excData))
 	out = append(out, excData...)

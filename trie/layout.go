@@ -180,6 +180,14 @@ func padTo(b []byte, base int) []byte {
 	return b
 }
 
+// appendUint32s appends xs to b, little-endian.
+func appendUint32s(b []byte, xs []uint32) []byte {
+	for _, x := range xs {
+		b = binary.LittleEndian.AppendUint32(b, x)
+	}
+	return b
+}
+
 // layout is where every part of a section goes, computed in uint64 so that
 // no recorded size can overflow it.
 type layout struct {
