@@ -71,6 +71,7 @@ type channel struct {
 	cheapDel []costOpt      // intended bytes by deletion cost
 	minEdit  float32        // cheapest non-match edit cost
 	maxAlpha int
+	affix    float32 // a stem typed with another ending (family.go); inf: off
 }
 
 // alphabet is the set of bytes tried as intended letters where no typed
@@ -146,6 +147,7 @@ func newChannel(kb *Keyboard, em *ErrorModel) *channel {
 	ch.insBase = float32(bo.Ins)
 	ch.insDbl = min(ln(slipRepeat), float32(bo.InsDouble))
 	ch.trans = min(ln(slipSwapRate), float32(bo.Trans))
+	ch.affix = float32(bo.Affix)
 	add := func(a, b string, cost float32) {
 		switch {
 		case len(a) == 1 && len(b) == 1:
@@ -231,7 +233,7 @@ func unitChannel(transpose bool) *channel {
 		ch.sub[t][t] = inf
 		ch.del[t] = 1
 	}
-	ch.delDbl, ch.insBase, ch.insDbl, ch.trans = 1, 1, 1, inf
+	ch.delDbl, ch.insBase, ch.insDbl, ch.trans, ch.affix = 1, 1, 1, inf, inf
 	if transpose {
 		ch.trans = 1
 	}

@@ -53,7 +53,9 @@ type Candidate struct {
 	Kind Kind
 	// Cost is the channel cost -ln P(typed | candidate) in nats.
 	Cost float64
-	// Score is -Cost + LMWeight × ln P(candidate | context); higher is better.
+	// Score is -Cost + LMWeight × ln P(candidate | context), plus a bonus
+	// when an unknown typed word sounds like the candidate (rank.go);
+	// higher is better.
 	Score float64
 }
 
@@ -272,6 +274,8 @@ func (c *Corrector) Correct(typed string, context []uint32, max int, dst []Candi
 	rk := &sc.rk
 	rk.start(c, context, typedID, inLex, keepN, sc.top)
 	c.searchPasses(s, rk, lower, known, !c.depthFirst)
+	c.addFamily(rk, lower) // stems typed with another ending (family.go)
+	rk.addSound(lower)     // the sound feature (rank.go)
 	sc.top = rk.top
 	s.rk, rk.c, rk.context = nil, nil, nil
 	// Missing spaces: two words typed as one.

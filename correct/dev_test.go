@@ -77,19 +77,21 @@ const (
 	wantTop3 = 97.0
 	// cvFloorTop1 and cvFloorTop3 are the cross-validated floors. Rules
 	// seen in only one fold cannot help the held-out fold, so CV is below
-	// train-on-all; the floors sit under the measured 5-fold figures (see
-	// the report in doc.go) by about one standard error of a 430-word fold
-	// (±1.3 %), and above the ~83 % / ~95 % of the classic two-edit,
-	// frequency-ranked corrector measured on this list (project brief).
-	cvFloorTop1 = 86.0
-	cvFloorTop3 = 94.5
+	// train-on-all. The floors are the 5-fold figures measured before the
+	// word-family and sound features (92.68 % and 96.55 %, rounded down;
+	// with them 93.28 % and 97.01 %, see BENCHMARKS.md), so that a change
+	// that loses their gain fails; both are above the ~83 % / ~95 % of the
+	// classic two-edit, frequency-ranked corrector measured on this list
+	// (project brief).
+	cvFloorTop1 = 92.5
+	cvFloorTop3 = 96.5
 )
 
 func TestDevAccuracy(t *testing.T) {
 	pairs := devPairs(t)
 	c, _, _ := devCorrector(t, Options{})
 	s := scoreDev(c, pairs, nil)
-	t.Logf("train-on-all: n=%d top1=%.1f%% top3=%.1f%% auto-applied %d (%.1f%% right) %v/word",
+	t.Logf("train-on-all: n=%d top1=%.2f%% top3=%.2f%% auto-applied %d (%.1f%% right) %v/word",
 		s.n, s.pct(s.top1), s.pct(s.top3), s.applied, 100*float64(s.appliedRight)/float64(max(s.applied, 1)), s.elapsed/time.Duration(s.n))
 	if s.pct(s.top1) < wantTop1 || s.pct(s.top3) < wantTop3 {
 		t.Errorf("train-on-all top1 %.1f%% top3 %.1f%%, want ≥ %v%% and ≥ %v%%", s.pct(s.top1), s.pct(s.top3), wantTop1, wantTop3)
@@ -116,14 +118,14 @@ func TestDevAccuracy(t *testing.T) {
 		em := TrainErrorModel(train, TrainOptions{})
 		cf, _, _ := devCorrector(t, Options{ErrorModel: em})
 		fs := scoreDev(cf, test, nil)
-		t.Logf("fold %d: top1=%.1f%% top3=%.1f%%", f, fs.pct(fs.top1), fs.pct(fs.top3))
+		t.Logf("fold %d: top1=%.2f%% top3=%.2f%%", f, fs.pct(fs.top1), fs.pct(fs.top3))
 		cv.n += fs.n
 		cv.top1 += fs.top1
 		cv.top3 += fs.top3
 		cv.applied += fs.applied
 		cv.appliedRight += fs.appliedRight
 	}
-	t.Logf("%d-fold CV: top1=%.1f%% top3=%.1f%% auto-applied %d (%.1f%% right)", k, cv.pct(cv.top1), cv.pct(cv.top3), cv.applied, 100*float64(cv.appliedRight)/float64(max(cv.applied, 1)))
+	t.Logf("%d-fold CV: top1=%.2f%% top3=%.2f%% auto-applied %d (%.1f%% right)", k, cv.pct(cv.top1), cv.pct(cv.top3), cv.applied, 100*float64(cv.appliedRight)/float64(max(cv.applied, 1)))
 	if cv.pct(cv.top1) < cvFloorTop1 || cv.pct(cv.top3) < cvFloorTop3 {
 		t.Errorf("CV top1 %.1f%% top3 %.1f%%, want ≥ %v%% and ≥ %v%%", cv.pct(cv.top1), cv.pct(cv.top3), cvFloorTop1, cvFloorTop3)
 	}

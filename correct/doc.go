@@ -26,6 +26,16 @@
 //     costs 2.26 nats more: writers rarely get the first letter wrong
 //     (see leadCost in channel.go).
 //
+// Two whole-word features stand beside the letter edits, for typed words
+// the lexicon does not know. Word families: a stem typed with another
+// ending ("examinated" for examined, "oftenly" for often) is usually
+// beyond the search budget, so the lexicon words sharing a long prefix
+// with the typed word are offered at a learned per-word cost plus a cost
+// per edit between the endings (family.go). Sound: candidates that sound
+// like the typed word (the same code under rules after Philips's 1990
+// Metaphone, phonetic.go) gain a small bonus, a pronunciation feature in
+// the manner of Toutanova and Moore (2002) (rank.go).
+//
 // A multi-letter rule counts as one step of the search. With unit costs
 // the recurrence is plain optimal-string-alignment distance (tested against
 // github.com/agnivade/levenshtein and vellum's Levenshtein automaton).

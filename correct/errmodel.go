@@ -24,7 +24,8 @@ type Rule struct {
 }
 
 // Backoff holds the costs (nats) of single-letter edits that no rule covers,
-// by class. They are estimated from the same training pairs as the rules.
+// by class, and of one whole-word error (Affix). They are estimated from
+// the same training pairs as the rules.
 type Backoff struct {
 	// SubVowel is the cost of one vowel typed for another.
 	SubVowel float64
@@ -40,6 +41,11 @@ type Backoff struct {
 	InsDouble float64
 	// Trans is the cost of swapping two adjacent letters.
 	Trans float64
+	// Affix is the cost of typing a word's stem with another ending, two
+	// or more plain edits from the intended one ("oftenly" for often), per
+	// word; the corrector adds a cost per edit between the two endings
+	// (see addFamily in family.go).
+	Affix float64
 }
 
 // ErrorModel is the spelling-error half of the channel: rules α→β with
@@ -76,15 +82,15 @@ const maxRuleLen = 8
 const maxRules = 1 << 16
 
 // backoffNames lists the backoff lines of the table format, in order.
-var backoffNames = [...]string{"sub-vowel", "sub", "del", "del-double", "ins", "ins-double", "trans"}
+var backoffNames = [...]string{"sub-vowel", "sub", "del", "del-double", "ins", "ins-double", "trans", "affix"}
 
 func (b *Backoff) field(i int) *float64 {
-	return [...]*float64{&b.SubVowel, &b.Sub, &b.Del, &b.DelDouble, &b.Ins, &b.InsDouble, &b.Trans}[i]
+	return [...]*float64{&b.SubVowel, &b.Sub, &b.Del, &b.DelDouble, &b.Ins, &b.InsDouble, &b.Trans, &b.Affix}[i]
 }
 
 // ParseErrorModel reads an error-model table: UTF-8 text, '#' comments,
-// "@NAME<TAB>COST" lines for the seven backoff costs (sub-vowel, sub, del,
-// del-double, ins, ins-double, trans; all required) and
+// "@NAME<TAB>COST" lines for the eight backoff costs (sub-vowel, sub, del,
+// del-double, ins, ins-double, trans, affix; all required) and
 // "INTENDED<TAB>TYPED<TAB>COST" rule lines, where an empty side is written "∅".
 // It returns an error wrapping ErrErrorModel on malformed input.
 func ParseErrorModel(r io.Reader) (*ErrorModel, error) {

@@ -114,12 +114,14 @@ func (s segment) match() bool { return s.a == s.b }
 // the number of times α occurs in the intended words. Pairs whose intended
 // word holds a space are skipped; of several intended words the closest is
 // used. Rules that are no cheaper than a shorter rule they contain are
-// dropped. Training is deterministic. Cost: O(total bytes × Window²).
+// dropped. The affix cost is -ln((n+1)/(N+2)) for n pairs of N whose
+// typed word is the intended word's stem with another ending (see
+// isAffixError). Training is deterministic. Cost: O(total bytes × Window²).
 func TrainErrorModel(pairs []Pair, opts TrainOptions) *ErrorModel {
 	opts.defaults()
 	ruleCount := map[[2]string]int{}
 	var words []string
-	var nSubV, nSub, nDel, nDelDbl, nIns, nInsDbl, nTrans float64
+	var nSubV, nSub, nDel, nDelDbl, nIns, nInsDbl, nTrans, nAffix, nPairs float64
 	for _, p := range pairs {
 		typed := strings.ToLower(p.Typed)
 		best, bestD := "", math.MaxInt
@@ -134,6 +136,10 @@ func TrainErrorModel(pairs []Pair, opts TrainOptions) *ErrorModel {
 		}
 		if best == "" {
 			continue
+		}
+		nPairs++
+		if isAffixError(typed, best) {
+			nAffix++
 		}
 		words = append(words, best)
 		segs := align(best, typed)
@@ -218,6 +224,7 @@ func TrainErrorModel(pairs []Pair, opts TrainOptions) *ErrorModel {
 		Ins:       lp(nIns, nChars*26),
 		InsDouble: lp(nInsDbl, nChars),
 		Trans:     lp(nTrans, nChars),
+		Affix:     lp(nAffix, nPairs),
 	}
 	if opts.Discount == 0 {
 		opts.Discount = discount(ruleCount)
@@ -238,6 +245,23 @@ func TrainErrorModel(pairs []Pair, opts TrainOptions) *ErrorModel {
 	}
 	m.sortRules()
 	return m
+}
+
+// isAffixError reports whether typed is intended's stem with another
+// ending: they share a prefix of at least familyMinStem bytes and half the
+// typed word, their endings after it are at most familyMaxTail letters
+// a–z (an apostrophe or hyphen marks a clitic or compound), and
+// the endings are two or more plain edits apart (one edit is the letter
+// model's).
+func isAffixError(typed, intended string) bool {
+	k := 0
+	for k < len(typed) && k < len(intended) && typed[k] == intended[k] {
+		k++
+	}
+	if k < familyMinStem || 2*k < len(typed) || len(typed)-k > familyMaxTail || len(intended)-k > familyMaxTail {
+		return false
+	}
+	return lettersOnly(typed[k:]) && lettersOnly(intended[k:]) && tailDistance(typed[k:], intended[k:]) >= 2
 }
 
 // coveredByShorter reports whether stripping shared context from a rule
