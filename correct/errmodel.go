@@ -88,9 +88,18 @@ func (b *Backoff) field(i int) *float64 {
 	return [...]*float64{&b.SubVowel, &b.Sub, &b.Del, &b.DelDouble, &b.Ins, &b.InsDouble, &b.Trans, &b.Affix}[i]
 }
 
+// DefaultAffixCost is Backoff.Affix for a table without an "@affix" line
+// (tables written before it existed): the value trained on the development
+// misspellings list, rounded.
+const DefaultAffixCost = 3.2
+
+// affixBit is the "@affix" line's bit in ParseErrorModel's seen set.
+const affixBit = 1 << 7
+
 // ParseErrorModel reads an error-model table: UTF-8 text, '#' comments,
 // "@NAME<TAB>COST" lines for the eight backoff costs (sub-vowel, sub, del,
-// del-double, ins, ins-double, trans, affix; all required) and
+// del-double, ins, ins-double, trans, all required, and affix, which
+// defaults to DefaultAffixCost) and
 // "INTENDED<TAB>TYPED<TAB>COST" rule lines, where an empty side is written "∅".
 // It returns an error wrapping ErrErrorModel on malformed input.
 func ParseErrorModel(r io.Reader) (*ErrorModel, error) {
@@ -139,6 +148,10 @@ func ParseErrorModel(r io.Reader) (*ErrorModel, error) {
 	}
 	if err := sc.Err(); err != nil {
 		return nil, fmt.Errorf("%w: line %d: %v", ErrErrorModel, line+1, err)
+	}
+	if seen&affixBit == 0 {
+		m.backoff.Affix = DefaultAffixCost // tables written before the affix line
+		seen |= affixBit
 	}
 	if seen != 1<<len(backoffNames)-1 {
 		return nil, fmt.Errorf("%w: missing backoff lines", ErrErrorModel)

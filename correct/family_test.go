@@ -111,7 +111,8 @@ func TestParseErrorModelAffix(t *testing.T) {
 		want        float64
 	}{
 		{"affix given", base + "@affix\t4.5\n", false, 4.5},
-		{"affix missing", base, true, 0},
+		{"affix missing: a table older than the line", base, false, DefaultAffixCost},
+		{"a classic line missing", base[len("@sub-vowel\t1\n"):] + "@affix\t4.5\n", true, 0},
 		{"affix negative", base + "@affix\t-1\n", true, 0},
 	}
 	for _, tc := range tests {
