@@ -1,14 +1,15 @@
 //go:build unix
 
-package lm
+package cputime
 
 import (
 	"syscall"
 	"time"
 )
 
-// cpuTime returns the user and system CPU time the process has used so far.
-func cpuTime() time.Duration {
+// Process returns the user and system CPU time the process has used so
+// far, or 0 if it cannot be read.
+func Process() time.Duration {
 	var ru syscall.Rusage
 	if err := syscall.Getrusage(syscall.RUSAGE_SELF, &ru); err != nil {
 		return 0
