@@ -14,6 +14,7 @@ type Model struct {
 	tree         []vec    // unigram maximum tree, finest level first
 	uniTop       []uint32 // the most probable words, best first (computed at load)
 	topMin       int      // a group longer than this has a top list
+	version      int      // the section layout version (FORMAT.md)
 }
 
 type level struct {
@@ -51,6 +52,10 @@ func (m *Model) Order() int { return m.order }
 
 // VocabSize returns the number of word IDs, special tokens included.
 func (m *Model) VocabSize() int { return m.vocab }
+
+// LayoutVersion returns the version of the n-gram section layout the model
+// was loaded from (1 to 6, lm/FORMAT.md).
+func (m *Model) LayoutVersion() int { return m.version }
 
 // QuantBits returns the code width of the stored values (0 = lossless).
 func (m *Model) QuantBits() int { return m.qbits }

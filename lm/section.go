@@ -461,7 +461,7 @@ func LoadSection(b []byte) (*Model, error) {
 		w := format.Uint64s(b[off : off+words*8])
 		arrays[t] = newVec(w, int(n), width)
 	}
-	m := &Model{order: N, vocab: V, qbits: q, bos: h[5], eos: h[6], unk: h[7], topMin: TopListLen}
+	m := &Model{order: N, vocab: V, qbits: q, bos: h[5], eos: h[6], unk: h[7], topMin: TopListLen, version: int(version)}
 	if version >= 3 {
 		m.topMin = int(h[9])
 	}

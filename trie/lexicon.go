@@ -13,6 +13,7 @@ import (
 // read and written with atomic operations. No method allocates unless its
 // doc says so.
 type Lexicon struct {
+	version    int // the section layout version (FORMAT.md)
 	n          uint32
 	maxWordLen int
 	root       int
@@ -59,6 +60,10 @@ func (l *Lexicon) ID(word string) (uint32, bool) {
 	}
 	return uint32(sum + out), true
 }
+
+// LayoutVersion returns the version of the lexicon section layout the
+// lexicon was loaded from (1 to 3, trie/FORMAT.md).
+func (l *Lexicon) LayoutVersion() int { return l.version }
 
 // AppendWord appends the folded word with the given id to dst and returns
 // the extended slice; it returns dst unchanged when id is not below Len.

@@ -59,6 +59,7 @@ func LoadSectionWith(b []byte, opts LoadOptions) (*Lexicon, error) {
 		return nil, err
 	}
 	l := &Lexicon{
+		version:    int(h.version),
 		n:          h.count,
 		maxWordLen: int(h.maxWordLen),
 		codes:      *codes,

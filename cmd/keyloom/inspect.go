@@ -33,6 +33,7 @@ type inspectReport struct {
 	Corpus        string           `json:"corpus,omitempty"`
 	Sources       []string         `json:"sources,omitempty"`
 	Lexicon       map[string]int   `json:"lexicon_bytes"`
+	Layouts       map[string]int   `json:"layouts"` // section layout versions: lexicon, ngrams
 	Verified      *bool            `json:"verified,omitempty"`
 }
 
@@ -81,6 +82,7 @@ func runInspect(ctx context.Context, e *env, args []string) error {
 	}
 	fst, table, casing := m.Lex.SizeBreakdown()
 	rep.Lexicon = map[string]int{"fst": fst, "word_table": table, "casing": casing}
+	rep.Layouts = map[string]int{"lexicon": m.Lex.LayoutVersion(), "ngrams": m.LM.LayoutVersion()}
 	ok := true
 	for _, s := range m.File.Sections() {
 		is := inspectSection{Kind: s.Kind.String(), Offset: s.Offset, Bytes: s.Length, CRC: fmt.Sprintf("%08x", s.CRC)}
@@ -117,7 +119,7 @@ func runInspect(ctx context.Context, e *env, args []string) error {
 		for _, s := range rep.Sections {
 			fmt.Fprintf(w, "%-10s %10d %10d  %s %s\n", s.Kind, s.Offset, s.Bytes, s.CRC, s.Verified)
 		}
-		fmt.Fprintf(w, "\norder %d, %d words, quantization %s\n", rep.Order, rep.Words, qbitsText(rep.QuantBits))
+		fmt.Fprintf(w, "\norder %d, %d words, quantization %s; layouts: lexicon %d, n-grams %d\n", rep.Order, rep.Words, qbitsText(rep.QuantBits), rep.Layouts["lexicon"], rep.Layouts["ngrams"])
 		for i, n := range rep.NGrams {
 			line := fmt.Sprintf("  %d-grams %10d", i+1, n)
 			if i < len(rep.Discounts) {

@@ -75,10 +75,15 @@ func TestBuildEvalMatchesReference(t *testing.T) {
 	if err := json.Unmarshal([]byte(out), &rep); err != nil {
 		t.Fatal(err)
 	}
-	for _, k := range []string{"bytes", "ngrams", "bytes_per_ngram", "sections"} {
+	for _, k := range []string{"bytes", "ngrams", "bytes_per_ngram", "sections", "layouts"} {
 		if _, ok := rep[k]; !ok {
 			t.Errorf("inspect --json lacks %q", k)
 		}
+	}
+	// A model estimated from counts is written in the newest layouts
+	// (lm/FORMAT.md version 6, trie/FORMAT.md version 3).
+	if l, _ := rep["layouts"].(map[string]any); l["lexicon"] != 3.0 || l["ngrams"] != 6.0 {
+		t.Errorf("inspect layouts = %v, want lexicon 3 and ngrams 6", rep["layouts"])
 	}
 	// Bigram and trigram counts equal the reference's distinct n-grams.
 	ng, refNG := rep["ngrams"].([]any), ref["ngrams"].([]any)
