@@ -136,16 +136,7 @@ func (g *efGroup) selectOne(k uint64) (uint64, bool) {
 		p = bitsAt(g.w, g.sbase+(j-1)*uint64(g.sw), g.sw) // set bit number j·efSample1
 		k &= efSample1 - 1
 	}
-	for p < g.hlen {
-		x := g.high64(p)
-		if c := uint64(bits.OnesCount64(x)); k >= c {
-			k -= c
-			p += 64
-			continue
-		}
-		return p + uint64(select64(x, uint(k))), true
-	}
-	return 0, false
+	return g.scanSelect(p, k, 0)
 }
 
 // selectZero returns the position of clear bit number k (from 0) of the
@@ -159,8 +150,15 @@ func (g *efGroup) selectZero(k uint64) (uint64, bool) {
 		p = bitsAt(g.w, g.sbase+(uint64(g.n1)+j-1)*uint64(g.sw), g.sw) // clear bit number j·efSample0
 		k &= efSample0 - 1
 	}
+	return g.scanSelect(p, k, ^uint64(0))
+}
+
+// scanSelect returns the position of bit number k (from 0), counted from
+// position p, among the high part's set bits (flip = 0) or clear bits
+// (flip = all ones), or false when there is none.
+func (g *efGroup) scanSelect(p, k, flip uint64) (uint64, bool) {
 	for p < g.hlen {
-		x := ^bitsAt(g.w, g.hbase+p, 64)
+		x := bitsAt(g.w, g.hbase+p, 64) ^ flip
 		if rest := g.hlen - p; rest < 64 {
 			x &= 1<<rest - 1
 		}
