@@ -94,11 +94,17 @@ func (s *search) expand(i int32) int {
 	parts := s.act[nd.actLo:nd.actHi]
 	var edges []Edge
 	var set [4]uint64
+	var rs *[4]uint64
 	haveSet := false
 	if s.el != nil {
 		edges = s.el.AppendEdges(s.edges[0][:0], nd.state)
 		if len(edges) >= setMinEdges {
+			if s.below != nil {
+				rs = &s.rsBest
+				s.rsOut = rs
+			}
 			set, haveSet = s.allowed(row, prev, m, nd.c, parts), true
+			s.rsOut = nil
 		}
 	} else {
 		set, haveSet = s.allowed(row, prev, m, nd.c, parts), true
@@ -130,10 +136,10 @@ func (s *search) expand(i int32) int {
 		}
 		j := len(s.nodes)
 		s.growSlots(j + 1)
-		s.pnext = pn
+		s.pnext, s.rnext = pn, rs
 		s.setChild(e.Next)
 		base := s.extend(int(nd.actLo), int(nd.actHi), m, i, c)
-		s.pnext = nil
+		s.pnext, s.rnext = nil, nil
 		g := int(nd.parent)
 		cm := s.computeRow(j, int(i), g, d, c, nd.c)
 		if cm > s.budget && len(s.act) == base {

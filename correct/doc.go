@@ -52,8 +52,10 @@
 // (an A* heuristic that stays admissible: below.go). Such a lexicon has
 // every alphabet letter below the state tried; otherwise, and for bytes
 // outside the alphabet, only bytes whose substitution, deletion or rule
-// cost fits the budget. The walk runs in widening passes (6, 9, then
-// Options.MaxCost nats) and stops after a pass whose best candidate scores
+// cost fits the budget; with the table, a rule's first intended letter
+// is tried only where the row entry the rule would start from plus its
+// cost fits the budget (rulestart.go). The walk runs in widening passes
+// (6, 9, then Options.MaxCost nats) and stops after a pass whose best candidate scores
 // above -16 nats; a word the lexicon or Known knows gets only the first
 // pass. The narrow passes walk depth first; the widest walks best first:
 // prefixes wait in a bucket queue ordered by the same bound, so that when

@@ -74,13 +74,16 @@ type search struct {
 	extra     []float32
 	path      []byte
 	ins       []float32
-	subC      []float32   // subC[c*n+j]: intended c typed as t[j]; 0 when equal
-	pos       [256]uint64 // bit j: t[j] is the byte
-	rules     []appRule   // sorted by cost
-	order     *ruleOrder  // the channel's rules by cost (built if nil or for another channel)
-	ruleSet   []uint64    // while collecting rules: bit r for rank r (else zero)
-	ruleEnds  []uint64    // while collecting rules: their ends, by rank
-	ruleMask  [][4]uint64 // ruleMask[i]: first intended bytes of rules[:i+1]
+	subC      []float32     // subC[c*n+j]: intended c typed as t[j]; 0 when equal
+	pos       [256]uint64   // bit j: t[j] is the byte
+	rules     []appRule     // sorted by cost
+	order     *ruleOrder    // the channel's rules by cost (built if nil or for another channel)
+	ruleSet   []uint64      // while collecting rules: bit r for rank r (else zero)
+	ruleEnds  []uint64      // while collecting rules: their ends, by rank
+	ruleMask  [][4]uint64   // ruleMask[i]: first intended bytes of rules[:i+1]
+	startOff  []int32       // startTab[startOff[x]:startOff[x+1]]: typed position x (rulestart.go)
+	startTab  []startStep   // first bytes of the rules starting at each typed position, by cost
+	startBy   [][]startStep // prepareStarts' per-position lists
 	first     [256][]int32
 	usedFirst []byte
 	act       []partial // partial rule matches, stacked by depth
@@ -120,7 +123,14 @@ type search struct {
 	childSets  belowSets                // its sets, once childOK
 	childOK    bool
 	pnDepth    [][4]uint64 // partialNext sets of the depth-first walk, by depth
-	pnBest     [4]uint64   // partialNext set of the best-first walk
+	// With the letters-below table, allowed also stores the first bytes
+	// of the rules that can start within budget (rulestart.go) in *rsOut
+	// when it is not nil; extend skips starting rules with a byte outside
+	// *rnext when that is not nil.
+	rsOut, rnext *[4]uint64
+	rsDepth      [][4]uint64 // rule-start sets of the depth-first walk, by depth
+	rsBest       [4]uint64   // rule-start set of the best-first walk
+	pnBest       [4]uint64   // partialNext set of the best-first walk
 }
 
 // plainByte marks the bytes the search tries as intended letters wherever
@@ -192,6 +202,9 @@ func (s *search) reset(ch *channel, lex Lexicon, typed string, budget float32, m
 	s.actStart = s.actStart[:s.maxDepth+1]
 	for len(s.pnDepth) < s.maxDepth+1 {
 		s.pnDepth = append(s.pnDepth, [4]uint64{})
+	}
+	for len(s.rsDepth) < s.maxDepth+1 {
+		s.rsDepth = append(s.rsDepth, [4]uint64{})
 	}
 	s.actStart[0], s.actEnd[0] = 0, 0
 	// Row zero: typed bytes before any intended one are extra.
@@ -277,6 +290,7 @@ func (s *search) prepare(ch *channel) {
 		}
 		s.first[c] = append(s.first[c], int32(i))
 	}
+	s.prepareStarts()
 	s.prepareBelow()
 }
 
@@ -369,11 +383,17 @@ func (s *search) visit(d int, state int, acc uint64) {
 	}
 	var edges []Edge
 	var set [4]uint64
+	var rs *[4]uint64
 	haveSet := false
 	if s.el != nil {
 		edges = s.el.AppendEdges(s.edges[d][:0], state)
 		if len(edges) >= setMinEdges {
+			if s.below != nil {
+				rs = &s.rsDepth[d]
+				s.rsOut = rs
+			}
 			set, haveSet = s.allowedDepth(d), true
+			s.rsOut = nil
 		}
 	} else {
 		set, haveSet = s.allowedDepth(d), true
@@ -405,10 +425,10 @@ func (s *search) visit(d int, state int, acc uint64) {
 			}
 		}
 		s.path[d] = c
-		s.pnext = pn
+		s.pnext, s.rnext = pn, rs
 		s.setChild(e.Next)
 		base := s.advance(d, c)
-		s.pnext = nil
+		s.pnext, s.rnext = nil, nil
 		m := s.computeRowDepth(d + 1)
 		keep := m <= budget || s.actEnd[d+1] > base
 		if keep && s.below != nil {
@@ -493,6 +513,18 @@ func (s *search) allowed(row, prev []float32, m float32, last byte, parts []part
 	for _, p := range parts {
 		add(p.next)
 	}
+	if s.below != nil {
+		// Each rule only where it can start within budget (rulestart.go).
+		var rs [4]uint64
+		s.addRuleStarts(row, &rs)
+		for i := range set {
+			set[i] |= rs[i]
+		}
+		if s.rsOut != nil {
+			*s.rsOut = rs
+		}
+		return set
+	}
 	// Rules are sorted by cost: the first k within budget contribute their
 	// first bytes, accumulated in ruleMask[k-1].
 	lo, hi := 0, len(s.rules)
@@ -550,6 +582,9 @@ func (s *search) extend(lo, hi int, m float32, from int32, c byte) int {
 	}
 	if s.pnext != nil && s.pnext[c>>6]&(1<<(c&63)) == 0 {
 		hi = lo // no partial match waits for c
+	}
+	if s.rnext != nil && s.rnext[c>>6]&(1<<(c&63)) == 0 {
+		first = nil // no rule starting with c fits the budget (rulestart.go)
 	}
 	for i := lo; i < hi; i++ {
 		p := s.act[i]
