@@ -104,7 +104,7 @@ func BenchmarkCorrect8(b *testing.B) {
 
 // benchCap is the cap of the -cap runs: the engine's default
 // (keyloom.DefaultCorrectionStates, which this package cannot import).
-const benchCap = 7000
+const benchCap = 25000
 
 // prevBenchCap is the engine's previous default, 15,000 states entered,
 // used by trie-cap-rowbound: the search before the letters-below bound
