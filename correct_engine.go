@@ -26,6 +26,10 @@ type Keyboard = correct.Keyboard
 // ParseLayout reads a keyboard layout file (format: correct/LAYOUT.md).
 var ParseLayout = correct.ParseLayout
 
+// ErrorModel is the corrector's spelling-error model (correct.ErrorModel):
+// the built-in one, or one trained with correct.TrainErrorModel.
+type ErrorModel = correct.ErrorModel
+
 // corrector returns the engine's corrector, building it on first use.
 func (e *Engine) corrector() (*correct.Corrector, error) {
 	e.corrOnce.Do(func() { e.corrErr = e.initCorrector() })
@@ -44,9 +48,10 @@ func (e *Engine) correctionLogProb(ctx []uint32, w uint32) float64 {
 
 func (e *Engine) initCorrector() error {
 	c, err := correct.New(lexEdges{e.model.Lex}, e.correctionLogProb, correct.Options{
-		Layout:    e.opts.Layout,
-		Keyboard:  e.opts.Keyboard,
-		MaxStates: max(e.opts.CorrectionStates, 0),
+		Layout:     e.opts.Layout,
+		Keyboard:   e.opts.Keyboard,
+		ErrorModel: e.opts.ErrorModel,
+		MaxStates:  max(e.opts.CorrectionStates, 0),
 		// Alternatives to a correctly spelled word would be noise: offer
 		// them only when fairly likely (common practice, no source).
 		KnownOfferConfidence: 0.3,

@@ -45,6 +45,11 @@ type Options struct {
 	Layout Layout
 	// Keyboard, if not nil, replaces Layout (see ParseLayout).
 	Keyboard *Keyboard
+	// ErrorModel, if not nil, replaces the corrector's built-in
+	// spelling-error model (trained on the development misspellings list;
+	// `keyloom eval --correct FILE --folds K` trains one per fold to
+	// measure misspellings the model has not seen).
+	ErrorModel *ErrorModel
 	// CorrectionStates caps the lexicon prefixes one correction may
 	// examine (one DP row each), bounding its worst case (about 0.2–0.4 µs
 	// per prefix on a phone-class core): default DefaultCorrectionStates;

@@ -61,12 +61,13 @@ func runEval(ctx context.Context, e *env, args []string) error {
 	layout := fs.String("layout", "qwerty", "keyboard for --noise and correction: qwerty, azerty, qwertz or a layout file")
 	seed := fs.Uint64("seed", 1, "random seed of --noise")
 	heldOut := fs.Bool("held-out", false, "with --noise: measure on a model built as the default one but without the demo files given as TEST (leave-one-file-out)")
+	folds := fs.Int("folds", 0, "with --correct: K-fold cross-validation, each fold corrected with a spelling-error model trained on the other folds (misspellings the model has not seen)")
 	pos, err := parse(fs, args)
 	if err != nil {
 		return err
 	}
 	if *correctList != "" {
-		return evalCorrect(ctx, e, *model, *user, *layout, *correctList, *asJSON)
+		return evalCorrect(ctx, e, *model, *user, *layout, *correctList, *folds, *asJSON)
 	}
 	if len(pos) == 0 {
 		return fmt.Errorf("%w: give at least one TEST file (- for standard input)", errUsage)

@@ -147,3 +147,48 @@ func TestEvalNoiseJSON(t *testing.T) {
 	}
 	t.Logf("%d words (%d with letters), %d corrupted (binomial %.0f), %d repaired, %d clean broken", r.Words, words, r.Corrupted, want, r.Repaired, r.Broken)
 }
+
+// TestEvalCorrectFolds runs eval --correct with and without
+// cross-validation on an invented list of misspelled Opticks words.
+func TestEvalCorrectFolds(t *testing.T) {
+	dir := t.TempDir()
+	model := buildOpticks(t, dir)
+	list := filepath.Join(dir, "list.tsv")
+	// Invented pairs (common slips and spelling errors of words in the text).
+	pairs := "lihgt\tlight\nrefraction\trefraction\nrefracion\trefraction\ncolours\tcolours\ncoulors\tcolours\nprisim\tprism\n" +
+		"reflexion\treflexion\nrefelxion\treflexion\nexperiement\texperiment\nobservd\tobserved\nglas\tglass\nrayes\trays\n"
+	if err := os.WriteFile(list, []byte(pairs), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	tests := []struct {
+		name  string
+		args  []string
+		code  int
+		folds float64
+	}{
+		{"no folds", nil, 0, 0},
+		{"three folds", []string{"--folds", "3"}, 0, 3},
+		{"one fold", []string{"--folds", "1"}, 2, 0},
+		{"more folds than pairs", []string{"--folds", "13"}, 2, 0},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			args := append([]string{"eval", "--json", "--model", model, "--correct", list}, tc.args...)
+			code, out, errs := runCmd(t, dir, args...)
+			if code != tc.code {
+				t.Fatalf("exit %d, want %d: %s", code, tc.code, errs)
+			}
+			if code != 0 {
+				return
+			}
+			var rep map[string]float64
+			if err := json.Unmarshal([]byte(out), &rep); err != nil {
+				t.Fatal(err)
+			}
+			// Every pair is corrected once; a top-1 hit is a top-3 hit.
+			if rep["n"] != 12 || rep["folds"] != tc.folds || rep["top1"] > rep["top3"] || rep["top3"] > 1 {
+				t.Errorf("report %v, want n 12, folds %v, top1 ≤ top3 ≤ 1", rep, tc.folds)
+			}
+		})
+	}
+}

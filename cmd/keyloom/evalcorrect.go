@@ -1,8 +1,6 @@
 package main
 
 import (
-	"bufio"
-	"bytes"
 	"context"
 	"fmt"
 	"io"
@@ -23,90 +21,140 @@ type correctReport struct {
 	AutoRecall    float64 `json:"auto_recall"`
 	Applied       int     `json:"applied"`
 	NoCorrection  int     `json:"no_correction"`
+	Folds         int     `json:"folds,omitempty"`
 }
 
-func openForCorrection(ctx context.Context, e *env, model, user, layout string) (*keyloom.Engine, error) {
+// correctTally counts what correction did with a list of pairs.
+type correctTally struct {
+	rep                      correctReport
+	hit1, hit3, appliedRight int
+}
+
+func openForCorrection(ctx context.Context, e *env, model, user, layout string, em *keyloom.ErrorModel) (*keyloom.Engine, error) {
 	opts := engineOptions()
 	if err := layoutOption(layout, &opts); err != nil {
 		return nil, err
 	}
+	opts.ErrorModel = em
 	return openUser(ctx, e, model, user, true, opts)
 }
 
 // evalCorrect measures correction on a list of misspelling<TAB>correction(s):
-// a hit when any listed correction matches case-insensitively.
-func evalCorrect(ctx context.Context, e *env, model, user, layout, path string, asJSON bool) error {
-	eng, err := openForCorrection(ctx, e, model, user, layout)
+// a hit when any listed correction matches case-insensitively. With folds
+// ≥ 2 the list is split into that many folds (pair i in fold i mod folds)
+// and each fold is corrected with an error model trained on the others.
+func evalCorrect(ctx context.Context, e *env, model, user, layout, path string, folds int, asJSON bool) error {
+	f, err := os.Open(path)
+	if err != nil {
+		return err
+	}
+	pairs, err := correct.ParsePairs(f)
+	f.Close()
+	if err != nil {
+		return fmt.Errorf("%s: %w", path, err)
+	}
+	if len(pairs) == 0 {
+		return fmt.Errorf("%s: no pairs", path)
+	}
+	if folds == 1 || folds < 0 || folds > len(pairs) {
+		return fmt.Errorf("%w: --folds %d: want 0 (no cross-validation) or 2 to %d", errUsage, folds, len(pairs))
+	}
+	var t correctTally
+	if folds == 0 {
+		if err := t.run(ctx, e, model, user, layout, nil, pairs); err != nil {
+			return err
+		}
+	}
+	for k := 0; k < folds && ctx.Err() == nil; k++ {
+		var train, test []correct.Pair
+		for i, p := range pairs {
+			if i%folds == k {
+				test = append(test, p)
+			} else {
+				train = append(train, p)
+			}
+		}
+		fmt.Fprintf(e.stderr, "fold %d of %d: training on %d pairs, correcting %d\n", k+1, folds, len(train), len(test))
+		if err := t.run(ctx, e, model, user, layout, correct.TrainErrorModel(train, correct.TrainOptions{}), test); err != nil {
+			return err
+		}
+	}
+	rep := t.report()
+	rep.Folds = folds
+	if asJSON {
+		return writeJSON(e.stdout, rep)
+	}
+	if folds > 0 {
+		fmt.Fprintf(e.stdout, "%d-fold cross-validation: each fold corrected with an error model trained on the others\n", folds)
+	}
+	fmt.Fprintf(e.stdout, "%d misspellings\ntop-1 %.2f%%, top-3 %.2f%%\nauto-apply: %d applied, precision %.2f%%, recall %.2f%%; no proposal for %d\n",
+		rep.N, 100*rep.Top1, 100*rep.Top3, rep.Applied, 100*rep.AutoPrecision, 100*rep.AutoRecall, rep.NoCorrection)
+	return nil
+}
+
+// run corrects pairs with the model (and the error model em, nil for the
+// built-in one) and adds to the tally.
+func (t *correctTally) run(ctx context.Context, e *env, model, user, layout string, em *keyloom.ErrorModel, pairs []correct.Pair) error {
+	eng, err := openForCorrection(ctx, e, model, user, layout, em)
 	if err != nil {
 		return err
 	}
 	defer eng.Close()
-	data, err := os.ReadFile(path)
-	if err != nil {
-		return err
-	}
-	var rep correctReport
-	var hit1, hit3, appliedRight int
-	sc := bufio.NewScanner(bytes.NewReader(data))
-	for sc.Scan() {
-		line := sc.Text()
-		if line == "" || strings.HasPrefix(line, "#") {
-			continue
-		}
-		typed, fixes, ok := strings.Cut(line, "\t")
-		if !ok {
-			return fmt.Errorf("%s: line %q: want misspelling<TAB>correction(s)", path, line)
-		}
-		want := map[string]bool{}
-		for _, f := range strings.Split(fixes, ",") {
-			want[strings.ToLower(strings.TrimSpace(f))] = true
-		}
+	for _, p := range pairs {
 		if ctx.Err() != nil {
 			break
 		}
-		rep.N++
-		c, err := eng.Correct(typed)
+		t.rep.N++
+		c, err := eng.Correct(p.Typed)
 		if err != nil {
 			return err
 		}
 		if c == nil {
-			rep.NoCorrection++
+			t.rep.NoCorrection++
 			continue
 		}
-		ranked := append([]string{c.Replacement}, c.Alternatives...)
-		for i, r := range ranked {
-			if want[strings.ToLower(r)] {
+		want := func(w string) bool {
+			for _, x := range p.Intended {
+				if strings.EqualFold(x, w) {
+					return true
+				}
+			}
+			return false
+		}
+		for i, r := range append([]string{c.Replacement}, c.Alternatives...) {
+			if want(r) {
 				if i == 0 {
-					hit1++
+					t.hit1++
 				}
 				if i < 3 {
-					hit3++
+					t.hit3++
 				}
 				break
 			}
 		}
 		if c.Apply {
-			rep.Applied++
-			if want[strings.ToLower(c.Replacement)] {
-				appliedRight++
+			t.rep.Applied++
+			if want(c.Replacement) {
+				t.appliedRight++
 			}
 		}
 	}
-	if rep.N == 0 {
-		return fmt.Errorf("%s: no pairs", path)
-	}
-	rep.Top1 = float64(hit1) / float64(rep.N)
-	rep.Top3 = float64(hit3) / float64(rep.N)
-	rep.AutoRecall = float64(appliedRight) / float64(rep.N)
-	if rep.Applied > 0 {
-		rep.AutoPrecision = float64(appliedRight) / float64(rep.Applied)
-	}
-	if asJSON {
-		return writeJSON(e.stdout, rep)
-	}
-	fmt.Fprintf(e.stdout, "%d misspellings\ntop-1 %.2f%%, top-3 %.2f%%\nauto-apply: %d applied, precision %.2f%%, recall %.2f%%; no proposal for %d\n",
-		rep.N, 100*rep.Top1, 100*rep.Top3, rep.Applied, 100*rep.AutoPrecision, 100*rep.AutoRecall, rep.NoCorrection)
 	return nil
+}
+
+// report returns the tally as shares of the pairs corrected.
+func (t *correctTally) report() correctReport {
+	rep := t.rep
+	if rep.N == 0 {
+		return rep
+	}
+	rep.Top1 = float64(t.hit1) / float64(rep.N)
+	rep.Top3 = float64(t.hit3) / float64(rep.N)
+	rep.AutoRecall = float64(t.appliedRight) / float64(rep.N)
+	if rep.Applied > 0 {
+		rep.AutoPrecision = float64(t.appliedRight) / float64(rep.Applied)
+	}
+	return rep
 }
 
 // evalNoise types the test text with key-geometry noise and correction on.
@@ -134,7 +182,7 @@ func evalNoise(ctx context.Context, e *env, model, user, layout string, pos []st
 			}
 		}
 	} else {
-		eng, err = openForCorrection(ctx, e, model, user, layout)
+		eng, err = openForCorrection(ctx, e, model, user, layout, nil)
 	}
 	if err != nil {
 		return err
