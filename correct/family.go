@@ -137,25 +137,11 @@ func tailDistance(a, b string) int {
 		extra += len(b) - n
 		b = b[:n]
 	}
-	var d [n + 1][n + 1]int
-	for i := 0; i <= len(a); i++ {
-		d[i][0] = i
+	var cells [n + 1][n + 1]int // on the stack: tailDistance runs per candidate
+	var d [n + 1][]int
+	for i := range d {
+		d[i] = cells[i][:]
 	}
-	for j := 0; j <= len(b); j++ {
-		d[0][j] = j
-	}
-	for i := 1; i <= len(a); i++ {
-		for j := 1; j <= len(b); j++ {
-			c := 1
-			if a[i-1] == b[j-1] {
-				c = 0
-			}
-			v := min(d[i-1][j-1]+c, d[i-1][j]+1, d[i][j-1]+1)
-			if i > 1 && j > 1 && a[i-1] == b[j-2] && a[i-2] == b[j-1] && a[i-1] != a[i-2] {
-				v = min(v, d[i-2][j-2]+1)
-			}
-			d[i][j] = v
-		}
-	}
+	osaFill(d[:], a, b)
 	return d[len(a)][len(b)] + extra
 }

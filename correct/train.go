@@ -324,9 +324,18 @@ func osaTable(a, b string) [][]int {
 	d := make([][]int, len(a)+1)
 	for i := range d {
 		d[i] = make([]int, len(b)+1)
+	}
+	osaFill(d, a, b)
+	return d
+}
+
+// osaFill fills d (at least len(a)+1 rows of at least len(b)+1 cells) with
+// the optimal-string-alignment distances between the prefixes of a and b.
+func osaFill(d [][]int, a, b string) {
+	for i := 0; i <= len(a); i++ {
 		d[i][0] = i
 	}
-	for j := range d[0] {
+	for j := 0; j <= len(b); j++ {
 		d[0][j] = j
 	}
 	for i := 1; i <= len(a); i++ {
@@ -342,7 +351,6 @@ func osaTable(a, b string) [][]int {
 			d[i][j] = v
 		}
 	}
-	return d
 }
 
 // align returns one optimal plain alignment of intended a with typed b,
