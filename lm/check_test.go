@@ -129,9 +129,7 @@ func TestCheckFindsGroupDamage(t *testing.T) {
 		t.Fatal("no word group with select samples in the Opticks model")
 	}
 	d := directory(t, base)[tag(tagGroups, 2)]
-	flip := func(bit uint64) func([]byte) {
-		return func(s []byte) { s[d.off+bit/8] ^= 1 << (bit % 8) }
-	}
+	flip := bitFlipper(d)
 	cases := []spoiler{
 		{"set-bit sample", flip(g.sbase)},
 		{"clear-bit sample", flip(g.sbase + uint64(g.n1)*uint64(g.sw))},
@@ -177,9 +175,7 @@ func TestCheckFindsRankDamage(t *testing.T) {
 		t.Fatal("no group of coded ranks with both kinds of samples in the Opticks model")
 	}
 	d := directory(t, base)[tag(tagRecords, 3)]
-	flip := func(bit uint64) func([]byte) {
-		return func(s []byte) { s[d.off+bit/8] ^= 1 << (bit % 8) }
-	}
+	flip := bitFlipper(d)
 	cases := []spoiler{
 		{"set-bit sample", flip(g.sbase)},
 		{"clear-bit sample", flip(g.sbase + uint64(g.n1)*uint64(g.sw))},
@@ -193,6 +189,14 @@ func TestCheckFindsRankDamage(t *testing.T) {
 type spoiler struct {
 	name  string
 	spoil func([]byte)
+}
+
+// bitFlipper returns, for a bit offset into the array of directory entry
+// d, a spoiler that flips that bit of a section.
+func bitFlipper(d dirEntry) func(bit uint64) func([]byte) {
+	return func(bit uint64) func([]byte) {
+		return func(s []byte) { s[d.off+bit/8] ^= 1 << (bit % 8) }
+	}
 }
 
 // expectCorrupt damages a copy of base with each case and requires that

@@ -266,9 +266,7 @@ func TestCheckFindsCountDamage(t *testing.T) {
 	m, base := layoutV(t, x.b, 8, 6)
 	long, short := countedSpots(t, m)
 	d := directory(t, base)[tag(tagRecords, 3)]
-	flip := func(bit uint64) func([]byte) {
-		return func(s []byte) { s[d.off+bit/8] ^= 1 << (bit % 8) }
-	}
+	flip := bitFlipper(d)
 	// The stored sum sits just before the counts and is r + k bits wide.
 	sumAt := long.cbase - uint64(long.rw+long.cw)
 	// The unary width ends with a zero bit right before the ranks (form
