@@ -8,6 +8,22 @@ import (
 	"time"
 )
 
+// eightLetterTyped returns the lower-case 8-letter misspellings of the
+// development list, the words the corrector benchmarks type.
+func eightLetterTyped(b *testing.B) []string {
+	b.Helper()
+	var typed []string
+	for _, p := range devPairs(b) {
+		if len(p.Typed) == 8 && strings.ToLower(p.Typed) == p.Typed {
+			typed = append(typed, p.Typed)
+		}
+	}
+	if len(typed) == 0 {
+		b.Fatal("no 8-letter misspellings")
+	}
+	return typed
+}
+
 // BenchmarkCorrect8 corrects 8-letter misspellings from misspellings-dev.tsv
 // against the SUBTLEX-US word list (74k words, about the 75k of the
 // project's performance target) and reports median and p99 latency. The
@@ -25,15 +41,7 @@ import (
 // on the machine's load.
 func BenchmarkCorrect8(b *testing.B) {
 	d := corpus(b)
-	var typed []string
-	for _, p := range devPairs(b) {
-		if len(p.Typed) == 8 && strings.ToLower(p.Typed) == p.Typed {
-			typed = append(typed, p.Typed)
-		}
-	}
-	if len(typed) == 0 {
-		b.Fatal("no 8-letter misspellings")
-	}
+	typed := eightLetterTyped(b)
 	lexicons := []struct {
 		name string
 		lex  interface {
@@ -138,12 +146,7 @@ func (c *Corrector) lastHits(w string) []hit {
 // states and the DP rows per word.
 func BenchmarkWidePass(b *testing.B) {
 	d := corpus(b)
-	var typed []string
-	for _, p := range devPairs(b) {
-		if len(p.Typed) == 8 && strings.ToLower(p.Typed) == p.Typed {
-			typed = append(typed, p.Typed)
-		}
-	}
+	typed := eightLetterTyped(b)
 	lex := newTrieLex(b, d.subtlexLex)
 	c, err := New(lex, d.unigramScorer(lex.words), Options{})
 	if err != nil {

@@ -196,12 +196,7 @@ func TestFamilyCandidates(t *testing.T) {
 // the median and p99 time of the two steps.
 func BenchmarkFamily(b *testing.B) {
 	d := corpus(b)
-	var typed []string
-	for _, p := range devPairs(b) {
-		if len(p.Typed) == 8 && strings.ToLower(p.Typed) == p.Typed {
-			typed = append(typed, p.Typed)
-		}
-	}
+	typed := eightLetterTyped(b)
 	lex := newTrieLex(b, d.subtlexLex)
 	c, err := New(lex, d.unigramScorer(lex.words), Options{MaxStates: benchCap})
 	if err != nil {
