@@ -125,7 +125,6 @@ func (e *Engine) correctField(corr *correct.Corrector, q query, head, field stri
 	ctx := q.contextIDs(c.words, ib[:0])
 	var buf [4]correct.Candidate
 	cands, dec := corr.Correct(field, ctx, 3, buf[:0])
-	cands, dec = sameDigits(field, cands, dec)
 	if !dec.Apply && len(cands) > 0 && len(c.words) > 0 && cands[0].Kind == correct.KindWord {
 		dec.Apply = e.contextOverrules(field, ctx, cands[0])
 	}
@@ -214,60 +213,6 @@ func (e *Engine) lexiconOnly(field string) (uint32, bool) {
 		return 0, false
 	}
 	return id, true
-}
-
-// sameDigits drops the candidates that would change the digits of typed
-// ("17th" → "11th"): no lexicon tells which number was meant, so a digit
-// slip is never undone, while a digit typed for a letter ("s3cond") or a
-// letter for a digit ("yth" → "6th") may be. When the first candidate
-// goes, so does the decision.
-func sameDigits(typed string, cands []correct.Candidate, dec correct.Decision) ([]correct.Candidate, correct.Decision) {
-	if !hasDigit(typed) {
-		return cands, dec
-	}
-	out := cands[:0]
-	for i, c := range cands {
-		if hasDigit(c.Word) && !equalDigits(c.Word, typed) {
-			if i == 0 {
-				return cands[:0], correct.Decision{}
-			}
-			continue
-		}
-		out = append(out, c)
-	}
-	return out, dec
-}
-
-func isDigit(b byte) bool { return '0' <= b && b <= '9' }
-
-func hasDigit(s string) bool {
-	for i := 0; i < len(s); i++ {
-		if isDigit(s[i]) {
-			return true
-		}
-	}
-	return false
-}
-
-// equalDigits reports whether a and b hold the same digits in the same
-// order.
-func equalDigits(a, b string) bool {
-	i, j := 0, 0
-	for {
-		for i < len(a) && !isDigit(a[i]) {
-			i++
-		}
-		for j < len(b) && !isDigit(b[j]) {
-			j++
-		}
-		if i == len(a) || j == len(b) {
-			return i == len(a) && j == len(b)
-		}
-		if a[i] != b[j] {
-			return false
-		}
-		i, j = i+1, j+1
-	}
 }
 
 // CorrectWord is the core of Correct for simulators and measurement tools,

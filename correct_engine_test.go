@@ -188,37 +188,3 @@ func TestTypistHeldOut(t *testing.T) {
 		t.Errorf("typist repaired %.2f%% of %d corrupted words and broke %.3f%% of clean ones, want ≥ 85%% and ≤ 1%%", 100*rep, corrupted, 100*brk)
 	}
 }
-
-// TestSameDigits checks which candidates keep the typed digits: a digit
-// slip is never undone, a digit typed for a letter may be (common
-// practice, no source).
-func TestSameDigits(t *testing.T) {
-	tests := []struct {
-		typed string
-		cands []string
-		want  []string
-		apply bool
-	}{
-		{"17th", []string{"11th", "17th's"}, nil, false},
-		{"s3cond", []string{"second", "4rd"}, []string{"second"}, true},
-		{"9thh", []string{"9th", "8th"}, []string{"9th"}, true},
-		{"yth", []string{"6th", "the"}, []string{"6th", "the"}, true},
-		{"gello", []string{"hello", "jello"}, []string{"hello", "jello"}, true},
-	}
-	for _, tc := range tests {
-		t.Run(tc.typed, func(t *testing.T) {
-			var cands []correct.Candidate
-			for _, w := range tc.cands {
-				cands = append(cands, correct.Candidate{Word: w})
-			}
-			got, dec := sameDigits(tc.typed, cands, correct.Decision{Apply: true, Confidence: 0.9})
-			var words []string
-			for _, c := range got {
-				words = append(words, c.Word)
-			}
-			if strings.Join(words, " ") != strings.Join(tc.want, " ") || dec.Apply != tc.apply {
-				t.Errorf("sameDigits(%q, %v) = %v %+v, want %v apply %v", tc.typed, tc.cands, words, dec, tc.want, tc.apply)
-			}
-		})
-	}
-}

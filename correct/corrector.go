@@ -235,8 +235,9 @@ type scratch struct {
 // punctuation and casing are kept in the candidates' Word) given the IDs
 // of the words before it, best first, appended to dst[:0]. The typed word
 // itself is never among them. The Decision says whether to apply the
-// first one. Empty, overlong (over 48 bytes), invalid UTF-8 or non-Latin
-// input gets no candidates. Cost: one bounded lexicon walk (see
+// first one. A candidate never changes the digits typed (a digit slip is
+// not undone: no lexicon says which number was meant). Empty, overlong
+// (over 48 bytes), invalid UTF-8 or non-Latin input gets no candidates. Cost: one bounded lexicon walk (see
 // Options.MaxCost) plus one Scorer call per word found within budget.
 func (c *Corrector) Correct(typed string, context []uint32, max int, dst []Candidate) ([]Candidate, Decision) {
 	dst = dst[:0]
@@ -326,7 +327,7 @@ func (c *Corrector) Correct(typed string, context []uint32, max int, dst []Candi
 	if known && (!inLex || dst[0].Score-keep < o.KnownMargin) {
 		apply = false // a user's own word is never replaced on space
 	}
-	return dst, Decision{Apply: apply, Confidence: conf}
+	return sameDigits(typed, dst, Decision{Apply: apply, Confidence: conf})
 }
 
 // hasWord reports whether top holds word id as a KindWord candidate.
