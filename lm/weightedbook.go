@@ -1,6 +1,7 @@
 package lm
 
 import (
+	"cmp"
 	"math"
 	"slices"
 )
@@ -20,15 +21,7 @@ func trainWeightedCodebook(vals, weights []float64, qbits int) codebook {
 			v = append(v, vw{x, weights[i]})
 		}
 	}
-	slices.SortFunc(v, func(a, b vw) int {
-		switch {
-		case a.v < b.v:
-			return -1
-		case a.v > b.v:
-			return 1
-		}
-		return 0
-	})
+	slices.SortFunc(v, func(a, b vw) int { return cmp.Compare(a.v, b.v) })
 	// Merge equal values.
 	out := v[:0]
 	for _, x := range v {
