@@ -4,6 +4,8 @@ import (
 	"bufio"
 	"bytes"
 	"context"
+	"os"
+	"slices"
 	"strings"
 	"testing"
 
@@ -30,15 +32,28 @@ func englishModel(t testing.TB, leave ...string) *Engine {
 			kept = append(kept, strings.TrimRight(d.Text, "\r\n"))
 		}
 	}
+	return openEnglish(t, englishData(t, strings.Join(kept, "\n\n")+"\n"), Options{})
+}
+
+// englishData builds a model from text the way the default model is built
+// from the demo corpus, and returns its bytes.
+func englishData(t testing.TB, text string) []byte {
+	t.Helper()
 	_, data, err := bundle.Build(context.Background(), []bundle.Source{
-		{Name: "demo", R: strings.NewReader(strings.Join(kept, "\n\n") + "\n"), Kind: bundle.SourceText},
+		{Name: "demo", R: strings.NewReader(text), Kind: bundle.SourceText},
 		{Name: "subtlex", R: corpora.WordCounts(), Kind: bundle.SourceWordCounts},
 		{Name: "scowl", R: corpora.WordList(), Kind: bundle.SourceWordList, Weight: 0.5},
 	}, bundle.BuildOptions{Order: 3, ListWeight: 0.5})
 	if err != nil {
 		t.Fatalf("bundle.Build: %v", err)
 	}
-	e, err := OpenBytes(data, Options{})
+	return data
+}
+
+// openEnglish opens model bytes and closes the engine when the test ends.
+func openEnglish(t testing.TB, data []byte, opts Options) *Engine {
+	t.Helper()
+	e, err := OpenBytes(data, opts)
 	if err != nil {
 		t.Fatalf("OpenBytes: %v", err)
 	}
@@ -186,5 +201,109 @@ func TestTypistHeldOut(t *testing.T) {
 	t.Logf("pooled: %.2f%% of %d corrupted words repaired, %.3f%% of %d clean broken", 100*rep, corrupted, 100*brk, clean)
 	if corrupted < 1000 || rep < 0.85 || brk > 0.01 {
 		t.Errorf("typist repaired %.2f%% of %d corrupted words and broke %.3f%% of clean ones, want ≥ 85%% and ≤ 1%%", 100*rep, corrupted, 100*brk)
+	}
+}
+
+// TestCorrectSentenceStartPrior checks that the first word of a sentence
+// is ranked by its frequency, not by how often the model's running text
+// starts a sentence with it. The running text is the demo corpus plus
+// sentences that all start with "fourteen"; the typed words and the
+// corrections they must get first come from the development half of the
+// Wikipedia list of common misspellings (corpora/misspellings-dev.tsv):
+// "fourties" → "forties" and "fromed" → "formed", whose competitors
+// "fourteen" and "from" start every added sentence.
+func TestCorrectSentenceStartPrior(t *testing.T) {
+	text := corpora.DemoText()
+	for _, rest := range []string{"people came to the party", "days passed before we heard", "cars were parked outside",
+		"of them signed up", "boxes arrived on monday", "from the list replied", "from the office came along",
+		"from our street joined", "from the team stayed late", "from the class passed"} {
+		text += "\nFourteen " + rest + ".\nFrom " + rest + ".\n"
+	}
+	e := openEnglish(t, englishData(t, text), Options{})
+	tests := []struct{ before, want string }{
+		{"fourties", "forties"},
+		{"Fourties", "Forties"},
+		{"fromed", "formed"},
+		{"We sat down. fromed", "formed"},
+	}
+	for _, tc := range tests {
+		t.Run(tc.before, func(t *testing.T) {
+			c, err := e.Correct(tc.before)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if c == nil || c.Replacement != tc.want {
+				t.Errorf("Correct(%q) = %+v, want %q first", tc.before, c, tc.want)
+			}
+		})
+	}
+}
+
+// TestCorrectDevCrossValidated measures the engine's correction of
+// misspellings its spelling-error model has not seen: 5-fold
+// cross-validation over the development half of the Wikipedia list of
+// common misspellings (corpora/misspellings-dev.tsv), each fold corrected
+// by a model built as the default one with an error model trained on the
+// other four, every word typed on its own as `keyloom eval --correct
+// --folds 5` does. The floors are the figures this test measured when
+// the sentence start stopped steering the corrector (92.36 % and 96.27 %,
+// rounded down; 91.44 % and 96.18 % before), so that losing that gain
+// fails; the issue's goal is top-1 ≥ 90 % and top-3 ≥ 97 %. (The default
+// model leaves SUBTLEX-US contraction halves out, so `keyloom eval` shows
+// slightly different figures: 92.45 % and 96.27 %.)
+func TestCorrectDevCrossValidated(t *testing.T) {
+	if testing.Short() {
+		t.Skip("builds a model and corrects 2,173 words (about 20 s)")
+	}
+	f, err := os.Open("corpora/misspellings-dev.tsv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	pairs, err := correct.ParsePairs(f)
+	f.Close()
+	if err != nil {
+		t.Fatalf("ParsePairs: %v", err)
+	}
+	var kept []string
+	for _, d := range corpora.Demo() {
+		kept = append(kept, strings.TrimRight(d.Text, "\r\n"))
+	}
+	data := englishData(t, strings.Join(kept, "\n\n")+"\n")
+	const folds = 5
+	n, top1, top3 := 0, 0, 0
+	for k := range folds {
+		var train, test []correct.Pair
+		for i, p := range pairs {
+			if i%folds == k {
+				test = append(test, p)
+			} else {
+				train = append(train, p)
+			}
+		}
+		e := openEnglish(t, data, Options{ErrorModel: correct.TrainErrorModel(train, correct.TrainOptions{})})
+		for _, p := range test {
+			c, err := e.Correct(p.Typed)
+			if err != nil {
+				t.Fatalf("Correct(%q): %v", p.Typed, err)
+			}
+			n++
+			if c == nil {
+				continue
+			}
+			for i, w := range append([]string{c.Replacement}, c.Alternatives...) {
+				if slices.ContainsFunc(p.Intended, func(x string) bool { return strings.EqualFold(x, w) }) {
+					if i == 0 {
+						top1++
+					}
+					top3++
+					break
+				}
+			}
+		}
+	}
+	p1, p3 := 100*float64(top1)/float64(n), 100*float64(top3)/float64(n)
+	t.Logf("%d-fold cross-validation over %d misspellings: top-1 %.2f%%, top-3 %.2f%%", folds, n, p1, p3)
+	if n < 2000 || p1 < 92 || p3 < 96.2 {
+		t.Errorf("cross-validated top-1 %.2f%%, top-3 %.2f%% of %d, want ≥ 92%% and ≥ 96.2%%", p1, p3, n)
 	}
 }

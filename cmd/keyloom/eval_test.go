@@ -189,6 +189,11 @@ func TestEvalCorrectFolds(t *testing.T) {
 			if rep["n"] != 12 || rep["folds"] != tc.folds || rep["top1"] > rep["top3"] || rep["top3"] > 1 {
 				t.Errorf("report %v, want n 12, folds %v, top1 ≤ top3 ≤ 1", rep, tc.folds)
 			}
+			// refraction, colours and reflexion are typed right, so the
+			// lexicon knows them; a typed word left alone has no proposal.
+			if rep["known_typed"] < 3 || rep["known_left"] > rep["known_typed"] || rep["known_left"] > rep["no_correction"] {
+				t.Errorf("report %v, want known_typed ≥ 3 and known_left ≤ known_typed, no_correction", rep)
+			}
 		})
 	}
 }

@@ -6,6 +6,7 @@ import (
 	"io"
 	"os"
 	"strings"
+	"unicode"
 
 	"github.com/keyloom/keyloom"
 	"github.com/keyloom/keyloom/correct"
@@ -21,7 +22,13 @@ type correctReport struct {
 	AutoRecall    float64 `json:"auto_recall"`
 	Applied       int     `json:"applied"`
 	NoCorrection  int     `json:"no_correction"`
-	Folds         int     `json:"folds,omitempty"`
+	// KnownTyped counts the pairs whose typed word the lexicon knows (a
+	// real-word error, or a rare spelling the lexicon lists): Correct
+	// offers alternatives to those only when they are fairly likely, so
+	// KnownLeft of them get no proposal.
+	KnownTyped int `json:"known_typed"`
+	KnownLeft  int `json:"known_left"`
+	Folds      int `json:"folds,omitempty"`
 }
 
 // correctTally counts what correction did with a list of pairs.
@@ -89,6 +96,7 @@ func evalCorrect(ctx context.Context, e *env, model, user, layout, path string, 
 	}
 	fmt.Fprintf(e.stdout, "%d misspellings\ntop-1 %.2f%%, top-3 %.2f%%\nauto-apply: %d applied, precision %.2f%%, recall %.2f%%; no proposal for %d\n",
 		rep.N, 100*rep.Top1, 100*rep.Top3, rep.Applied, 100*rep.AutoPrecision, 100*rep.AutoRecall, rep.NoCorrection)
+	fmt.Fprintf(e.stdout, "typed word in the lexicon: %d (left alone: %d)\n", rep.KnownTyped, rep.KnownLeft)
 	return nil
 }
 
@@ -109,8 +117,16 @@ func (t *correctTally) run(ctx context.Context, e *env, model, user, layout stri
 		if err != nil {
 			return err
 		}
+		core := strings.TrimFunc(p.Typed, func(r rune) bool { return !unicode.IsLetter(r) && !unicode.IsDigit(r) })
+		_, known := eng.Lexicon().ID(lm.Fold(core))
+		if known {
+			t.rep.KnownTyped++
+		}
 		if c == nil {
 			t.rep.NoCorrection++
+			if known {
+				t.rep.KnownLeft++
+			}
 			continue
 		}
 		want := func(w string) bool {
