@@ -63,11 +63,15 @@ func openEnglish(t testing.TB, data []byte, opts Options) *Engine {
 
 // TestCorrectFalseAutoApply types the 20,000 most frequent SUBTLEX-US words
 // (Brysbaert & New 2009) correctly, each on its own; the engine may replace
-// at most 0.5 % of them on space (target of issue 4).
+// at most 0.5 % of them on space (target of issue 4). It also bounds the
+// share of them that get any alternative offered: 9 %, the budget the rare
+// listed word rule (commonWords) was set under (project budget, issue 4);
+// the rule left that share unchanged (8.84 % before and after with one
+// cross-validation fold's error model, 8.79 % with the built-in one).
 func TestCorrectFalseAutoApply(t *testing.T) {
 	e := englishModel(t)
 	sc := bufio.NewScanner(corpora.WordCounts())
-	n, fired := 0, 0
+	n, fired, offered := 0, 0, 0
 	var examples []string
 	for sc.Scan() && n < 20000 {
 		w, _, ok := strings.Cut(sc.Text(), "\t")
@@ -79,6 +83,9 @@ func TestCorrectFalseAutoApply(t *testing.T) {
 		if err != nil {
 			t.Fatalf("Correct(%q): %v", w, err)
 		}
+		if c != nil {
+			offered++
+		}
 		if c != nil && c.Apply {
 			fired++
 			if len(examples) < 10 {
@@ -86,10 +93,13 @@ func TestCorrectFalseAutoApply(t *testing.T) {
 			}
 		}
 	}
-	rate := float64(fired) / float64(n)
-	t.Logf("auto-apply fired on %d of %d frequent words (%.3f%%), e.g. %v", fired, n, 100*rate, examples)
+	rate, offers := float64(fired)/float64(n), float64(offered)/float64(n)
+	t.Logf("auto-apply fired on %d of %d frequent words (%.3f%%), e.g. %v; alternatives offered on %.2f%%", fired, n, 100*rate, examples, 100*offers)
 	if n != 20000 || rate > 0.005 {
 		t.Errorf("auto-apply fired on %.3f%% of %d correct words, want ≤ 0.5%% of 20000", 100*rate, n)
+	}
+	if offers > 0.09 {
+		t.Errorf("alternatives offered on %.2f%% of %d correct words, want ≤ 9%%", 100*offers, n)
 	}
 }
 
@@ -141,6 +151,43 @@ func TestCorrectRealWordInContext(t *testing.T) {
 	}
 	if c, _ := e.Correct("she starts the new kob"); c != nil && c.Apply {
 		t.Errorf("Correct after teaching kob = %+v, want a word the user taught left alone", c)
+	}
+}
+
+// TestCorrectRareListedWord checks the engine's rule for a word the
+// lexicon lists but the model ranks below its commonWords most probable
+// words: its correction is offered, never applied on space, and a word the
+// user taught is left alone. The pairs are from the development half of
+// the Wikipedia list of common misspellings (corpora/misspellings-dev.tsv);
+// SCOWL lists every typed word, SUBTLEX-US has them rarely or not at all.
+func TestCorrectRareListedWord(t *testing.T) {
+	e := englishModel(t)
+	tests := []struct{ typed, want string }{
+		{"aircrafts", "aircraft"},
+		{"fightings", "fighting"},
+		{"liquify", "liquefy"},
+		{"heterogenous", "heterogeneous"},
+		{"unmistakeably", "unmistakably"},
+	}
+	for _, tc := range tests {
+		t.Run(tc.typed, func(t *testing.T) {
+			if _, ok := e.model.Lex.ID(tc.typed); !ok {
+				t.Fatalf("the lexicon does not list %q", tc.typed)
+			}
+			c, err := e.Correct(tc.typed)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if c == nil || c.Apply || !slices.Contains(append([]string{c.Replacement}, c.Alternatives...), tc.want) {
+				t.Errorf("Correct(%q) = %+v, want %q offered, not applied", tc.typed, c, tc.want)
+			}
+		})
+	}
+	if err := e.Learn("the aircrafts landed. two aircrafts. new aircrafts."); err != nil {
+		t.Fatal(err)
+	}
+	if c, err := e.Correct("aircrafts"); err != nil || c != nil {
+		t.Errorf("Correct(aircrafts) after teaching it = %+v, %v, want it left alone", c, err)
 	}
 }
 
@@ -245,12 +292,13 @@ func TestCorrectSentenceStartPrior(t *testing.T) {
 // common misspellings (corpora/misspellings-dev.tsv), each fold corrected
 // by a model built as the default one with an error model trained on the
 // other four, every word typed on its own as `keyloom eval --correct
-// --folds 5` does. The floors are the figures this test measured when
-// the sentence start stopped steering the corrector (92.36 % and 96.27 %,
-// rounded down; 91.44 % and 96.18 % before), so that losing that gain
-// fails; the issue's goal is top-1 ≥ 90 % and top-3 ≥ 97 %. (The default
-// model leaves SUBTLEX-US contraction halves out, so `keyloom eval` shows
-// slightly different figures: 92.45 % and 96.27 %.)
+// --folds 5` does. The top-3 floor is the issue's goal (top-1 ≥ 90 %,
+// top-3 ≥ 97 %); the top-1 floor is the figure this test measured once
+// rare listed words got their alternatives offered (92.87 %, rounded down;
+// 92.36 % before, 91.44 % before the sentence start stopped steering the
+// corrector), so that losing that gain fails. (The default model leaves
+// SUBTLEX-US contraction halves out, so `keyloom eval` shows slightly
+// different figures.)
 func TestCorrectDevCrossValidated(t *testing.T) {
 	if testing.Short() {
 		t.Skip("builds a model and corrects 2,173 words (about 20 s)")
@@ -303,7 +351,7 @@ func TestCorrectDevCrossValidated(t *testing.T) {
 	}
 	p1, p3 := 100*float64(top1)/float64(n), 100*float64(top3)/float64(n)
 	t.Logf("%d-fold cross-validation over %d misspellings: top-1 %.2f%%, top-3 %.2f%%", folds, n, p1, p3)
-	if n < 2000 || p1 < 92 || p3 < 96.2 {
-		t.Errorf("cross-validated top-1 %.2f%%, top-3 %.2f%% of %d, want ≥ 92%% and ≥ 96.2%%", p1, p3, n)
+	if n < 2000 || p1 < 92.8 || p3 < 97 {
+		t.Errorf("cross-validated top-1 %.2f%%, top-3 %.2f%% of %d, want ≥ 92.8%% and ≥ 97%%", p1, p3, n)
 	}
 }

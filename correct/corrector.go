@@ -91,6 +91,16 @@ type Options struct {
 	// a word the lexicon or Known knows is offered at all, so that correctly
 	// spelled words do not come with noise. 0 (the default) offers them all.
 	KnownOfferConfidence float64
+	// RareLogProb marks the rare words of the lexicon: a word the lexicon
+	// knows, and Known does not report, whose log-probability with no
+	// context is below RareLogProb is treated as a rare listed spelling
+	// that may stand for a more frequent word ("aircrafts", "liquify"):
+	// it is searched with the narrow and middle passes (up to 9 nats;
+	// other known words get the narrow pass only) and its alternatives
+	// are offered whatever their confidence (KnownOfferConfidence does not
+	// apply to it). They are still applied on space only under
+	// KnownMargin. 0 (the default) marks no word rare.
+	RareLogProb float64
 	// KnownMargin is how many nats an alternative must out-score a word the
 	// lexicon or Known knows before it may be applied. Default 10.
 	KnownMargin float64
@@ -123,8 +133,13 @@ func (o *Options) defaults() error {
 			return fmt.Errorf("%w: negative or non-finite value %v", ErrOptions, v)
 		}
 	}
-	if o.ApplyThreshold > 1 || o.KnownOfferConfidence > 1 || o.UnknownLogProb > 0 || math.IsNaN(o.UnknownLogProb) || math.IsInf(o.UnknownLogProb, 0) {
-		return fmt.Errorf("%w: threshold above one or positive log-probability", ErrOptions)
+	for _, v := range []float64{o.UnknownLogProb, o.RareLogProb} {
+		if v > 0 || math.IsNaN(v) || math.IsInf(v, 0) {
+			return fmt.Errorf("%w: positive or non-finite log-probability %v", ErrOptions, v)
+		}
+	}
+	if o.ApplyThreshold > 1 || o.KnownOfferConfidence > 1 {
+		return fmt.Errorf("%w: threshold above one", ErrOptions)
 	}
 	def := func(v *float64, d float64) {
 		if *v == 0 {
@@ -173,6 +188,17 @@ const firstPass = 6
 
 // secondPass is the budget of the middle pass.
 const secondPass = 9
+
+// rarePass is the widest pass a rare listed word gets (Options.RareLogProb):
+// the middle one. On corpora/misspellings-dev.tsv (engine 5-fold
+// cross-validation) the narrow pass alone gave rare typed words +13 words
+// of top-3, the middle pass +17 and the full budget +17 too; the middle
+// pass makes a rare word typed right cost about five times the narrow
+// pass (median about 1.4 ms against 0.3 ms on this project's loaded
+// 2-core machine), the full budget about thirty times (measured, this
+// project; BENCHMARKS.md). firstPass here keeps rare words as cheap as
+// before.
+const rarePass = secondPass
 
 // passRefLogProb is the score (in LMWeight-scaled nats) the best
 // candidate of a pass must reach to end the search: a word of
@@ -236,7 +262,10 @@ type scratch struct {
 // of the words before it, best first, appended to dst[:0]. The typed word
 // itself is never among them. The Decision says whether to apply the
 // first one. A candidate never changes the digits typed (a digit slip is
-// not undone: no lexicon says which number was meant). Empty, overlong
+// not undone: no lexicon says which number was meant). A word the lexicon
+// or the user knows gets alternatives only at KnownOfferConfidence or
+// above, from the narrow first pass, unless the lexicon word is rare
+// (Options.RareLogProb). Empty, overlong
 // (over 48 bytes), invalid UTF-8 or non-Latin input gets no candidates. Cost: one bounded lexicon walk (see
 // Options.MaxCost) plus one Scorer call per word found within budget.
 func (c *Corrector) Correct(typed string, context []uint32, max int, dst []Candidate) ([]Candidate, Decision) {
@@ -274,7 +303,17 @@ func (c *Corrector) Correct(typed string, context []uint32, max int, dst []Candi
 	s := &sc.s
 	rk := &sc.rk
 	rk.start(c, context, typedID, inLex, keepN, sc.top)
-	c.searchPasses(s, rk, lower, known, !c.depthFirst)
+	rare := inLex && c.rare(lower, typedID)
+	// A known word gets the narrow pass only; a rare one the middle pass
+	// too (rarePass).
+	widest := o.MaxCost
+	switch {
+	case rare:
+		widest = rarePass
+	case known:
+		widest = firstPass
+	}
+	c.searchUpTo(s, rk, lower, widest, !c.depthFirst)
 	c.addFamily(rk, lower) // stems typed with another ending (family.go)
 	rk.addSound(lower)     // the sound feature (rank.go)
 	sc.top = rk.top
@@ -320,7 +359,7 @@ func (c *Corrector) Correct(typed string, context []uint32, max int, dst []Candi
 		return dst, Decision{}
 	}
 	conf := math.Exp(dst[0].Score-keep) / z
-	if known && conf < o.KnownOfferConfidence {
+	if known && !rare && conf < o.KnownOfferConfidence {
 		return dst[:0], Decision{} // a known word is left alone, not even offered
 	}
 	apply := conf >= o.ApplyThreshold
@@ -328,6 +367,14 @@ func (c *Corrector) Correct(typed string, context []uint32, max int, dst []Candi
 		apply = false // a user's own word is never replaced on space
 	}
 	return sameDigits(typed, dst, Decision{Apply: apply, Confidence: conf})
+}
+
+// rare reports whether lower, a word the lexicon knows as id, is a rare
+// listed spelling (Options.RareLogProb): less probable than the cut with
+// no context, and not a word the user taught.
+func (c *Corrector) rare(lower string, id uint32) bool {
+	o := &c.opts
+	return o.RareLogProb < 0 && c.lm(nil, id) < o.RareLogProb && (o.Known == nil || !o.Known(lower))
 }
 
 // hasWord reports whether top holds word id as a KindWord candidate.
@@ -374,21 +421,20 @@ func insertTop(top []Candidate, c Candidate, n int) []Candidate {
 	return top
 }
 
-// searchPasses finds the candidates of lower (known: the lexicon or the
-// user knows it) in passes of growing budget, the cap shared by the
-// passes; it returns the work the cap counted (see capRows) and the
-// number of states entered. With bestFirst the
-// widest pass walks best-first (see runBest): under the state cap it leaves
-// out the least promising prefixes rather than the alphabetically last
+// searchUpTo finds the candidates of lower in passes of growing budget up
+// to widest (at most Options.MaxCost), the cap shared by the passes; it
+// returns the work the cap counted (see capRows) and the number of states
+// entered. With bestFirst the full-budget pass walks best-first (see
+// runBest): under the state cap it leaves out the least promising prefixes rather than the alphabetically last
 // ones. The narrow passes always walk depth-first: they are complete within
 // the cap for nearly every word, and a depth-first state costs about a
 // quarter less (BenchmarkWidePass). Without bestFirst it is the previous,
 // all depth-first search.
-func (c *Corrector) searchPasses(s *search, rk *ranker, lower string, known, bestFirst bool) (used, states int) {
+func (c *Corrector) searchUpTo(s *search, rk *ranker, lower string, widest float64, bestFirst bool) (used, states int) {
 	o := &c.opts
 	last := 0.0
 	for _, budget := range [...]float64{firstPass, secondPass, o.MaxCost} {
-		budget = min(budget, o.MaxCost)
+		budget = min(budget, widest, o.MaxCost)
 		if budget <= last {
 			break
 		}
@@ -411,9 +457,20 @@ func (c *Corrector) searchPasses(s *search, rk *ranker, lower string, known, bes
 		}
 		used += s.spent()
 		states += s.visited
-		if budget >= o.MaxCost || known || len(rk.top) > 0 && rk.top[0].Score >= o.LMWeight*passRefLogProb {
-			break // a known word only gets the narrow pass of suggestions
+		if budget >= min(widest, o.MaxCost) || len(rk.top) > 0 && rk.top[0].Score >= o.LMWeight*passRefLogProb {
+			break
 		}
 	}
 	return used, states
+}
+
+// searchPasses is searchUpTo with the widest pass that Correct gives a
+// word the lexicon or the user knows (known, not rare: the narrow pass
+// alone) or any other word (Options.MaxCost).
+func (c *Corrector) searchPasses(s *search, rk *ranker, lower string, known, bestFirst bool) (used, states int) {
+	widest := c.opts.MaxCost
+	if known {
+		widest = firstPass
+	}
+	return c.searchUpTo(s, rk, lower, widest, bestFirst)
 }

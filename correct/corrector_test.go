@@ -25,6 +25,8 @@ func TestNewErrors(t *testing.T) {
 		{"nan weight", lex, lm, Options{LMWeight: math.NaN()}, ErrOptions},
 		{"threshold above one", lex, lm, Options{ApplyThreshold: 1.5}, ErrOptions},
 		{"positive log prob", lex, lm, Options{UnknownLogProb: 1}, ErrOptions},
+		{"positive rare cut", lex, lm, Options{RareLogProb: 0.5}, ErrOptions},
+		{"infinite rare cut", lex, lm, Options{RareLogProb: math.Inf(-1)}, ErrOptions},
 		{"unknown layout", lex, lm, Options{Layout: 42}, ErrUnknownLayout},
 	}
 	for _, tc := range tests {
@@ -324,5 +326,58 @@ func TestTypist(t *testing.T) {
 	}
 	if brk > 0.01 {
 		t.Errorf("broke %.2f%% of clean words, want ≤ 1%%", 100*brk)
+	}
+}
+
+// TestCorrectRareKnownWord checks the rule for a rare listed spelling
+// (Options.RareLogProb): "heterogenous" → "heterogeneous" is a pair of the
+// Wikipedia list of common misspellings (corpora/misspellings-dev.tsv)
+// whose typed word a large lexicon lists. The two words get the same
+// small frequency by hand (the SCOWL list knows both, SUBTLEX-US neither)
+// and the offer gate is set high (KnownOfferConfidence 0.9) so that it
+// hides the alternative: the rule must then offer it and still never
+// apply it; a word above the cut, or one the user taught, keeps the gate. The cut, one occurrence per million words, is
+// the border of low-frequency words on the Zipf scale of van Heuven et al.
+// (2014) (from memory).
+func TestCorrectRareKnownWord(t *testing.T) {
+	freq := map[string]float64{"heterogenous": 1e-8, "heterogeneous": 1e-8, "homogeneous": 2e-6, "the": 0.05, "thy": 2e-6}
+	var words []string
+	for w := range freq {
+		words = append(words, w)
+	}
+	lex := newFlatLex(words)
+	lm := func(_ []uint32, id uint32) float64 { return math.Log(freq[lex.words[id]]) }
+	cut := math.Log(1e-6)
+	tests := []struct {
+		name    string
+		typed   string
+		rareCut float64
+		taught  string
+		want    string // "" = nothing offered
+	}{
+		{"rare word offered", "heterogenous", cut, "", "heterogeneous"},
+		{"no cut keeps the gate", "heterogenous", 0, "", ""},
+		{"taught word keeps the gate", "heterogenous", cut, "heterogenous", ""},
+		{"frequent word keeps the gate", "the", cut, "", ""},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			c, err := New(lex, lm, Options{KnownOfferConfidence: 0.9, RareLogProb: tc.rareCut,
+				Known: func(w string) bool { return w == tc.taught }})
+			if err != nil {
+				t.Fatal(err)
+			}
+			got, dec := c.Correct(tc.typed, nil, 3, nil)
+			if dec.Apply {
+				t.Errorf("Correct(%q) = %v %+v, want a known word never applied", tc.typed, got, dec)
+			}
+			found := false
+			for _, g := range got {
+				found = found || g.Word == tc.want
+			}
+			if tc.want == "" && len(got) > 0 || tc.want != "" && !found {
+				t.Errorf("Correct(%q) = %v (confidence %.3f), want %q offered", tc.typed, got, dec.Confidence, tc.want)
+			}
+		})
 	}
 }

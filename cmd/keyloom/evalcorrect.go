@@ -24,7 +24,8 @@ type correctReport struct {
 	NoCorrection  int     `json:"no_correction"`
 	// KnownTyped counts the pairs whose typed word the lexicon knows (a
 	// real-word error, or a rare spelling the lexicon lists): Correct
-	// offers alternatives to those only when they are fairly likely, so
+	// offers alternatives to a word the model counts as common only when
+	// they are fairly likely, and to a rare one whenever it finds any, so
 	// KnownLeft of them get no proposal.
 	KnownTyped int `json:"known_typed"`
 	KnownLeft  int `json:"known_left"`
