@@ -1,6 +1,9 @@
 package correct
 
-import "math/bits"
+import (
+	"math/bits"
+	"slices"
+)
 
 // This file holds the letters-below table and the lower bound the search
 // draws from it (an admissible heuristic in the sense of A* search), for
@@ -28,7 +31,8 @@ import "math/bits"
 // 8-letter words (BenchmarkCorrect8). Rules under way whose rest cannot
 // follow (its next byte on no edge, or a byte on no path below) are
 // dropped, as are rules that cannot end within budget where their typed
-// side ends.
+// side ends. The table also holds a copy of the automaton, which the
+// search walks instead of the lexicon (belowTable).
 
 // belowBit returns the bit of byte c in a letters-below set: a–z are bits
 // 0–25, the apostrophe 26, the hyphen 27 and every other byte shares bit 28.
@@ -47,23 +51,34 @@ func belowBit(c byte) uint32 {
 // belowAll is the set holding every byte.
 const belowAll = 1<<29 - 1
 
-// belowTable maps the states of a lexicon to two byte sets (see
-// belowBit): the bytes on the paths below a state, and the bytes of its
-// own edges. It is an open-addressing hash table filled once by
-// newBelowTable and read-only afterwards, so searches may share it.
-// States outside [0, 2³²-1) are not stored (get answers unknownSets).
+// belowTable is a copy of a lexicon's automaton, made once by
+// newBelowTable and read-only afterwards so that searches may share it,
+// with two byte sets (see belowBit) per state: the bytes on the paths
+// below it, and the bytes of its own edges. The search walks the copy
+// instead of the lexicon: a state is a node index, its edges lie side by
+// side in three arrays and its sets beside its edge offset, so a step
+// decodes nothing and looks nothing up (a state listed by the lexicon and
+// looked up in a hash table cost about 115 ns a DP row, measured, this
+// project). Nodes are numbered breadth-first from the start state (node
+// 0), so the shallow states every search walks share a few cache lines.
 type belowTable struct {
-	slots []belowSlot
-	shift uint // 64 - log2(len(slots))
-	count int  // states stored
+	nodes []belowNode // by index, and one more whose lo ends the last edges
+	eb    []byte      // edge bytes, by node and in the lexicon's order
+	en    []uint32    // edge targets (node indices)
+	eo    []uint32    // edge outputs, modulo 2³² (word IDs are 32-bit)
 }
 
-// belowSlot is one entry of belowTable; key is the state plus one, zero
-// for an empty slot.
-type belowSlot struct {
-	key         uint32
-	below, next uint32
+// belowNode is one state of belowTable: its edges are eb[lo:] up to the
+// next node's lo (without finalBit), and fin is its final output when lo
+// has finalBit.
+type belowNode struct {
+	lo   uint32
+	fin  uint32
+	sets belowSets
 }
+
+// finalBit marks, in belowNode.lo, a state that ends a word.
+const finalBit = 1 << 31
 
 // belowSets is the entry of belowTable for a state: the bytes below it in
 // the low half, the bytes of its edges in the high half.
@@ -79,120 +94,176 @@ func (b belowSets) next() uint32 { return uint32(b >> 32) }
 // byte, which only weakens the bound.
 const unknownSets = belowSets(belowAll | belowAll<<32)
 
-// slot returns the home slot of key.
-func (t *belowTable) slot(key uint32) int {
-	return int((uint64(key) * 0x9e3779b97f4a7c15) >> t.shift)
+// tableKey reports whether the letters-below walk (newBelowTable) records
+// state's sets: states outside [0, 2³²-1) get unknownSets.
+func tableKey(state int) bool {
+	return state >= 0 && state < 1<<32-1
 }
 
-// tableKey returns the key of state, or false if the table cannot hold it.
-func tableKey(state int) (uint32, bool) {
-	if state < 0 || state >= 1<<32-1 {
-		return 0, false
-	}
-	return uint32(state) + 1, true
+// edges returns the bounds of node i's edges in eb, en and eo.
+func (t *belowTable) edges(i int) (lo, hi int) {
+	return int(t.nodes[i].lo &^ finalBit), int(t.nodes[i+1].lo &^ finalBit)
 }
 
-// get returns the sets of state, or unknownSets when the table does not
-// hold it.
-func (t *belowTable) get(state int) belowSets {
-	v, ok := t.lookup(state)
-	if !ok {
-		return unknownSets
-	}
-	return v
+// final reports whether node i ends a word, and its final output.
+func (t *belowTable) final(i int) (bool, uint32) {
+	n := &t.nodes[i]
+	return n.lo&finalBit != 0, n.fin
 }
 
-// lookup returns the sets of state and whether the table holds it.
-func (t *belowTable) lookup(state int) (belowSets, bool) {
-	key, ok := tableKey(state)
-	if !ok {
-		return 0, false
-	}
-	mask := len(t.slots) - 1
-	for i := t.slot(key); ; i = (i + 1) & mask {
-		sl := &t.slots[i]
-		if sl.key == key {
-			return belowSets(sl.below) | belowSets(sl.next)<<32, true
+// newBelowTable copies the automaton of lex, listing the edges of every
+// state reachable from its start with el, and records the byte sets of
+// each. It returns nil for an automaton too large to copy (2³¹ edges or
+// states). Cost: one edge listing and one Final per state, 16 bytes of
+// table per state and 9 per edge, and a map from lexicon states to nodes
+// while building (for the 74k-word SUBTLEX-US lexicon, 34,656 states and
+// 76,264 edges: about 1.2 MB).
+func newBelowTable(lex Lexicon, el EdgeLister) *belowTable {
+	t := &belowTable{}
+	var index stateIndex
+	index.put(lex.Start(), 0)
+	states := []int{lex.Start()}
+	var buf []Edge
+	for i := 0; i < len(states); i++ {
+		if len(t.eb) >= finalBit || len(states) >= finalBit {
+			return nil
 		}
-		if sl.key == 0 {
+		st := states[i]
+		nd := belowNode{lo: uint32(len(t.eb))}
+		if ok, fo := lex.Final(st); ok {
+			nd.lo |= finalBit
+			nd.fin = uint32(fo)
+		}
+		t.nodes = append(doubled(t.nodes), nd)
+		buf = el.AppendEdges(buf[:0], st)
+		for _, e := range buf {
+			k, seen := index.get(e.Next)
+			if !seen {
+				k = uint32(len(states))
+				index.put(e.Next, k)
+				states = append(doubled(states), e.Next)
+			}
+			t.eb = append(doubled(t.eb), e.Byte)
+			t.en = append(doubled(t.en), k)
+			t.eo = append(doubled(t.eo), uint32(e.Out))
+		}
+	}
+	if len(t.eb) >= finalBit {
+		return nil
+	}
+	t.nodes = append(t.nodes, belowNode{lo: uint32(len(t.eb))})
+	// Exact-size copies: the table lives as long as the corrector.
+	t.nodes, t.eb, t.en, t.eo = slices.Clone(t.nodes), slices.Clone(t.eb), slices.Clone(t.en), slices.Clone(t.eo)
+	for i := range states {
+		t.nodes[i].sets = unknownSets
+	}
+	t.fillSets(states)
+	return t
+}
+
+// doubled returns s with room for one more element, doubling its
+// capacity when full: append alone grows a large slice by a quarter at a
+// time, which made building the table allocate about five times its
+// final size (18 MB for the 177k-word default lexicon, measured, this
+// project).
+func doubled[T any](s []T) []T {
+	if len(s) == cap(s) {
+		s = slices.Grow(s, max(len(s), 256))
+	}
+	return s
+}
+
+// stateIndex maps lexicon states to node indices while newBelowTable
+// builds: an open-addressing hash table, kept at most half full (a Go map
+// made the build twice as slow, measured, this project).
+type stateIndex struct {
+	keys  []uint64 // state+1, 0 for an empty slot
+	vals  []uint32
+	n     int
+	other map[int]uint32 // the state -1, whose key would be 0
+}
+
+// get returns the node of state and whether it has one.
+func (x *stateIndex) get(state int) (uint32, bool) {
+	if state == -1 {
+		v, ok := x.other[state]
+		return v, ok
+	}
+	if len(x.keys) == 0 {
+		return 0, false
+	}
+	key := uint64(state) + 1
+	mask := len(x.keys) - 1
+	for i := int((key*0x9e3779b97f4a7c15)>>32) & mask; ; i = (i + 1) & mask {
+		switch x.keys[i] {
+		case key:
+			return x.vals[i], true
+		case 0:
 			return 0, false
 		}
 	}
 }
 
-// put stores the sets of state (not yet in the table), growing the table
-// to keep it at most three quarters full (a smaller table stays in cache
-// better; probes stay short). A state the table cannot hold is skipped.
-func (t *belowTable) put(state int, v belowSets) {
-	key, ok := tableKey(state)
-	if !ok {
+// put records the node of state, which has none yet.
+func (x *stateIndex) put(state int, node uint32) {
+	if state == -1 {
+		if x.other == nil {
+			x.other = map[int]uint32{}
+		}
+		x.other[state] = node
 		return
 	}
-	if t.count*4 >= len(t.slots)*3 {
-		t.grow()
+	if 2*(x.n+1) > len(x.keys) {
+		oldK, oldV := x.keys, x.vals
+		size := max(2*len(oldK), 1024)
+		x.keys, x.vals, x.n = make([]uint64, size), make([]uint32, size), 0
+		for i, k := range oldK {
+			if k != 0 {
+				x.put(int(k-1), oldV[i])
+			}
+		}
 	}
-	mask := len(t.slots) - 1
-	i := t.slot(key)
-	for t.slots[i].key != 0 {
+	key := uint64(state) + 1
+	mask := len(x.keys) - 1
+	i := int((key*0x9e3779b97f4a7c15)>>32) & mask
+	for x.keys[i] != 0 {
 		i = (i + 1) & mask
 	}
-	t.slots[i] = belowSlot{key: key, below: v.below(), next: v.next()}
-	t.count++
+	x.keys[i], x.vals[i] = key, node
+	x.n++
 }
 
-// grow doubles the table and re-inserts its entries.
-func (t *belowTable) grow() {
-	old := t.slots
-	size := max(2*len(old), 1024)
-	t.slots = make([]belowSlot, size)
-	t.shift = 64
-	for s := size; s > 1; s >>= 1 {
-		t.shift--
-	}
-	t.count = 0
-	for _, sl := range old {
-		if sl.key != 0 {
-			t.put(int(sl.key-1), belowSets(sl.below)|belowSets(sl.next)<<32)
-		}
-	}
-}
-
-// newBelowTable walks every state of lex reachable from its start, listing
-// edges with el, and records the byte sets of each. Cost: one edge
-// listing per state (the lexicon is a DAG; shared suffix states are listed
-// once) and 12 to 24 bytes of table per state.
-func newBelowTable(lex Lexicon, el EdgeLister) *belowTable {
-	t := &belowTable{}
-	t.grow()
-	var bufs [][]Edge
-	var walk func(state, depth int) uint32
-	walk = func(state, depth int) uint32 {
-		if _, ok := tableKey(state); !ok {
+// fillSets computes the sets of the nodes the walk reaches from the start
+// (node 0), depth-first, each state once (the lexicon is a DAG; shared
+// suffix states are walked once). Below depth 4×maxTyped, deeper than any
+// search goes, and for states outside the range of tableKey, it records no
+// bound (every byte).
+func (t *belowTable) fillSets(states []int) {
+	done := make([]bool, len(states))
+	var walk func(i, depth int) uint32
+	walk = func(i, depth int) uint32 {
+		if !tableKey(states[i]) {
 			return belowAll
 		}
-		if v, ok := t.lookup(state); ok {
-			return v.below()
+		if done[i] {
+			return t.nodes[i].sets.below()
 		}
-		for len(bufs) <= depth {
-			bufs = append(bufs, nil)
-		}
-		bufs[depth] = el.AppendEdges(bufs[depth][:0], state)
 		var below, next uint32
-		for k := 0; k < len(bufs[depth]); k++ {
-			e := bufs[depth][k]
-			next |= belowBit(e.Byte)
+		lo, hi := t.edges(i)
+		for k := lo; k < hi; k++ {
+			next |= belowBit(t.eb[k])
 			if depth < 4*maxTyped {
-				below |= walk(e.Next, depth+1)
+				below |= walk(int(t.en[k]), depth+1)
 			} else {
 				below = belowAll // deeper than any search goes: no bound
 			}
 		}
 		below |= next
-		t.put(state, belowSets(below)|belowSets(next)<<32)
+		t.nodes[i].sets = belowSets(below) | belowSets(next)<<32
+		done[i] = true
 		return below
 	}
-	walk(lex.Start(), 0)
-	return t
+	walk(0, 0)
 }
 
 // hopt is one way of paying for a typed byte in the letters-below bound,
@@ -535,18 +606,15 @@ func (s *search) canFinish(rest string) bool {
 }
 
 // setChild names the state of the child prefix that extend and
-// childSetsNow work for; its sets are looked up when first needed.
+// childSetsNow work for.
 func (s *search) setChild(state int) {
-	s.childState, s.childOK = state, false
+	s.childState = state
 }
 
-// childSetsNow returns the sets of the state named by setChild (s.below
-// must not be nil).
+// childSetsNow returns the sets of the state (a node of s.below, which
+// must not be nil) named by setChild.
 func (s *search) childSetsNow() belowSets {
-	if !s.childOK {
-		s.childSets, s.childOK = s.below.get(s.childState), true
-	}
-	return s.childSets
+	return s.below.nodes[s.childState].sets
 }
 
 // bitIndex returns the index of the lowest set bit of x (x != 0).

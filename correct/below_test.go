@@ -61,13 +61,16 @@ func TestBelowTableMatchesWordList(t *testing.T) {
 			cache := map[string][2]uint32{}
 			for i := 0; i < len(words); i += len(words) / 3000 {
 				w := words[i]
-				st := lex.Start()
+				node := 0 // the table's copy of the start state
+				var acc uint32
 				for k := 0; k <= len(w); k++ {
 					if k > 0 {
 						var ok bool
-						if st, _, ok = lex.Step(st, w[k-1]); !ok {
+						var out uint32
+						if node, out, ok = tableStep(tab, node, w[k-1]); !ok {
 							t.Fatalf("%q: no transition on %q", w, w[:k])
 						}
+						acc += out
 					}
 					prefix := w[:k]
 					want, seen := cache[prefix]
@@ -84,14 +87,17 @@ func TestBelowTableMatchesWordList(t *testing.T) {
 						cache[prefix] = want
 					}
 					wantBelow, wantNext := want[0], want[1]
-					sets, ok := tab.lookup(st)
-					if !ok {
-						t.Fatalf("%q: prefix %q: state not in the table", w, prefix)
-					}
+					sets := tab.nodes[node].sets
 					if sets.below() != wantBelow || sets.next() != wantNext {
 						t.Errorf("%q: prefix %q: below %#x next %#x, want %#x %#x", w, prefix, sets.below(), sets.next(), wantBelow, wantNext)
 					}
 					checked++
+				}
+				// The copy ends the word where the list does, with the
+				// word's ID (its rank in the sorted list) as the sum of
+				// the outputs on the way.
+				if fin, out := tab.final(node); !fin || int(acc+out) != i {
+					t.Errorf("%q: final %v ID %d, want true %d", w, fin, acc+out, i)
 				}
 			}
 			if checked < 10000 {
@@ -99,4 +105,16 @@ func TestBelowTableMatchesWordList(t *testing.T) {
 			}
 		})
 	}
+}
+
+// tableStep follows node's edge on byte c in the table's copy of the
+// automaton.
+func tableStep(tab *belowTable, node int, c byte) (int, uint32, bool) {
+	lo, hi := tab.edges(node)
+	for k := lo; k < hi; k++ {
+		if tab.eb[k] == c {
+			return int(tab.en[k]), tab.eo[k], true
+		}
+	}
+	return 0, 0, false
 }

@@ -39,12 +39,15 @@ func (s *search) runBest() {
 	for i := range s.buckets {
 		s.buckets[i] = s.buckets[i][:0]
 	}
+	if s.below != nil {
+		st = 0 // the start node
+	}
 	s.nodes = append(s.nodes[:0], bfNode{state: st, parent: -1})
 	s.rows = s.rows[:w]
 	s.mins = s.mins[:1]
 	s.act = s.act[:0]
 	if c := s.rows[s.n]; c <= s.budget {
-		if ok, fo := s.lex.Final(st); ok {
+		if ok, fo := s.finalAt(st); ok {
 			s.found(uint32(fo), c)
 		}
 	}
@@ -92,40 +95,21 @@ func (s *search) expand(i int32) int {
 	}
 	m := s.mins[i]
 	parts := s.act[nd.actLo:nd.actHi]
-	var edges []Edge
-	var set [4]uint64
-	var rs *[4]uint64
-	haveSet := false
-	if s.el != nil {
-		edges = s.el.AppendEdges(s.edges[0][:0], nd.state)
-		if len(edges) >= setMinEdges {
-			if s.below != nil {
-				rs = &s.rsBest
-				s.rsOut = rs
-			}
-			set, haveSet = s.allowed(row, prev, m, nd.c, parts), true
-			s.rsOut = nil
-		}
-	} else {
-		set, haveSet = s.allowed(row, prev, m, nd.c, parts), true
-		edges = s.edges[0][:0]
-		for wi, word := range set {
-			for word != 0 {
-				c := byte(wi<<6 | bits.TrailingZeros64(word))
-				word &= word - 1
-				next, out, ok := s.lex.Step(nd.state, c)
-				if ok && s.lex.CanMatch(next) {
-					edges = append(edges, Edge{Byte: c, Next: next, Out: out})
-				}
-			}
-		}
-	}
+	edges, lo, hi, set, haveSet, rs := s.listEdges(s.edges[0], nd.state, &s.rsBest, row, prev, m, nd.c, parts)
 	s.edges[0] = edges
 	pn := s.partialNext(&s.pnBest, parts)
 	d := int(nd.d) + 1
-	for k := range edges {
-		e := &edges[k]
-		c := e.Byte
+	tab := s.below
+	for k := lo; k < hi; k++ {
+		var c byte
+		var next int
+		var out uint64
+		if tab != nil {
+			c, next, out = tab.eb[k], int(tab.en[k]), uint64(tab.eo[k])
+		} else {
+			e := &edges[k]
+			c, next, out = e.Byte, e.Next, e.Out
+		}
 		if haveSet || plainByte[c>>6]&(1<<(c&63)) == 0 {
 			if !haveSet {
 				set, haveSet = s.allowed(row, prev, m, nd.c, parts), true
@@ -137,7 +121,7 @@ func (s *search) expand(i int32) int {
 		j := len(s.nodes)
 		s.growSlots(j + 1)
 		s.pnext, s.rnext = pn, rs
-		s.setChild(e.Next)
+		s.setChild(next)
 		base := s.extend(int(nd.actLo), int(nd.actHi), m, i, c)
 		s.pnext, s.rnext = nil, nil
 		g := int(nd.parent)
@@ -147,8 +131,8 @@ func (s *search) expand(i int32) int {
 			continue
 		}
 		if cost := s.rows[j*w+s.n]; cost <= s.budget {
-			if ok, fo := s.lex.Final(e.Next); ok {
-				s.found(uint32(nd.acc+e.Out+fo), cost)
+			if ok, fo := s.finalAt(next); ok {
+				s.found(uint32(nd.acc+out+fo), cost)
 			}
 		}
 		// Lower bound of any word below the child: with the letters-below
@@ -156,7 +140,7 @@ func (s *search) expand(i int32) int {
 		// way from the row it started at, and a transposition of the
 		// child's byte with the next from this node's row.
 		var lb float32
-		if s.below != nil {
+		if tab != nil {
 			lb = s.childBound(s.rows[j*w:(j+1)*w], row, cm, c, s.act[base:], s.childSetsNow())
 		} else {
 			lb = cm
@@ -175,7 +159,7 @@ func (s *search) expand(i int32) int {
 			continue // no word below is within budget
 		}
 		s.visited++ // counted like the depth-first walk's entered states
-		s.nodes = append(s.nodes, bfNode{state: e.Next, acc: nd.acc + e.Out, parent: i, d: int32(d), c: c, actLo: int32(base), actHi: int32(len(s.act))})
+		s.nodes = append(s.nodes, bfNode{state: next, acc: nd.acc + out, parent: i, d: int32(d), c: c, actLo: int32(base), actHi: int32(len(s.act))})
 		bk := int(lb * bucketsPerNat)
 		if bk >= len(s.buckets) {
 			bk = len(s.buckets) - 1
