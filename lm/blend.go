@@ -252,7 +252,7 @@ func (v *OverlayView) LogProb(ctx []uint32, w uint32) float64 {
 	}
 	if v.memo != nil {
 		if m := v.memo.p.Load(); m != nil && m.mu.TryLock() {
-			if m.ok && m.nctx == len(ctx) && m.ctx == m.key(ctx) {
+			if m.holds(v, ctx) {
 				lp := v.logProbMemo(&m.q, w, m)
 				m.mu.Unlock()
 				return lp

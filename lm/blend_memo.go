@@ -32,10 +32,15 @@ import (
 // (the facts table), so that the frequent words met after every history
 // are not looked up in the overlay's shards again.
 //
-// A memo belongs to one view, and views never change once published: a
-// Learn, Forget or Wipe publishes a new view with an empty memo, which is
-// what invalidates it. Concurrent callers of one view do not wait for each
-// other: a call that finds the memo in use runs without it.
+// Views never change once published, and what a memo holds is valid for
+// the view it was filled under (its view field) only. A Learn, Forget or
+// Wipe publishes a new view that takes over its predecessor's memo object
+// (about 170 KB, made by the overlay's first TopK call), so that its tables
+// need not be allocated and cleared again after every Learn; the first
+// call under the new view finds the memo's view different and empties it
+// (the word table and the facts table by a new generation, in O(1)).
+// Concurrent callers do not wait for each other: a call that finds the
+// memo in use, under its own view or another, runs without it.
 
 // memoEnt is one remembered entry of an evidence list.
 type memoEnt struct {
@@ -53,7 +58,8 @@ const (
 // topKMemo is the memo of a view (see above).
 type topKMemo struct {
 	mu     sync.Mutex
-	ok     bool // q holds the prepared history of ctx[:nctx]
+	view   *OverlayView // the view the memo's contents belong to
+	ok     bool         // q holds the prepared history of ctx[:nctx]
 	nctx   int
 	ctx    [MaxOrder]uint32
 	q      query
@@ -77,18 +83,28 @@ type topKMemo struct {
 	words [memoWords]memoWord
 	// What the view knows of words whatever the history, kept across
 	// histories (direct-mapped by tok; a colliding word replaces the one
-	// in its slot).
-	facts [factSlots]wordFacts
+	// in its slot). A slot is in use when its gen equals factGen; a new
+	// view starts a new generation.
+	factGen uint32
+	facts   [factSlots]wordFacts
 }
 
-// factSlots is the size of a memo's table of word facts (a power of two).
-const factSlots = 256
+// factSlots is the size of a memo's table of word facts (a power of two),
+// factBits its base-2 logarithm. Project choice, no source: on the root
+// BenchmarkSuggestOverlay 1,024 and 4,096 slots ran 2–3 % faster than 256
+// (fewer words looked up again after their slot was taken); the table is
+// allocated once per overlay, not per view (see publish).
+const (
+	factBits  = 12
+	factSlots = 1 << factBits
+)
 
 // wordFacts is what a view knows of a word whatever the history: its user
 // unigram entry and its recency-cache weight as a unigram, each looked up
 // on first use.
 type wordFacts struct {
 	tok1  uint32 // tok+1; 0: an empty slot
+	gen   uint32 // the slot is in use when gen is the memo's factGen
 	typed uint32
 	hasC  bool // uni, typed and cnt are known
 	hasCU bool // cu is known
@@ -100,9 +116,9 @@ type wordFacts struct {
 // factsOf returns tok's slot of the facts table, emptied first when it
 // held another word.
 func (m *topKMemo) factsOf(tok uint32) *wordFacts {
-	f := &m.facts[(tok*0x9E3779B1)>>(32-8)]
-	if f.tok1 != tok+1 {
-		*f = wordFacts{tok1: tok + 1}
+	f := &m.facts[(tok*0x9E3779B1)>>(32-factBits)]
+	if f.tok1 != tok+1 || f.gen != m.factGen {
+		*f = wordFacts{tok1: tok + 1, gen: m.factGen}
 	}
 	return f
 }
@@ -142,9 +158,16 @@ func (v *OverlayView) cacheUniOf(m *topKMemo, w uint32) float64 {
 	return f.cu
 }
 
-// memoWords is the size of a memo's word table (a power of two); it takes
-// at most three quarters of it.
-const memoWords = 128
+// memoWords is the size of a memo's word table (a power of two), memoBits
+// its base-2 logarithm; it takes at most three quarters of it. Project
+// choice, no source: 512 slots ran 1–2 % faster than 128 on the typed-prefix
+// keystrokes of the root BenchmarkSuggestOverlay (fewer words of a long
+// word's keystrokes left unremembered); the table is allocated once per
+// overlay (see publish).
+const (
+	memoBits  = 9
+	memoWords = 1 << memoBits
+)
 
 // memoWord is what a memo knows of one word under its history.
 type memoWord struct {
@@ -158,7 +181,7 @@ type memoWord struct {
 
 // slotOf returns the table index where tok is or would go.
 func (m *topKMemo) slotOf(tok uint32) int {
-	i := int((tok * 0x9E3779B1) >> (32 - 7))
+	i := int((tok * 0x9E3779B1) >> (32 - memoBits))
 	for m.words[i].gen == m.gen && m.words[i].tok != tok {
 		i = (i + 1) & (memoWords - 1)
 	}
@@ -193,9 +216,10 @@ func (m *topKMemo) add(tok uint32) *memoWord {
 	return w
 }
 
-// memoSlot holds a view's memo, made by the view's first TopK call, and
-// the counter that picks the length of the base list (see noteShort in
-// blend_topk.go), updated by TopK calls that hold the memo.
+// memoSlot holds a view's memo, taken over from the view before it or
+// else made by the view's first TopK call, and the view's counter that
+// picks the length of the base list (see noteShort in blend_topk.go),
+// updated by TopK calls that hold the memo.
 type memoSlot struct {
 	p     atomic.Pointer[topKMemo]
 	short atomic.Int32
@@ -210,20 +234,63 @@ func (s *memoSlot) get() *topKMemo {
 	return s.p.Load()
 }
 
-// publish makes v the overlay's current view, with an empty memo and the
-// previous view's base-list counter.
+// publish makes v the overlay's current view, with the previous view's
+// memo object (emptied by the first call under v, see reset) and
+// base-list counter.
 func (o *Overlay) publish(v *OverlayView) {
 	s := new(memoSlot)
 	if old := o.cur.Load(); old != nil && old.memo != nil {
 		s.short.Store(old.memo.short.Load())
+		if m := old.memo.p.Load(); m != nil {
+			m.release()
+			s.p.Store(m)
+		}
 	}
 	v.memo = s
 	o.cur.Store(v)
 }
 
+// reset empties the memo for view v, whose memo it becomes: nothing filled
+// under another view is used again. The caller holds the memo locked.
+func (m *topKMemo) reset(v *OverlayView) {
+	m.view = v
+	m.ok = false
+	m.state = [nStreams]uint8{}
+	m.baseState = memoNone
+	m.prefix = ""
+	m.factGen++
+	if m.factGen == 0 { // after 2³² resets: clear the table once
+		m.facts = [factSlots]wordFacts{}
+		m.factGen = 1
+	}
+}
+
+// release drops the memo's references into the view it was filled under,
+// so that the memo does not keep a superseded view (one a Forget or Wipe
+// replaced, say) reachable. It does nothing while a caller holds the memo;
+// that caller's view is reachable anyway, and the next call under another
+// view empties the memo.
+func (m *topKMemo) release() {
+	if !m.mu.TryLock() {
+		return
+	}
+	m.reset(nil)
+	m.q = query{}
+	m.mu.Unlock()
+}
+
+// holds reports whether the memo, which the caller holds locked, holds the
+// prepared history ctx (already cut to the base model's order) of view v.
+func (m *topKMemo) holds(v *OverlayView, ctx []uint32) bool {
+	return m.view == v && m.ok && m.nctx == len(ctx) && m.ctx == m.key(ctx)
+}
+
 // begin prepares the memo for a TopK call with history ctx (already cut to
 // the base model's order) and range r, and returns the prepared history.
 func (m *topKMemo) begin(v *OverlayView, ctx []uint32, r *rangeQ) *query {
+	if m.view != v {
+		m.reset(v)
+	}
 	if key := m.key(ctx); !m.ok || m.nctx != len(ctx) || m.ctx != key {
 		v.prepare(ctx, &m.q)
 		m.ok, m.nctx, m.ctx = true, len(ctx), key

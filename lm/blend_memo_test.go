@@ -98,10 +98,87 @@ func TestOverlayTopKKeystrokes(t *testing.T) {
 			}
 			nv := ov.View()
 			if nv == v || nv.memo == v.memo {
-				t.Fatal("Learn did not publish a new view with its own memo")
+				t.Fatal("Learn did not publish a new view with its own memo slot")
 			}
 			check(nv, ctx, w[:min(2, len(w))], 3)
 			check(nv, ctx, w, 3)
+		})
+	}
+}
+
+// A new view takes over its predecessor's memo object (see publish), so
+// nothing the memo learned under one view may leak into another's answers.
+// A Learn between keystrokes changes the user's counts and the recency
+// cache; after it, keystrokes alternate between the new view and the old
+// one (a reader may still hold it), each time through the one shared memo.
+// Every TopK must equal ranking every word by LogProb on a copy of its view
+// without a memo (bruteBlend: the blend's definition, an exhaustive path
+// that shares only the blend formula with TopK), and every LogProb must
+// equal the memo-less copy's, exactly. Cross-check of two code paths of the
+// project, no external source. The handed-over memo must also hold no
+// reference into the superseded view (so that a Forget or Wipe does not
+// leave the old view reachable through it).
+func TestOverlayMemoAcrossViews(t *testing.T) {
+	d := ksrSetup(t)
+	n := len(d.sentences)
+	ov, err := NewOverlay(d.base.m, bvocab{d.base.b}, OverlayOptions{MinTyped: 1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	learnAll(ov, d.sentences[:n/2])
+	bare := func(v *OverlayView) *OverlayView {
+		c := *v
+		c.memo = nil
+		return &c
+	}
+	check := func(name string, v *OverlayView, ctx []uint32, prefix string) {
+		t.Helper()
+		lo, hi := prefixRange(d.base.b.Vocab, prefix)
+		got := v.TopK(ctx, prefix, lo, hi, 3, nil)
+		want := bruteBlend(bare(v), ctx, prefix, lo, hi, 3)
+		if !sameScored(got, want, 1e-12) {
+			t.Errorf("%s: TopK(ctx %v, prefix %q) = %v, want %v", name, ctx, prefix, words(v, got), words(v, want))
+		}
+		for _, s := range want {
+			if lp, ref := v.LogProb(ctx, s.ID), bare(v).LogProb(ctx, s.ID); lp != ref {
+				t.Errorf("%s: LogProb(ctx %v, %q) = %v, want %v", name, ctx, v.Word(s.ID), lp, ref)
+			}
+		}
+	}
+	for _, c := range []struct {
+		name string
+		s    []string
+	}{
+		{"first-test-sentence", d.sentences[n/2]},
+		{"last-sentence", d.sentences[n-1]},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			old := ov.View()
+			ctx := []uint32{old.bos}
+			w := c.s[0]
+			check("old view", old, ctx, "")
+			check("old view", old, ctx, w[:1])
+			for range 3 {
+				ov.Learn(strings.Join(c.s, " ")+".", n)
+			}
+			nv := ov.View()
+			m := nv.memo.p.Load()
+			if nv == old || m != old.memo.p.Load() {
+				t.Fatal("Learn did not publish a new view sharing its predecessor's memo: the test does not reach the shared path")
+			}
+			if m.view != nil || m.q.n2 != (nref{}) || m.q.cMain != nil {
+				t.Error("the handed-over memo still refers to the superseded view")
+			}
+			for i := 0; i <= len(w); i++ {
+				check("new view", nv, ctx, w[:i])
+				check("old view", old, ctx, w[:i])
+			}
+			id, ok := nv.ID(w)
+			if !ok {
+				id = nv.unk
+			}
+			check("new view, next word", nv, append(ctx, id), "")
+			check("old view, next word", old, append(ctx, id), "")
 		})
 	}
 }

@@ -110,6 +110,16 @@ type stream struct {
 	stage int8
 }
 
+// keep offers an entry met by a scan to the stream's buffer of best
+// entries. An entry below the buffer's last, once the buffer is full, is
+// dropped without a call (most entries of a long scan are).
+func (s *stream) keep(tok uint32, val float64) {
+	if b := &s.buf; b.n == b.k && val < b.buf[b.n-1].LogP {
+		return
+	}
+	s.buf.push(Scored{ID: tok, LogP: val})
+}
+
 // frontier returns an upper bound of the value of any entry not yet met.
 func (s *stream) frontier() float64 {
 	switch {
@@ -443,6 +453,10 @@ type thresholdSearch struct {
 	shortOK bool      // after a search of k+1 base words: one of k would have passed its check
 	memo    *topKMemo // nil: scan the lists themselves
 	cands   baseCands // the base candidates scored for the top list, when it was not reused
+	// γ·(largest value) and γ·(frontier) of each list, the latter as the
+	// search loop last computed it: a word is met while only the list it
+	// is met in has moved since.
+	wMax, wFront [nStreams]float64
 }
 
 func (t *thresholdSearch) run(m int) bool {
@@ -485,6 +499,7 @@ func (t *thresholdSearch) run(m int) bool {
 	}
 	for si := range t.st {
 		t.st[si].max = v.streamBound(si, q)
+		t.wMax[si] = t.c.gamma[si] * t.st[si].max
 		if t.st[si].max == 0 {
 			t.st[si].stage = 3
 		}
@@ -495,6 +510,7 @@ func (t *thresholdSearch) run(m int) bool {
 		pick, heaviest := -1, 0.0
 		for si := range t.st {
 			w := t.c.gamma[si] * t.st[si].frontier()
+			t.wFront[si] = w
 			bound += w
 			if w > heaviest {
 				pick, heaviest = si, w
@@ -522,8 +538,8 @@ func (t *thresholdSearch) run(m int) bool {
 			s.stage, s.pos, s.buf.n, s.buf.k = 2, 0, 0, MaxK
 			n := 0
 			t.scan(pick, func(tok uint32, val float64) {
-				s.buf.push(Scored{ID: tok, LogP: val})
 				n++
+				s.keep(tok, val)
 			})
 			s.tail = 0
 			if n > s.buf.k {
@@ -576,7 +592,7 @@ func (t *thresholdSearch) consider(si int, tok uint32, val float64) {
 		ub := own
 		for sj := range t.st {
 			if sj != si {
-				ub += c.gamma[sj] * t.st[sj].max
+				ub += t.wMax[sj]
 			}
 		}
 		if ub*boundMargin < t.kth {
@@ -595,13 +611,13 @@ func (t *thresholdSearch) consider(si int, tok uint32, val float64) {
 	var ev evidence
 	var bnd [nStreams]float64
 	ub := own
+	w := &t.wFront
+	if t.full {
+		w = &t.wMax
+	}
 	for sj := range t.st {
 		if sj != si {
-			b := t.st[sj].max
-			if !t.full {
-				b = t.st[sj].frontier()
-			}
-			bnd[sj] = c.gamma[sj] * b
+			bnd[sj] = w[sj]
 			ub += bnd[sj]
 		}
 	}
@@ -744,7 +760,7 @@ func (v *OverlayView) stage1(si int, s *stream, q *query, r *rangeQ) {
 		top := nd.best()
 		if top == nil { // a small node: read it whole in order
 			s.stage, s.buf.k = 2, MaxK
-			v.scanNode(nd, r, func(tok uint32, val float64) { s.buf.push(Scored{ID: tok, LogP: val}) })
+			v.scanNode(nd, r, s.keep)
 			return
 		}
 		v.bestList(s, r, top.e[:top.n], nd.size() > top.n)
