@@ -182,3 +182,53 @@ func BenchmarkWidePass(b *testing.B) {
 		})
 	}
 }
+
+// BenchmarkCorrect8Easy corrects, with the engine's cap, only the 8-letter
+// misspellings of BenchmarkCorrect8 whose DP rows (Corrector.work) are at
+// or below the median: the words that set the median latency, for
+// profiling them apart from the long tail. It reports the mean time per
+// word and the typed-word setup alone (prepare) per word, and the words
+// taken and their most rows.
+func BenchmarkCorrect8Easy(b *testing.B) {
+	d := corpus(b)
+	lex := newTrieLex(b, d.subtlexLex)
+	c, err := New(lex, d.unigramScorer(d.subtlexLex), Options{MaxStates: benchCap})
+	if err != nil {
+		b.Fatal(err)
+	}
+	all := eightLetterTyped(b)
+	rows := make([]int, len(all))
+	for i, w := range all {
+		_, rows[i] = c.work(w)
+	}
+	sorted := slices.Clone(rows)
+	slices.Sort(sorted)
+	med := sorted[len(sorted)/2]
+	var easy []string
+	for i, w := range all {
+		if rows[i] <= med {
+			easy = append(easy, w)
+		}
+	}
+	b.Run("correct", func(b *testing.B) {
+		var buf []Candidate
+		i := 0
+		b.ReportAllocs()
+		for b.Loop() {
+			buf, _ = c.Correct(easy[i%len(easy)], nil, 3, buf)
+			i++
+		}
+		b.ReportMetric(float64(len(easy)), "words")
+		b.ReportMetric(float64(med), "rows-max")
+	})
+	b.Run("prepare", func(b *testing.B) {
+		var s search
+		s.order, s.below = c.order, c.below
+		i := 0
+		b.ReportAllocs()
+		for b.Loop() {
+			s.reset(c.ch, c.lex, easy[i%len(easy)], float32(c.opts.MaxCost), len(easy[i%len(easy)])+maxExtra)
+			i++
+		}
+	})
+}

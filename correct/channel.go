@@ -41,6 +41,11 @@ const accentCost = 1.5
 type chRule struct {
 	alpha, beta string
 	cost        float32
+	// The classes (belowBit) of alpha's bytes, of alpha[1] and of
+	// alpha[2:] (zero where alpha is shorter), for the search's
+	// letters-below tables (below.go), so that it need not compute them
+	// for each typed word.
+	alphaBits, next1, rest2 uint32
 }
 
 // costOpt is one byte and its cost, for lists sorted by cost.
@@ -156,7 +161,11 @@ func newChannel(kb *Keyboard, em *ErrorModel) *channel {
 			ch.del[a[0]] = min(ch.del[a[0]], cost)
 		default:
 			ch.byBeta[b] = append(ch.byBeta[b], int32(len(ch.rules)))
-			ch.rules = append(ch.rules, chRule{alpha: a, beta: b, cost: cost})
+			cr := chRule{alpha: a, beta: b, cost: cost, alphaBits: classBits(a)}
+			if len(a) > 1 {
+				cr.next1, cr.rest2 = belowBit(a[1]), classBits(a[2:])
+			}
+			ch.rules = append(ch.rules, cr)
 			ch.maxAlpha = max(ch.maxAlpha, len(a))
 		}
 	}

@@ -46,6 +46,21 @@ type appRule struct {
 	lb    int
 	cost  float32
 	ends  uint64 // bit e: β ends at typed position e
+	// Copied from chRule: the classes (belowBit) of alpha, and with more
+	// than one intended byte those of alpha[1] and of alpha[2:], for
+	// prepareBelow and canStart.
+	alphaBits, next1, rest2 uint32
+}
+
+// ruleHead is what extend reads of a rule before starting it, kept
+// together per first intended byte (search.first) so that trying the
+// rules of a byte reads one short array: the rule's cost, its index in
+// search.rules, and the typed positions it can start after (bit x: its
+// typed side starts at x).
+type ruleHead struct {
+	cost   float32
+	rule   int32
+	starts uint64
 }
 
 // partial is a rule whose intended side has been matched for k bytes,
@@ -74,17 +89,17 @@ type search struct {
 	extra     []float32
 	path      []byte
 	ins       []float32
-	subC      []float32     // subC[c*n+j]: intended c typed as t[j]; 0 when equal
-	pos       [256]uint64   // bit j: t[j] is the byte
-	rules     []appRule     // sorted by cost
-	order     *ruleOrder    // the channel's rules by cost (built if nil or for another channel)
-	ruleSet   []uint64      // while collecting rules: bit r for rank r (else zero)
-	ruleEnds  []uint64      // while collecting rules: their ends, by rank
-	ruleMask  [][4]uint64   // ruleMask[i]: first intended bytes of rules[:i+1]
-	startOff  []int32       // startTab[startOff[x]:startOff[x+1]]: typed position x (rulestart.go)
-	startTab  []startStep   // first bytes of the rules starting at each typed position, by cost
-	startBy   [][]startStep // prepareStarts' per-position lists
-	first     [256][]int32
+	subC      []float32       // subC[c*n+j]: intended c typed as t[j]; 0 when equal
+	pos       [256]uint64     // bit j: t[j] is the byte
+	rules     []appRule       // sorted by cost
+	order     *ruleOrder      // the channel's rules by cost (built if nil or for another channel)
+	ruleSet   []uint64        // while collecting rules: bit r for rank r (else zero)
+	ruleEnds  []uint64        // while collecting rules: their ends, by rank
+	ruleMask  [][4]uint64     // ruleMask[i]: first intended bytes of rules[:i+1] (only with below nil)
+	startOff  []int32         // startTab[startOff[x]:startOff[x+1]]: typed position x (rulestart.go)
+	startTab  []startStep     // first bytes of the rules starting at each typed position, by cost
+	startBy   [][]startStep   // prepareStarts' per-position lists
+	first     [256][]ruleHead // rules by first intended byte, by cost
 	usedFirst []byte
 	act       []partial // partial rule matches, stacked by depth
 	actStart  []int     // act[actStart[d]:actEnd[d]] belongs to depth d
@@ -99,6 +114,7 @@ type search struct {
 	edges     [][]Edge  // per depth
 	rk        *ranker   // if not nil, takes the words found instead of hits
 	prepCh    *channel  // channel the typed-word tables were prepared for
+	prepBelow bool      // whether they were prepared with the letters-below table
 	nodes     []bfNode  // best-first: queued prefixes, by slot
 	buckets   [][]int32 // best-first: slots by quantized lower bound
 	// rowsDone counts the DP rows computed (for benchmarks; reset by the
@@ -120,6 +136,8 @@ type search struct {
 	hsCache    []float32                // leftOver answers, n+1 per slot
 	hsKeys     [1 << hsCacheBits]uint32 // below set + 1 of each hsCache slot
 	hzero      []float32                // n+1 zeros
+	missLow    []float32                // per typed byte, see prepareBelow
+	hlow       []float32                // floorBound's scratch, n+1
 	pnext      *[4]uint64               // if not nil: the bytes the parent's partials wait for
 	childState int                      // node of the child prefix extend works for (see setChild)
 	pnDepth    [][4]uint64              // partialNext sets of the depth-first walk, by depth
@@ -161,7 +179,7 @@ type EdgeLister interface {
 // Intended words are followed to depth maxDepth.
 func (s *search) reset(ch *channel, lex Lexicon, typed string, budget float32, maxDepth int) {
 	s.ch, s.lex, s.budget = ch, lex, budget
-	same := s.prepCh == ch && string(s.t) == typed
+	same := s.prepCh == ch && string(s.t) == typed && s.prepBelow == (s.below != nil)
 	if !same {
 		s.t = s.t[:0]
 		s.t = append(s.t, typed...)
@@ -219,7 +237,7 @@ func (s *search) reset(ch *channel, lex Lexicon, typed string, budget float32, m
 // prepare fills the tables that depend only on the channel and the typed
 // word (s.t), so that the passes of one Correct call compute them once.
 func (s *search) prepare(ch *channel) {
-	s.prepCh = ch
+	s.prepCh, s.prepBelow = ch, s.below != nil
 	s.ins = grow(s.ins, s.n)
 	ch.insCosts(s.t, s.ins)
 	n := s.n
@@ -274,7 +292,8 @@ func (s *search) prepare(ch *channel) {
 			word &= word - 1
 			ri := byRank[r]
 			cr := &ch.rules[ri]
-			s.rules = append(s.rules, appRule{src: ri, alpha: cr.alpha, la: len(cr.alpha), lb: len(cr.beta), cost: cr.cost, ends: s.ruleEnds[r]})
+			s.rules = append(s.rules, appRule{src: ri, alpha: cr.alpha, la: len(cr.alpha), lb: len(cr.beta), cost: cr.cost, ends: s.ruleEnds[r],
+				alphaBits: cr.alphaBits, next1: cr.next1, rest2: cr.rest2})
 			s.ruleEnds[r] = 0
 		}
 		s.ruleSet[wi] = 0
@@ -283,12 +302,18 @@ func (s *search) prepare(ch *channel) {
 	var rm [4]uint64
 	for i := range s.rules {
 		c := s.rules[i].alpha[0]
-		rm[c>>6] |= 1 << (c & 63)
-		s.ruleMask = append(s.ruleMask, rm)
+		if s.below == nil { // allowed reads ruleMask only without the table
+			rm[c>>6] |= 1 << (c & 63)
+			s.ruleMask = append(s.ruleMask, rm)
+		}
 		if len(s.first[c]) == 0 {
 			s.usedFirst = append(s.usedFirst, c)
 		}
-		s.first[c] = append(s.first[c], int32(i))
+		var starts uint64
+		for ends := s.rules[i].ends; ends != 0; ends &= ends - 1 {
+			starts |= 1 << (bitIndex64(ends) - s.rules[i].lb)
+		}
+		s.first[c] = append(s.first[c], ruleHead{cost: s.rules[i].cost, rule: int32(i), starts: starts})
 	}
 	s.prepareStarts()
 	s.prepareBelow()
@@ -642,9 +667,8 @@ func (s *search) extend(lo, hi int, m float32, from int32, c byte) int {
 		}
 	}
 	var row []float32
-	for _, ri := range first {
-		r := &s.rules[ri]
-		if m+r.cost > s.budget {
+	for _, f := range first {
+		if m+f.cost > s.budget {
 			break // first[c] is sorted by cost
 		}
 		if s.below != nil {
@@ -656,17 +680,18 @@ func (s *search) extend(lo, hi int, m float32, from int32, c byte) int {
 				row = s.rows[int(from)*s.w : (int(from)+1)*s.w]
 			}
 			v := inf
-			for ends := r.ends; ends != 0; ends &= ends - 1 {
-				v = min(v, row[bitIndex64(ends)-r.lb])
+			for st := f.starts; st != 0; st &= st - 1 {
+				v = min(v, row[bitIndex64(st)])
 			}
-			if v+r.cost > s.budget {
+			if v+f.cost > s.budget {
 				continue
 			}
 		}
-		p := partial{rule: ri, k: 1, from: from}
+		r := &s.rules[f.rule]
+		p := partial{rule: f.rule, k: 1, from: from}
 		if r.la == 1 {
 			s.done = append(s.done, p)
-		} else if s.below == nil || s.canFinish(r.alpha[1:]) {
+		} else if s.below == nil || s.canStart(r) {
 			p.next = r.alpha[1]
 			s.act = append(s.act, p)
 		}
