@@ -320,14 +320,7 @@ func TestCorrectDevCrossValidated(t *testing.T) {
 	const folds = 5
 	n, top1, top3 := 0, 0, 0
 	for k := range folds {
-		var train, test []correct.Pair
-		for i, p := range pairs {
-			if i%folds == k {
-				test = append(test, p)
-			} else {
-				train = append(train, p)
-			}
-		}
+		train, test := correct.SplitPairs(pairs, k, folds)
 		e := openEnglish(t, data, Options{ErrorModel: correct.TrainErrorModel(train, correct.TrainOptions{})})
 		for _, p := range test {
 			c, err := e.Correct(p.Typed)

@@ -568,20 +568,7 @@ func (s *search) childBound(row, prev []float32, m float32, c byte, parts []part
 		hs = s.leftOver(missPos, below)
 	}
 	lb := row[n]
-	for _, p := range parts {
-		r := &s.rules[p.rule]
-		base := s.rows[int(p.from)*w : (int(p.from)+1)*w]
-		for ends := r.ends; ends != 0; ends &= ends - 1 {
-			e := bitIndex64(ends)
-			lb = min(lb, base[e-r.lb]+r.cost+hs[e])
-		}
-	}
-	if prev != nil && s.ch.trans < inf {
-		for ps := s.pos[c] &^ 1; ps != 0; ps &= ps - 1 {
-			x := bitIndex64(ps)
-			lb = min(lb, prev[x-1]+s.ch.trans+hs[x+1])
-		}
-	}
+	lb = s.partsBound(lb, prev, c, parts, hs)
 	for j := 0; j < n; j++ {
 		v := row[j] + hs[j]
 		if v >= lb {
@@ -595,6 +582,28 @@ func (s *search) childBound(row, prev []float32, m float32, c byte, parts []part
 	return lb
 }
 
+// partsBound lowers lb to the cheapest way below that ends a rule under
+// way (parts) or transposes c with the next typed byte, with h[j] the
+// price of the typed bytes from position j on left to pay.
+func (s *search) partsBound(lb float32, prev []float32, c byte, parts []partial, h []float32) float32 {
+	w := s.w
+	for _, p := range parts {
+		r := &s.rules[p.rule]
+		base := s.rows[int(p.from)*w : (int(p.from)+1)*w]
+		for ends := r.ends; ends != 0; ends &= ends - 1 {
+			e := bitIndex64(ends)
+			lb = min(lb, base[e-r.lb]+r.cost+h[e])
+		}
+	}
+	if prev != nil && s.ch.trans < inf {
+		for ps := s.pos[c] &^ 1; ps != 0; ps &= ps - 1 {
+			x := bitIndex64(ps)
+			lb = min(lb, prev[x-1]+s.ch.trans+h[x+1])
+		}
+	}
+	return lb
+}
+
 // floorBound is childBound's bound with each typed byte left over (in
 // missPos) priced at its floor, missLow, instead of by missCost: a lower
 // bound on childBound's value, computed without looking at the state's
@@ -602,7 +611,7 @@ func (s *search) childBound(row, prev []float32, m float32, c byte, parts []part
 // when there is none, a value above budget (then so is childBound's
 // bound).
 func (s *search) floorBound(row, prev []float32, c byte, parts []partial, missPos, stepPos uint64, next, cbit uint32) float32 {
-	w, n, budget := s.w, s.n, s.budget
+	n, budget := s.n, s.budget
 	fl := s.hlow[:n+1]
 	h := float32(0)
 	fl[n] = 0
@@ -616,20 +625,7 @@ func (s *search) floorBound(row, prev []float32, c byte, parts []partial, missPo
 	if lb <= budget {
 		return lb
 	}
-	for _, p := range parts {
-		r := &s.rules[p.rule]
-		base := s.rows[int(p.from)*w : (int(p.from)+1)*w]
-		for ends := r.ends; ends != 0; ends &= ends - 1 {
-			e := bitIndex64(ends)
-			lb = min(lb, base[e-r.lb]+r.cost+fl[e])
-		}
-	}
-	if prev != nil && s.ch.trans < inf {
-		for ps := s.pos[c] &^ 1; ps != 0; ps &= ps - 1 {
-			x := bitIndex64(ps)
-			lb = min(lb, prev[x-1]+s.ch.trans+fl[x+1])
-		}
-	}
+	lb = s.partsBound(lb, prev, c, parts, fl)
 	if lb <= budget {
 		return lb
 	}

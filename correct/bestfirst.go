@@ -101,15 +101,7 @@ func (s *search) expand(i int32) int {
 	d := int(nd.d) + 1
 	tab := s.below
 	for k := lo; k < hi; k++ {
-		var c byte
-		var next int
-		var out uint64
-		if tab != nil {
-			c, next, out = tab.eb[k], int(tab.en[k]), uint64(tab.eo[k])
-		} else {
-			e := &edges[k]
-			c, next, out = e.Byte, e.Next, e.Out
-		}
+		c, next, out := s.edgeAt(edges, k)
 		if haveSet || plainByte[c>>6]&(1<<(c&63)) == 0 {
 			if !haveSet {
 				set, haveSet = s.allowed(row, prev, m, nd.c, parts), true

@@ -381,3 +381,43 @@ func TestCorrectRareKnownWord(t *testing.T) {
 		})
 	}
 }
+
+// TestSplitPairs checks the cross-validation split: every pair lands in
+// exactly one test fold, in list order, and the training part of a fold
+// is everything else (the usual k-fold definition; common practice, no
+// source).
+func TestSplitPairs(t *testing.T) {
+	pairs := make([]Pair, 11)
+	for i := range pairs {
+		pairs[i] = Pair{Typed: string(rune('a' + i))}
+	}
+	seen := map[string]int{}
+	for k := range 3 {
+		train, test := SplitPairs(pairs, k, 3)
+		if len(train)+len(test) != len(pairs) {
+			t.Fatalf("fold %d: %d + %d pairs, want %d", k, len(train), len(test), len(pairs))
+		}
+		for j, p := range test {
+			if want := pairs[k+3*j].Typed; p.Typed != want {
+				t.Errorf("fold %d test[%d] = %q, want %q", k, j, p.Typed, want)
+			}
+			seen[p.Typed]++
+		}
+		for _, p := range train {
+			if (int(p.Typed[0]-'a'))%3 == k {
+				t.Errorf("fold %d: %q is in both parts", k, p.Typed)
+			}
+		}
+	}
+	if len(seen) != len(pairs) {
+		t.Errorf("%d pairs tested once, want %d", len(seen), len(pairs))
+	}
+	for _, c := range []struct {
+		name     string
+		k, folds int
+	}{{"no folds", 0, 0}, {"one fold", 0, 1}, {"k out of range", 5, 3}} {
+		if train, test := SplitPairs(pairs, c.k, c.folds); len(train) != len(pairs) || len(test) != 0 {
+			t.Errorf("%s: %d training, %d test pairs; want all for training", c.name, len(train), len(test))
+		}
+	}
+}

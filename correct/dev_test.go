@@ -107,14 +107,7 @@ func TestDevAccuracy(t *testing.T) {
 	const k = 5
 	var cv devScore
 	for f := 0; f < k; f++ {
-		var train, test []Pair
-		for i, p := range pairs {
-			if i%k == f {
-				test = append(test, p)
-			} else {
-				train = append(train, p)
-			}
-		}
+		train, test := SplitPairs(pairs, f, k)
 		em := TrainErrorModel(train, TrainOptions{})
 		cf, _, _ := devCorrector(t, Options{ErrorModel: em})
 		fs := scoreDev(cf, test, nil)

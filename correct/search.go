@@ -471,15 +471,7 @@ func (s *search) visit(d int, state int, acc uint64) {
 	pn := s.partialNext(&s.pnDepth[d], parts)
 	g := s.below
 	for k := lo; k < hi; k++ {
-		var c byte
-		var next int
-		var out uint64
-		if g != nil {
-			c, next, out = g.eb[k], int(g.en[k]), uint64(g.eo[k])
-		} else {
-			e := &edges[k]
-			c, next, out = e.Byte, e.Next, e.Out
-		}
+		c, next, out := s.edgeAt(edges, k)
 		if haveSet || plainByte[c>>6]&(1<<(c&63)) == 0 {
 			// A byte outside the alphabet is tried only where the typed
 			// word, a cheap edit or a rule suggests it.
@@ -507,6 +499,17 @@ func (s *search) visit(d int, state int, acc uint64) {
 		}
 		s.act = s.act[:base]
 	}
+}
+
+// edgeAt returns the byte, target state and output of edge k of the
+// state listEdges listed: from the automaton copy when the search walks
+// one (k indexes its edge arrays), else from the listed edges.
+func (s *search) edgeAt(edges []Edge, k int) (c byte, next int, out uint64) {
+	if t := s.below; t != nil {
+		return t.eb[k], int(t.en[k]), uint64(t.eo[k])
+	}
+	e := &edges[k]
+	return e.Byte, e.Next, e.Out
 }
 
 // spent returns the work the cap counts: rows computed (with capRows) or

@@ -16,6 +16,21 @@ type Pair struct {
 	Intended []string
 }
 
+// SplitPairs returns fold k of a folds-way split of pairs for
+// cross-validating an error model: the pairs whose index is k modulo folds
+// are the test part, the others the training part, both in list order.
+// With folds < 2 or k outside [0, folds) every pair is for training.
+func SplitPairs(pairs []Pair, k, folds int) (train, test []Pair) {
+	for i, p := range pairs {
+		if folds >= 2 && i%folds == k {
+			test = append(test, p)
+		} else {
+			train = append(train, p)
+		}
+	}
+	return train, test
+}
+
 // ParsePairs reads a misspelling list: UTF-8 lines "TYPED<TAB>WORD[,WORD...]",
 // '#' comment lines and blank lines skipped. It returns an error wrapping
 // ErrErrorModel on a line without a tab or with invalid UTF-8.

@@ -74,14 +74,7 @@ func evalCorrect(ctx context.Context, e *env, model, user, layout, path string, 
 		}
 	}
 	for k := 0; k < folds && ctx.Err() == nil; k++ {
-		var train, test []correct.Pair
-		for i, p := range pairs {
-			if i%folds == k {
-				test = append(test, p)
-			} else {
-				train = append(train, p)
-			}
-		}
+		train, test := correct.SplitPairs(pairs, k, folds)
 		fmt.Fprintf(e.stderr, "fold %d of %d: training on %d pairs, correcting %d\n", k+1, folds, len(train), len(test))
 		if err := t.run(ctx, e, model, user, layout, correct.TrainErrorModel(train, correct.TrainOptions{}), test); err != nil {
 			return err
