@@ -76,7 +76,7 @@ const DefaultAutoApplyConfidence = 0.8
 // cap. The engine's figures on the development list itself hide this (its
 // error model was trained there: no loss down to 3,000). Words that reach
 // the cap are the badly misspelled ones; the cap makes them take up to
-// about 11 ms on this project's machine (BENCHMARKS.md).
+// about 7 ms on this project's machine (BENCHMARKS.md).
 const DefaultCorrectionStates = 25000
 
 func (o Options) withDefaults() (Options, error) {
