@@ -125,7 +125,8 @@ func (c *Corrector) work(w string) (states, rows int) {
 	var sc scratch
 	id, inLex := c.lex.ID(w)
 	sc.rk.start(c, nil, id, inLex, 8, nil)
-	_, states = c.searchPasses(&sc.s, &sc.rk, w, inLex, !c.depthFirst)
+	widest, _ := c.widestPass(w, id, inLex, inLex)
+	_, states = c.searchUpTo(&sc.s, &sc.rk, w, widest, !c.depthFirst)
 	return states, sc.s.rowsDone
 }
 

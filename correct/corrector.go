@@ -303,16 +303,7 @@ func (c *Corrector) Correct(typed string, context []uint32, max int, dst []Candi
 	s := &sc.s
 	rk := &sc.rk
 	rk.start(c, context, typedID, inLex, keepN, sc.top)
-	rare := inLex && c.rare(lower, typedID)
-	// A known word gets the narrow pass only; a rare one the middle pass
-	// too (rarePass).
-	widest := o.MaxCost
-	switch {
-	case rare:
-		widest = rarePass
-	case known:
-		widest = firstPass
-	}
+	widest, rare := c.widestPass(lower, typedID, inLex, known)
 	c.searchUpTo(s, rk, lower, widest, !c.depthFirst)
 	c.addFamily(rk, lower) // stems typed with another ending (family.go)
 	rk.addSound(lower)     // the sound feature (rank.go)
@@ -464,13 +455,18 @@ func (c *Corrector) searchUpTo(s *search, rk *ranker, lower string, widest float
 	return used, states
 }
 
-// searchPasses is searchUpTo with the widest pass that Correct gives a
-// word the lexicon or the user knows (known, not rare: the narrow pass
-// alone) or any other word (Options.MaxCost).
-func (c *Corrector) searchPasses(s *search, rk *ranker, lower string, known, bestFirst bool) (used, states int) {
-	widest := c.opts.MaxCost
-	if known {
-		widest = firstPass
+// widestPass returns the budget of the widest pass Correct searches a
+// typed word with (lower; id is its lexicon ID when inLex, known says
+// whether the lexicon or the user knows it), and whether it is a rare
+// listed word (Options.RareLogProb): the middle pass (rarePass) for a
+// rare one, the narrow pass alone for another known word, the full
+// budget for the rest.
+func (c *Corrector) widestPass(lower string, id uint32, inLex, known bool) (widest float64, rare bool) {
+	switch {
+	case inLex && c.rare(lower, id):
+		return rarePass, true
+	case known:
+		return firstPass, false
 	}
-	return c.searchUpTo(s, rk, lower, widest, bestFirst)
+	return c.opts.MaxCost, false
 }
