@@ -298,7 +298,7 @@ func (e *Engine) lexiconOnly(field string) (uint32, bool) {
 // as typed (surrounding punctuation left out). A word that Correct would
 // split in two ("aboutthe") gets no corrections here.
 func (e *Engine) CorrectWord(history []string, typed string) (offered []string, apply, known bool, err error) {
-	_, known = e.model.Lex.ID(lm.Fold(trimWord(typed)))
+	known = e.Listed(typed)
 	c, err := e.Correct(strings.Join(history, " ") + " " + typed)
 	if err != nil || c == nil || strings.Contains(c.Typed, " ") {
 		return nil, false, known, err
@@ -308,6 +308,14 @@ func (e *Engine) CorrectWord(history []string, typed string) (offered []string, 
 		offered = append(offered, lm.Fold(a))
 	}
 	return offered, c.Apply, known, nil
+}
+
+// Listed reports whether the lexicon lists word, ignoring the punctuation
+// around it and its case: a word Correct treats as known (so do the words
+// the user taught, which this does not report).
+func (e *Engine) Listed(word string) bool {
+	_, ok := e.model.Lex.ID(lm.Fold(trimWord(word)))
+	return ok
 }
 
 // trimWord returns w without the punctuation around it.

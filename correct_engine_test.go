@@ -348,3 +348,28 @@ func TestCorrectDevCrossValidated(t *testing.T) {
 		t.Errorf("cross-validated top-1 %.2f%%, top-3 %.2f%% of %d, want ≥ 92.8%% and ≥ 97%%", p1, p3, n)
 	}
 }
+
+// TestListed checks which typed words the engine counts as listed: the
+// words of the model's text (engine_test.go's shedText), whatever their
+// case and the punctuation around them, and nothing else (the cases are
+// read off that text by hand).
+func TestListed(t *testing.T) {
+	e := openTest(t)
+	for _, c := range []struct {
+		name, word string
+		want       bool
+	}{
+		{"plain", "ladder", true},
+		{"capitalised", "Ladder", true},
+		{"punctuation around", "(shed),", true},
+		{"all caps in the text", "nasa", true},
+		{"not in the text", "ladders", false},
+		{"a slip", "sged", false},
+		{"empty", "", false},
+		{"punctuation only", "?!", false},
+	} {
+		if got := e.Listed(c.word); got != c.want {
+			t.Errorf("%s: Listed(%q) = %v, want %v", c.name, c.word, got, c.want)
+		}
+	}
+}
