@@ -64,10 +64,11 @@ func openEnglish(t testing.TB, data []byte, opts Options) *Engine {
 // TestCorrectFalseAutoApply types the 20,000 most frequent SUBTLEX-US words
 // (Brysbaert & New 2009) correctly, each on its own; the engine may replace
 // at most 0.5 % of them on space (target of issue 4). It also bounds the
-// share of them that get any alternative offered: 9 %, the budget the rare
-// listed word rule (commonWords) was set under (project budget, issue 4);
-// the rule left that share unchanged (8.84 % before and after with one
-// cross-validation fold's error model, 8.79 % with the built-in one).
+// share of them that get any alternative offered to 9 % (project choice,
+// no source: set just above the 8.8 % measured before the rare listed word
+// rule, commonWords, so that it fails if that rule reaches common words;
+// the rule left the share unchanged, 8.84 % with one cross-validation
+// fold's error model, 8.79 % with the built-in one).
 func TestCorrectFalseAutoApply(t *testing.T) {
 	e := englishModel(t)
 	sc := bufio.NewScanner(corpora.WordCounts())
@@ -292,11 +293,8 @@ func TestCorrectSentenceStartPrior(t *testing.T) {
 // common misspellings (corpora/misspellings-dev.tsv), each fold corrected
 // by a model built as the default one with an error model trained on the
 // other four, every word typed on its own as `keyloom eval --correct
-// --folds 5` does. The top-3 floor is the issue's goal (top-1 ≥ 90 %,
-// top-3 ≥ 97 %); the top-1 floor is the figure this test measured once
-// rare listed words got their alternatives offered (92.87 %, rounded down;
-// 92.36 % before, 91.44 % before the sentence start stopped steering the
-// corrector), so that losing that gain fails. (The default model leaves
+// --folds 5` does. The floors are the issue's goals (top-1 ≥ 90 %, top-3
+// ≥ 97 %; measured 92.87 % and 97.05 %, BENCHMARKS.md). (The default model leaves
 // SUBTLEX-US contraction halves out, so `keyloom eval` shows slightly
 // different figures.)
 func TestCorrectDevCrossValidated(t *testing.T) {
@@ -344,8 +342,8 @@ func TestCorrectDevCrossValidated(t *testing.T) {
 	}
 	p1, p3 := 100*float64(top1)/float64(n), 100*float64(top3)/float64(n)
 	t.Logf("%d-fold cross-validation over %d misspellings: top-1 %.2f%%, top-3 %.2f%%", folds, n, p1, p3)
-	if n < 2000 || p1 < 92.8 || p3 < 97 {
-		t.Errorf("cross-validated top-1 %.2f%%, top-3 %.2f%% of %d, want ≥ 92.8%% and ≥ 97%%", p1, p3, n)
+	if n < 2000 || p1 < 90 || p3 < 97 {
+		t.Errorf("cross-validated top-1 %.2f%%, top-3 %.2f%% of %d, want ≥ 90%% and ≥ 97%%", p1, p3, n)
 	}
 }
 
