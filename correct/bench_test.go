@@ -34,7 +34,9 @@ func eightLetterTyped(b *testing.B) []string {
 // The trie is also searched with the previous depth-first widest pass
 // (trie-depthfirst), and both with the engine's cap (-cap);
 // trie-cap-rowbound is the search before the letters-below bound (row
-// minimum only, the previous cap of 15,000 states entered). Besides
+// minimum only, the previous cap of 15,000 states entered), and
+// trie-cap-noparent the search without the check of parentBound
+// (parentbound.go) before a child's row is computed. Besides
 // latency (wall and, where the thread's CPU clock is read, CPU time of
 // the calling thread, which other processes disturb less) it reports the
 // states visited and the DP rows computed per word, which do not depend
@@ -52,14 +54,16 @@ func BenchmarkCorrect8(b *testing.B) {
 		depthFirst bool
 		cap        int
 		rowBound   bool // the previous bound: no letters-below table
+		noParent   bool // the previous search: no parentBound check
 	}{
-		{"flat", newFlatLex(d.subtlexLex), d.subtlexLex, false, 0, false},
-		{"vellum", newVellumLex(b, d.subtlexLex), d.subtlexLex, false, 0, false},
-		{"trie", newTrieLex(b, d.subtlexLex), d.subtlexLex, false, 0, false},
-		{"trie-depthfirst", newTrieLex(b, d.subtlexLex), d.subtlexLex, true, 0, false},
-		{"trie-cap", newTrieLex(b, d.subtlexLex), d.subtlexLex, false, benchCap, false},
-		{"trie-depthfirst-cap", newTrieLex(b, d.subtlexLex), d.subtlexLex, true, benchCap, false},
-		{"trie-cap-rowbound", newTrieLex(b, d.subtlexLex), d.subtlexLex, false, prevBenchCap, true},
+		{"flat", newFlatLex(d.subtlexLex), d.subtlexLex, false, 0, false, false},
+		{"vellum", newVellumLex(b, d.subtlexLex), d.subtlexLex, false, 0, false, false},
+		{"trie", newTrieLex(b, d.subtlexLex), d.subtlexLex, false, 0, false, false},
+		{"trie-depthfirst", newTrieLex(b, d.subtlexLex), d.subtlexLex, true, 0, false, false},
+		{"trie-cap", newTrieLex(b, d.subtlexLex), d.subtlexLex, false, benchCap, false, false},
+		{"trie-cap-noparent", newTrieLex(b, d.subtlexLex), d.subtlexLex, false, benchCap, false, true},
+		{"trie-depthfirst-cap", newTrieLex(b, d.subtlexLex), d.subtlexLex, true, benchCap, false, false},
+		{"trie-cap-rowbound", newTrieLex(b, d.subtlexLex), d.subtlexLex, false, prevBenchCap, true, false},
 	}
 	for _, l := range lexicons {
 		b.Run(l.name, func(b *testing.B) {
@@ -68,6 +72,7 @@ func BenchmarkCorrect8(b *testing.B) {
 				b.Fatal(err)
 			}
 			c.depthFirst = l.depthFirst
+			c.noParent = l.noParent
 			if l.rowBound {
 				c.below, c.capRows = nil, false
 			}
@@ -232,4 +237,65 @@ func BenchmarkCorrect8Easy(b *testing.B) {
 			i++
 		}
 	})
+}
+
+// BenchmarkParentBound compares, in one process, the search with and
+// without the parentBound check (parentbound.go) on the 8-letter
+// misspellings of BenchmarkCorrect8 with the engine's cap: the loop
+// corrects the words in turn, one whole pass over the list with each
+// search after the other, and keeps each word's least CPU time per search
+// (so that the load of other processes, which moves whole benchmark runs
+// by ±20 % on this project's shared machine, falls on both alike). It
+// reports both searches' median, p99 and mean of those times and the
+// median over words of their ratio (with / without). Run it for a few
+// passes of each search: -benchtime=6x the 305 words.
+func BenchmarkParentBound(b *testing.B) {
+	d := corpus(b)
+	typed := eightLetterTyped(b)
+	lex := newTrieLex(b, d.subtlexLex)
+	c, err := New(lex, d.unigramScorer(d.subtlexLex), Options{MaxStates: benchCap})
+	if err != nil {
+		b.Fatal(err)
+	}
+	runtime.LockOSThread()
+	defer runtime.UnlockOSThread()
+	var best [2][]time.Duration // [0]: without parentBound, [1]: with
+	for m := range best {
+		best[m] = make([]time.Duration, len(typed))
+		for i := range best[m] {
+			best[m][i] = 1<<63 - 1
+		}
+	}
+	var buf []Candidate
+	k := 0
+	b.ReportAllocs()
+	for b.Loop() {
+		i, m := k%len(typed), (k/len(typed))%2
+		k++
+		c.noParent = m == 0
+		cpu0 := threadClock()
+		buf, _ = c.Correct(typed[i], nil, 3, buf)
+		best[m][i] = min(best[m][i], threadClock()-cpu0)
+	}
+	if k < 2*len(typed) {
+		b.Logf("%d words corrected, fewer than a pass with each search; no figures", k)
+		return
+	}
+	var ratio []float64
+	for i := range typed {
+		ratio = append(ratio, float64(best[1][i])/float64(best[0][i]))
+	}
+	slices.Sort(ratio)
+	for m, name := range []string{"without", "with"} {
+		x := slices.Clone(best[m])
+		var sum time.Duration
+		for _, v := range x {
+			sum += v
+		}
+		slices.Sort(x)
+		b.ReportMetric(float64(x[len(x)/2].Nanoseconds()), name+"-cpu-median-ns")
+		b.ReportMetric(float64(x[len(x)*99/100].Nanoseconds()), name+"-cpu-p99-ns")
+		b.ReportMetric(float64(sum.Nanoseconds())/float64(len(x)), name+"-cpu-mean-ns")
+	}
+	b.ReportMetric(ratio[len(ratio)/2], "ratio-median")
 }

@@ -110,6 +110,10 @@ func (s *search) expand(i int32) int {
 				continue
 			}
 		}
+		if tab != nil && !s.noParent && s.parentBound(row, prev, c, nd.c, parts, tab.nodes[next].sets.below()|belowBit(c)) > s.budget {
+			s.examined++ // counted for the cap as when its row was computed (parentbound.go)
+			continue
+		}
 		j := len(s.nodes)
 		s.growSlots(j + 1)
 		s.pnext, s.rnext = pn, rs

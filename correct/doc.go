@@ -61,7 +61,8 @@
 // prefixes wait in a bucket queue ordered by the same bound, so that when
 // Options.MaxStates ends the walk, the prefixes left out are the least
 // promising rather than the alphabetically last. With the letters-below
-// table the cap counts prefixes examined (DP rows), without it states
+// table the cap counts prefixes examined (a DP row each, or a bound from
+// the parent's row that prunes the child first), without it states
 // entered. Without a cap either walk finds exactly the words the row
 // minimum alone would find. Words
 // found are ranked by Score = -Cost + LMWeight × ln P(word | context).

@@ -32,11 +32,13 @@ const familyMaxStates = 256
 // top-3 (measured, this project; see BENCHMARKS.md).
 const familyTailCost = 3
 
-// famFrame is one state of the family walk.
+// famFrame is one state of the family walk: its bytes after the stem are
+// tail[:depth].
 type famFrame struct {
 	state int
 	acc   uint64
 	depth int
+	tail  [familyMaxTail]byte
 }
 
 // addFamily offers to rk the lexicon words that share a stem of at least
@@ -45,30 +47,33 @@ type famFrame struct {
 // one, are at most familyMaxTail letters a–z and two or more plain edits
 // apart. Stems are the longest prefix of
 // lower that the lexicon continues and up to familyBackoff bytes shorter;
-// their subtrees are walked breadth first. It returns the number of
-// lexicon states visited, at most familyMaxStates.
+// their subtrees are walked breadth first, over the corrector's copy of the
+// lexicon automaton when it has one (belowTable: a step decodes nothing;
+// the walk then took a third of the time, measured, this project), and a
+// member's text is the stem and the bytes walked after it. It returns the
+// number of lexicon states visited, at most familyMaxStates.
 func (c *Corrector) addFamily(rk *ranker, lower string) int {
 	if rk.skipOK || c.ch.affix >= inf || len(lower) <= familyMinStem || len(lower) > maxTyped {
 		return 0
 	}
-	lex := c.lex
+	w := famWalk{lex: c.lex, tab: c.below}
+	w.el, _ = c.lex.(EdgeLister)
 	var states [maxTyped + 1]int
 	var accs [maxTyped + 1]uint64
-	st := lex.Start()
-	if !lex.CanMatch(st) {
+	st, ok := w.start()
+	if !ok {
 		return 0
 	}
 	states[0] = st
 	L := 0
 	for L < len(lower) {
-		next, out, ok := lex.Step(states[L], lower[L])
-		if !ok || !lex.CanMatch(next) {
+		next, out, ok := w.step(states[L], lower[L])
+		if !ok {
 			break
 		}
 		states[L+1], accs[L+1] = next, accs[L]+out
 		L++
 	}
-	el, _ := lex.(EdgeLister)
 	visited := 0
 	for k := L; k >= familyMinStem && k >= L-familyBackoff && visited < familyMaxStates; k-- {
 		if len(lower)-k > familyMaxTail || 2*k < len(lower) {
@@ -82,35 +87,90 @@ func (c *Corrector) addFamily(rk *ranker, lower string) int {
 		for i := 0; i < len(q) && visited < familyMaxStates; i++ {
 			f := q[i]
 			visited++
-			if ok, fo := lex.Final(f.state); ok {
-				id := uint32(f.acc + fo)
-				rk.word = lex.AppendWord(rk.word[:0], id)
-				if len(rk.word) >= k && lettersOnly(string(rk.word[k:])) {
-					if d := tailDistance(typedTail, string(rk.word[k:])); d >= 2 {
-						rk.addMin(id, c.ch.affix+familyTailCost*float32(d))
+			if ok, fo := w.final(f.state); ok {
+				tail := f.tail[:f.depth]
+				if lettersOnly(string(tail)) {
+					if d := tailDistance(typedTail, string(tail)); d >= 2 {
+						rk.addMin(uint32(f.acc+fo), c.ch.affix+familyTailCost*float32(d))
 					}
 				}
 			}
 			if f.depth >= familyMaxTail {
 				continue
 			}
-			if el != nil {
-				rk.edges = el.AppendEdges(rk.edges[:0], f.state)
-			} else {
-				rk.edges = rk.edges[:0]
-				for _, b := range alphabet {
-					if next, out, ok := lex.Step(f.state, b); ok && lex.CanMatch(next) {
-						rk.edges = append(rk.edges, Edge{Byte: b, Next: next, Out: out})
-					}
-				}
-			}
+			rk.edges = w.appendEdges(rk.edges[:0], f.state)
 			for _, e := range rk.edges {
-				q = append(q, famFrame{state: e.Next, acc: f.acc + e.Out, depth: f.depth + 1})
+				g := famFrame{state: e.Next, acc: f.acc + e.Out, depth: f.depth + 1, tail: f.tail}
+				g.tail[f.depth] = e.Byte
+				q = append(q, g)
 			}
 		}
 		rk.fam = q
 	}
 	return visited
+}
+
+// famWalk steps through the lexicon automaton for addFamily: through tab,
+// the corrector's copy of it (states are its node indices), when that is
+// not nil, else through the lexicon (with el, if not nil, listing edges).
+type famWalk struct {
+	lex Lexicon
+	el  EdgeLister
+	tab *belowTable
+}
+
+// start returns the start state and whether any word can follow it.
+func (w *famWalk) start() (int, bool) {
+	if w.tab != nil {
+		return 0, true
+	}
+	st := w.lex.Start()
+	return st, w.lex.CanMatch(st)
+}
+
+// step follows byte b from state to a state some word can follow.
+func (w *famWalk) step(state int, b byte) (next int, out uint64, ok bool) {
+	if t := w.tab; t != nil {
+		lo, hi := t.edges(state)
+		for k := lo; k < hi; k++ {
+			if t.eb[k] == b {
+				return int(t.en[k]), uint64(t.eo[k]), true
+			}
+		}
+		return 0, 0, false
+	}
+	next, out, ok = w.lex.Step(state, b)
+	return next, out, ok && w.lex.CanMatch(next)
+}
+
+// final reports whether state ends a word, and its final output.
+func (w *famWalk) final(state int) (bool, uint64) {
+	if t := w.tab; t != nil {
+		ok, fo := t.final(state)
+		return ok, uint64(fo)
+	}
+	return w.lex.Final(state)
+}
+
+// appendEdges appends the edges of state to dst: with no edge listing,
+// those on the bytes of the alphabet.
+func (w *famWalk) appendEdges(dst []Edge, state int) []Edge {
+	if t := w.tab; t != nil {
+		lo, hi := t.edges(state)
+		for k := lo; k < hi; k++ {
+			dst = append(dst, Edge{Byte: t.eb[k], Next: int(t.en[k]), Out: uint64(t.eo[k])})
+		}
+		return dst
+	}
+	if w.el != nil {
+		return w.el.AppendEdges(dst, state)
+	}
+	for _, b := range alphabet {
+		if next, out, ok := w.lex.Step(state, b); ok && w.lex.CanMatch(next) {
+			dst = append(dst, Edge{Byte: b, Next: next, Out: out})
+		}
+	}
+	return dst
 }
 
 // lettersOnly reports whether s holds only the letters a–z: endings are

@@ -232,3 +232,46 @@ func BenchmarkFamily(b *testing.B) {
 	b.ReportMetric(float64(lat[len(lat)/2].Nanoseconds()), "median-ns")
 	b.ReportMetric(float64(lat[len(lat)*99/100].Nanoseconds()), "p99-ns")
 }
+
+// TestFamilyTableMatchesLexicon checks that the family walk over the
+// corrector's copy of the lexicon automaton (belowTable) offers exactly
+// the words, at exactly the costs, and visits exactly the states of the
+// walk through the lexicon itself (the trie package's decoder, the
+// previous code path), for every typed word of the development
+// misspellings list (corpora/misspellings-dev.tsv, a public list of real
+// misspellings) over the SUBTLEX-US lexicon.
+func TestFamilyTableMatchesLexicon(t *testing.T) {
+	d := corpus(t)
+	lex := newTrieLex(t, d.subtlexLex)
+	withTable, err := New(lex, d.unigramScorer(lex.words), Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	withLex, err := New(lex, d.unigramScorer(lex.words), Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if withTable.below == nil {
+		t.Fatal("no automaton copy for a lexicon that lists edges")
+	}
+	withLex.below = nil
+	var a, b ranker
+	offered := 0
+	for _, p := range devPairs(t) {
+		w := strings.ToLower(p.Typed)
+		id, in := lex.ID(w)
+		a.start(withTable, nil, id, in, 8, nil)
+		b.start(withLex, nil, id, in, 8, nil)
+		na, nb := withTable.addFamily(&a, w), withLex.addFamily(&b, w)
+		if na != nb {
+			t.Errorf("addFamily(%q) visited %d states over the table, %d over the lexicon", w, na, nb)
+		}
+		if !slices.Equal(a.top, b.top) {
+			t.Errorf("addFamily(%q) offered %v over the table, %v over the lexicon", w, a.top, b.top)
+		}
+		offered += len(b.top)
+	}
+	if offered < 1000 {
+		t.Errorf("%d words offered in all; the comparison is too thin", offered)
+	}
+}

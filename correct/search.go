@@ -107,7 +107,7 @@ type search struct {
 	done      []partial // rules completed by the row being computed
 	hits      []hit
 	visited   int
-	examined  int  // DP rows computed by this pass
+	examined  int  // prefixes examined by this pass: DP rows, and children parentBound pruned
 	capRows   bool // limit counts examined prefixes (rows), not entered states
 	limit     int  // work (see spent) this search may do (0 = no limit)
 	el        EdgeLister
@@ -149,6 +149,9 @@ type search struct {
 	rsDepth      [][4]uint64 // rule-start sets of the depth-first walk, by depth
 	rsBest       [4]uint64   // rule-start set of the best-first walk
 	pnBest       [4]uint64   // partialNext set of the best-first walk
+	// noParent turns off the check of parentBound (parentbound.go) before
+	// a child's row is computed, for comparison in tests and benchmarks.
+	noParent bool
 }
 
 // plainByte marks the bytes the search tries as intended letters wherever
@@ -483,6 +486,10 @@ func (s *search) visit(d int, state int, acc uint64) {
 			}
 		}
 		s.path[d] = c
+		if g != nil && !s.noParent && s.parentBound(s.rows[d*w:(d+1)*w], prev, c, last, parts, g.nodes[next].sets.below()|belowBit(c)) > budget {
+			s.examined++ // counted for the cap as when its row was computed (parentbound.go)
+			continue
+		}
 		s.pnext, s.rnext = pn, rs
 		s.setChild(next)
 		base := s.advance(d, c)

@@ -1,0 +1,85 @@
+package correct
+
+import (
+	"fmt"
+	"math/rand"
+	"strings"
+	"testing"
+)
+
+// TestParentBoundKeepsWords checks that pruning children on parentBound
+// (parentbound.go) before their rows are computed keeps every word: both
+// walks find exactly the words, at exactly the channel costs, that they
+// find without it, at each pass budget, for words of the development
+// misspellings list (corpora/misspellings-dev.tsv, a public list of real
+// misspellings) and random letter strings over the SUBTLEX-US lexicon.
+// The walks without it are checked word by word against the row
+// recurrence in TestBelowBoundKeepsWords. It also checks that the bound
+// prunes: fewer rows computed in all.
+func TestParentBoundKeepsWords(t *testing.T) {
+	d := corpus(t)
+	lex := newTrieLex(t, d.subtlexLex)
+	c, err := New(lex, d.unigramScorer(lex.words), Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	var typed []string
+	pairs := devPairs(t)
+	for i := 0; i < len(pairs) && len(typed) < 150; i += 11 {
+		w := strings.ToLower(pairs[i].Typed)
+		if len(w) <= maxTyped && latinOnly(w) {
+			typed = append(typed, w)
+		}
+	}
+	rng := rand.New(rand.NewSource(15)) // fixed seed: failures replay
+	for range 20 {
+		b := make([]byte, 3+rng.Intn(10))
+		for i := range b {
+			b[i] = "abcdefghijklmnopqrstuvwxyz'-"[rng.Intn(28)]
+		}
+		typed = append(typed, string(b))
+	}
+	tests := []struct {
+		name      string
+		budget    float32
+		bestFirst bool
+	}{
+		{"narrow/depth-first", firstPass, false},
+		{"middle/depth-first", secondPass, false},
+		{"full/depth-first", 13, false},
+		{"full/best-first", 13, true},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			found, rowsWith, rowsWithout := 0, 0, 0
+			walk := func(noParent bool, w string) *search {
+				t.Helper()
+				s := &search{order: c.order, below: c.below, noParent: noParent}
+				s.reset(c.ch, lex, w, tt.budget, len(w)+maxExtra)
+				if tt.bestFirst {
+					s.runBest()
+				} else {
+					s.run()
+				}
+				return s
+			}
+			for _, w := range typed {
+				without, with := walk(true, w), walk(false, w)
+				want, got := hitList(without.hits), hitList(with.hits)
+				if fmt.Sprint(got) != fmt.Sprint(want) {
+					t.Errorf("%q: found %d words with parentBound, %d without\n got %v\nwant %v", w, len(got), len(want), got, want)
+				}
+				found += len(want)
+				rowsWith += with.rowsDone
+				rowsWithout += without.rowsDone
+			}
+			if found < 300 {
+				t.Errorf("%d words found in all; the comparison is too thin", found)
+			}
+			if rowsWith >= rowsWithout {
+				t.Errorf("rows computed: %d with parentBound, %d without; it should prune", rowsWith, rowsWithout)
+			}
+			t.Logf("%d words found; rows %d without parentBound, %d with", found, rowsWithout, rowsWith)
+		})
+	}
+}
