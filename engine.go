@@ -51,8 +51,9 @@ type Options struct {
 	// measure misspellings the model has not seen).
 	ErrorModel *ErrorModel
 	// CorrectionStates caps the lexicon prefixes one correction may
-	// examine (one DP row each), bounding its worst case (about 0.2–0.4 µs
-	// per prefix on a phone-class core): default DefaultCorrectionStates;
+	// examine (a DP row each, or a cheaper bound from the parent's row
+	// that rules the prefix out first), bounding its worst case (about
+	// 0.2–0.4 µs per prefix on a phone-class core): default DefaultCorrectionStates;
 	// −1 removes the cap (a few milliseconds for badly misspelled long
 	// words).
 	CorrectionStates int
