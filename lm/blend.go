@@ -292,7 +292,32 @@ func (v *OverlayView) hasPrefix(tok uint32, prefix string) bool {
 	return tok >= v.V && i < len(v.words) && strings.HasPrefix(v.words[i], prefix)
 }
 
+// entryLower returns the index of the first entry of s (sorted by tok)
+// with a token ≥ tok, len(s) when there is none. The halving loop has no
+// data-dependent branch, since the probes' outcomes are as good as random.
 func entryLower(s []ovEntry, tok uint32) int {
+	n := len(s)
+	if n == 0 || tok >= 1<<ovTokenBits {
+		return entryLowerWide(s, tok)
+	}
+	base := 0
+	for n > 1 {
+		half := n >> 1
+		// 1 when s[base+half].tok < tok: both are below 1<<ovTokenBits
+		// (stored tokens always are: keys pack them in that many bits),
+		// so the sign bit of their difference is the comparison.
+		lt := int((s[base+half].tok - tok) >> 31)
+		base += half & -lt
+		n -= half
+	}
+	if s[base].tok < tok {
+		base++
+	}
+	return base
+}
+
+// entryLowerWide is entryLower for any tokens.
+func entryLowerWide(s []ovEntry, tok uint32) int {
 	lo, hi := 0, len(s)
 	for lo < hi {
 		m := int(uint(lo+hi) >> 1)

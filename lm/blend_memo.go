@@ -87,6 +87,8 @@ type topKMemo struct {
 	// view starts a new generation.
 	factGen uint32
 	facts   [factSlots]wordFacts
+	// The buffers of the search in progress (see searchBufs).
+	bufs searchBufs
 }
 
 // factSlots is the size of a memo's table of word facts (a power of two),

@@ -279,3 +279,56 @@ func TestPersonalizationKSR(t *testing.T) {
 		t.Error("KSR is NaN")
 	}
 }
+
+// entryLower must agree with the standard library's sort.Search (the
+// reference) for every query token over sorted entry lists of every length
+// up to a few chunks, including tokens at and above 1<<ovTokenBits, where
+// it switches to a plain binary search.
+func TestEntryLower(t *testing.T) {
+	const top = 1<<ovTokenBits - 1
+	for _, c := range []struct {
+		name string
+		toks []uint32
+	}{
+		{"empty", nil},
+		{"one", []uint32{7}},
+		{"two", []uint32{3, 9}},
+		{"odd", []uint32{1, 4, 9, 16, 25}},
+		{"from-zero", []uint32{0, 1, 2, 3, 5, 8, 13, 21}},
+		{"edge-of-range", []uint32{0, top - 2, top - 1, top}},
+		{"chunk", func() []uint32 {
+			var s []uint32
+			for i := range uint32(ovChunkMax) {
+				s = append(s, 3*i+2)
+			}
+			return s
+		}()},
+		{"large", func() []uint32 {
+			var s []uint32
+			for i := range uint32(1000) {
+				s = append(s, i*i+i)
+			}
+			return s
+		}()},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			s := make([]ovEntry, len(c.toks))
+			for i, x := range c.toks {
+				s[i].tok = x
+			}
+			queries := []uint32{0, 1, top - 1, top, top + 1, 1 << 31, math.MaxUint32}
+			for _, x := range c.toks {
+				queries = append(queries, x, x+1)
+				if x > 0 {
+					queries = append(queries, x-1)
+				}
+			}
+			for _, q := range queries {
+				want := sort.Search(len(s), func(i int) bool { return s[i].tok >= q })
+				if got := entryLower(s, q); got != want {
+					t.Errorf("entryLower(%v, %d) = %d, want %d", c.toks, q, got, want)
+				}
+			}
+		})
+	}
+}

@@ -24,8 +24,10 @@ import (
 // in the list it was met in, the next unread value of every other list) is
 // below the k-th score found; the search stops once the bound of every
 // unread word, α·(next base probability) + Σ γ·(next value of each list),
-// is below the k-th score. Bounds carry a relative margin of 1e-9 over the
-// rounding of the exact computation (at most a few ulps, ~1e-15).
+// is below the k-th score. A word met in one list is not looked up in a
+// list already read to the end, where it has no entry. Bounds carry a
+// relative margin of 1e-9 over the rounding of the exact computation (at
+// most a few ulps, ~1e-15).
 //
 // Words with no evidence that the base list did not reach all score at most
 // as its last word b does, with ties only possible at b's own base
@@ -165,13 +167,20 @@ func (v *OverlayView) bestList(s *stream, r *rangeQ, toks []topEntry, more bool)
 		}
 		return
 	}
+	n := 0
 	for _, e := range toks {
 		if v.inRange(e.tok, r) {
 			s.buf.push(Scored{ID: e.tok, LogP: e.cnt})
+			n++
 		}
 	}
 	if more && len(toks) > 0 {
 		s.tail = toks[len(toks)-1].cnt
+	}
+	if n > s.buf.n {
+		// The buffer dropped entries of the range (v.top lists more
+		// words than it holds): none is above its last.
+		s.tail = max(s.tail, s.buf.buf[s.buf.n-1].LogP)
 	}
 }
 
@@ -323,41 +332,52 @@ func (v *OverlayView) TopK(ctx []uint32, prefix string, lo, hi uint32, k int, ds
 		return dst
 	}
 	r := rangeQ{prefix: prefix, lo: lo, hi: hi, whole: prefix == "" && lo == 0 && hi == v.V}
-	var own query
-	q := &own
 	var m *topKMemo
 	if v.memo != nil {
 		m = v.memo.get()
 	}
-	if m != nil && m.mu.TryLock() {
-		defer m.mu.Unlock()
-		if n := v.base.order - 1; len(ctx) > n {
-			ctx = ctx[len(ctx)-n:]
-		}
-		q = m.begin(v, ctx, &r)
-	} else {
-		m = nil
-		v.prepare(ctx, q)
+	if m == nil || !m.mu.TryLock() {
+		return v.topKOwn(ctx, &r, k, dst)
 	}
-	var res topBuf
-	res.k = k
-	short := m != nil && k < MaxK && v.memo.short.Load() >= 0 // see noteShort
+	defer m.mu.Unlock()
+	if n := v.base.order - 1; len(ctx) > n {
+		ctx = ctx[len(ctx)-n:]
+	}
+	q := m.begin(v, ctx, &r)
+	short := k < MaxK && v.memo.short.Load() >= 0 // see noteShort
 	first := min(k+1, MaxK)
 	if short {
 		first = k
 	}
-	t := thresholdSearch{v: v, q: q, r: &r, k: k, res: &res, c: v.coefficients(q), memo: m}
+	return v.topKSearch(q, &r, k, first, short, m, &m.bufs, dst)
+}
+
+// topKOwn is TopK without the memo (another call holds it, or the view
+// has none), with its own prepared history and buffers.
+func (v *OverlayView) topKOwn(ctx []uint32, r *rangeQ, k int, dst []Scored) []Scored {
+	var q query
+	v.prepare(ctx, &q)
+	var bufs searchBufs
+	return v.topKSearch(&q, r, k, min(k+1, MaxK), false, nil, &bufs, dst)
+}
+
+// topKSearch runs the searches of TopK with the given buffers.
+func (v *OverlayView) topKSearch(q *query, r *rangeQ, k, first int, short bool, m *topKMemo, bufs *searchBufs, dst []Scored) []Scored {
+	res := &bufs.res
+	res.k, res.n = k, 0
+	bufs.reset()
+	t := thresholdSearch{searchBufs: bufs, v: v, q: q, r: r, k: k, res: res, c: v.coefficients(q), memo: m}
 	ok := t.run(first)
 	if m != nil && k < MaxK {
 		v.memo.noteShort(short, ok, t.shortOK)
 	}
 	if !ok && short {
-		ok = v.thresholdMemo(q, &r, k, k+1, &res, m)
+		ok = v.thresholdBufs(q, r, k, k+1, res, m, bufs)
 	}
-	if ok || v.thresholdMemo(q, &r, k, MaxK, &res, m) {
+	if ok || v.thresholdBufs(q, r, k, MaxK, res, m, bufs) {
 		return append(dst, res.buf[:res.n]...)
 	}
-	return v.topKExhaustive(q, &r, k, dst)
+	return v.topKExhaustive(q, r, k, dst)
 }
 
 // Choosing the base list's length.
@@ -422,7 +442,14 @@ func (v *OverlayView) threshold(q *query, r *rangeQ, k, m int, res *topBuf) bool
 // thresholdMemo is threshold with the view's memo (nil: none), which the
 // caller holds locked.
 func (v *OverlayView) thresholdMemo(q *query, r *rangeQ, k, m int, res *topBuf, memo *topKMemo) bool {
-	t := thresholdSearch{v: v, q: q, r: r, k: k, res: res, c: v.coefficients(q), memo: memo}
+	var bufs searchBufs
+	return v.thresholdBufs(q, r, k, m, res, memo, &bufs)
+}
+
+// thresholdBufs is thresholdMemo with the given buffers.
+func (v *OverlayView) thresholdBufs(q *query, r *rangeQ, k, m int, res *topBuf, memo *topKMemo, bufs *searchBufs) bool {
+	bufs.reset()
+	t := thresholdSearch{searchBufs: bufs, v: v, q: q, r: r, k: k, res: res, c: v.coefficients(q), memo: memo}
 	return t.run(m)
 }
 
@@ -437,40 +464,59 @@ func (t *thresholdSearch) scan(si int, f func(uint32, float64)) {
 
 // thresholdSearch is the state of one threshold search.
 type thresholdSearch struct {
+	*searchBufs
 	v       *OverlayView
 	q       *query
 	r       *rangeQ
 	k       int
 	res     *topBuf
 	c       coef
-	st      [nStreams]stream
-	seen    idSet // words met: scored, or dropped by a bound
-	scored  idSet // words scored (a subset of seen while seen has room)
-	full    bool  // seen overflowed: bounds no longer use the lists' frontiers
+	full    bool // seen overflowed: bounds no longer use the lists' frontiers
 	pbBound float64
 	kth     float64 // probability of the k-th result (0 until there are k)
 	failed  bool
 	shortOK bool      // after a search of k+1 base words: one of k would have passed its check
 	memo    *topKMemo // nil: scan the lists themselves
-	cands   baseCands // the base candidates scored for the top list, when it was not reused
 	// γ·(largest value) and γ·(frontier) of each list, the latter as the
 	// search loop last computed it: a word is met while only the list it
 	// is met in has moved since.
 	wMax, wFront [nStreams]float64
 }
 
+// searchBufs holds the larger parts of a search's state. A view's memo
+// keeps one, so that a search under the memo does not clear some 6 KB on
+// every call; only the counts are reset (see reset), and every buffer is
+// read only up to its count.
+type searchBufs struct {
+	st     [nStreams]stream
+	seen   idSet     // words met: scored, or dropped by a bound
+	scored idSet     // words scored (a subset of seen while seen has room)
+	cands  baseCands // the base candidates scored for the top list, when it was not reused
+	res    topBuf    // TopK's results (a search given its own res leaves this alone)
+	base   [MaxK]Scored
+}
+
+// reset empties b for a new search.
+func (b *searchBufs) reset() {
+	for si := range b.st {
+		s := &b.st[si]
+		s.buf.k, s.buf.n = 0, 0
+		s.pos, s.tail, s.max, s.all, s.stage = 0, 0, 0, nil, 0
+	}
+	b.seen.n, b.scored.n, b.cands.n = 0, 0, 0
+}
+
 func (t *thresholdSearch) run(m int) bool {
 	v, q, r, k, res := t.v, t.q, t.r, t.k, t.res
 	res.n = 0
-	var bt [MaxK]Scored
 	var base []Scored
 	if r.lo < r.hi {
 		ok := false
 		if t.memo != nil {
-			base, ok = t.memo.baseTop(r, m, bt[:0])
+			base, ok = t.memo.baseTop(r, m, t.base[:0])
 		}
 		if !ok {
-			base = v.base.topKNodes(q.nb[:q.nn], r.lo, r.hi, m, bt[:0], &t.cands)
+			base = v.base.topKNodes(q.nb[:q.nn], r.lo, r.hi, m, t.base[:0], &t.cands)
 			if t.memo != nil {
 				t.memo.setBase(base, m)
 			}
@@ -504,18 +550,24 @@ func (t *thresholdSearch) run(m int) bool {
 			t.st[si].stage = 3
 		}
 	}
-	for !t.failed {
-		// Bound of every word not met yet that has some evidence.
+	for si := range t.st {
+		t.wFront[si] = t.c.gamma[si] * t.st[si].frontier()
+	}
+	for moved := -1; !t.failed; {
+		// Bound of every word not met yet that has some evidence. Only
+		// the list read last has moved since the previous round.
+		if moved >= 0 {
+			t.wFront[moved] = t.c.gamma[moved] * t.st[moved].frontier()
+		}
 		bound := t.c.alpha * t.pbBound
 		pick, heaviest := -1, 0.0
-		for si := range t.st {
-			w := t.c.gamma[si] * t.st[si].frontier()
-			t.wFront[si] = w
+		for si, w := range t.wFront {
 			bound += w
 			if w > heaviest {
 				pick, heaviest = si, w
 			}
 		}
+		moved = pick
 		if res.n == k && bound*boundMargin < t.kth || pick < 0 {
 			break
 		}
@@ -578,6 +630,12 @@ func (t *thresholdSearch) consider(si int, tok uint32, val float64) {
 	if t.failed || !t.r.whole && !v.inRange(tok, t.r) || tok == v.bos || tok == v.eos || tok == v.unk {
 		return
 	}
+	if t.seen.has(tok) || t.full && t.scored.has(tok) {
+		return
+	}
+	if !t.full && !t.seen.add(tok) {
+		t.full = true // from now on a word may have been met before without a record
+	}
 	pbUB, pbKnown := 0.0, false
 	if tok < v.V {
 		pbUB = t.pbBound
@@ -585,26 +643,9 @@ func (t *thresholdSearch) consider(si int, tok uint32, val float64) {
 			pbUB, pbKnown = math.Exp(lp), true
 		}
 	}
-	// Bounds: the word's value in this list, and in every other list that
-	// list's largest value or, for a word not met before, its frontier.
+	// Bounds: the word's value in this list, and in every other list its
+	// frontier (for a word not met before) or its largest value.
 	own := c.alpha*pbUB + c.gamma[si]*val
-	if t.res.n == t.k {
-		ub := own
-		for sj := range t.st {
-			if sj != si {
-				ub += t.wMax[sj]
-			}
-		}
-		if ub*boundMargin < t.kth {
-			return
-		}
-	}
-	if t.seen.has(tok) || t.full && t.scored.has(tok) {
-		return
-	}
-	if !t.full && !t.seen.add(tok) {
-		t.full = true // from now on a word may have been met before without a record
-	}
 	// Look the word up list by list, heaviest bound first, replacing each
 	// bound by the exact value, and drop it as soon as the bound falls
 	// below the k-th score.
@@ -615,10 +656,19 @@ func (t *thresholdSearch) consider(si int, tok uint32, val float64) {
 	if t.full {
 		w = &t.wMax
 	}
+	done := uint8(1) << si
 	for sj := range t.st {
 		if sj != si {
 			bnd[sj] = w[sj]
 			ub += bnd[sj]
+			if bnd[sj] == 0 && !t.full && t.st[sj].stage != 0 && (sj != stUni || tok < v.V) && t.st[sj].frontier() == 0 {
+				// The list is read to the end (or empty), so the word,
+				// not met in it, has no entry there: no look-up. Not so
+				// for a user word's unigram entry: the list of best
+				// unigrams leaves out the words not yet suggestible,
+				// whose counts still enter their probability.
+				done |= 1 << sj
+			}
 		}
 	}
 	known := t.memo.word(tok)
@@ -626,8 +676,7 @@ func (t *thresholdSearch) consider(si int, tok uint32, val float64) {
 		ev = known.ev
 	} else {
 		ev.set(si, val)
-		done := uint8(1) << si
-		for range nStreams - 1 {
+		for done != 1<<nStreams-1 {
 			if t.res.n == t.k && ub*boundMargin < t.kth {
 				return
 			}
