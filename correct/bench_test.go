@@ -241,15 +241,37 @@ func BenchmarkCorrect8Easy(b *testing.B) {
 
 // BenchmarkParentBound compares, in one process, the search with and
 // without the parentBound check (parentbound.go) on the 8-letter
-// misspellings of BenchmarkCorrect8 with the engine's cap: the loop
-// corrects the words in turn, one whole pass over the list with each
-// search after the other, and keeps each word's least CPU time per search
-// (so that the load of other processes, which moves whole benchmark runs
-// by ±20 % on this project's shared machine, falls on both alike). It
-// reports both searches' median, p99 and mean of those times and the
-// median over words of their ratio (with / without). Run it for a few
-// passes of each search: -benchtime=6x the 305 words.
+// misspellings of BenchmarkCorrect8 with the engine's cap (see
+// compareSearches). Run it for a few passes of each search:
+// -benchtime=6x the 305 words.
 func BenchmarkParentBound(b *testing.B) {
+	compareSearches(b, [2]string{"without", "with"}, func(c *Corrector, m int) { c.noParent = m == 0 })
+}
+
+// BenchmarkMidPassRef compares, in one process, the previous trigger of
+// the widest pass (the middle pass ends the search at passRefLogProb)
+// with midPassRefLogProb on the 8-letter misspellings of
+// BenchmarkCorrect8 with the engine's cap (see compareSearches). Run it
+// for a few passes of each: -benchtime=6x the 305 words.
+func BenchmarkMidPassRef(b *testing.B) {
+	compareSearches(b, [2]string{"previous", "new"}, func(c *Corrector, m int) {
+		c.midRef = 0
+		if m == 0 {
+			c.midRef = passRefLogProb
+		}
+	})
+}
+
+// compareSearches corrects the 8-letter misspellings of BenchmarkCorrect8
+// with the engine's cap under two settings of the corrector (set puts
+// setting m, 0 or 1, in place), one whole pass over the list with each
+// setting after the other, and keeps each word's least CPU time per
+// setting (so that the load of other processes, which moves whole
+// benchmark runs by ±20 % on this project's shared machine, falls on
+// both alike). It reports both settings' median, p99 and mean of those
+// times and the median over words of their ratio (setting 1 / setting 0).
+func compareSearches(b *testing.B, names [2]string, set func(c *Corrector, m int)) {
+	b.Helper()
 	d := corpus(b)
 	typed := eightLetterTyped(b)
 	lex := newTrieLex(b, d.subtlexLex)
@@ -259,7 +281,7 @@ func BenchmarkParentBound(b *testing.B) {
 	}
 	runtime.LockOSThread()
 	defer runtime.UnlockOSThread()
-	var best [2][]time.Duration // [0]: without parentBound, [1]: with
+	var best [2][]time.Duration
 	for m := range best {
 		best[m] = make([]time.Duration, len(typed))
 		for i := range best[m] {
@@ -272,13 +294,13 @@ func BenchmarkParentBound(b *testing.B) {
 	for b.Loop() {
 		i, m := k%len(typed), (k/len(typed))%2
 		k++
-		c.noParent = m == 0
+		set(c, m)
 		cpu0 := threadClock()
 		buf, _ = c.Correct(typed[i], nil, 3, buf)
 		best[m][i] = min(best[m][i], threadClock()-cpu0)
 	}
 	if k < 2*len(typed) {
-		b.Logf("%d words corrected, fewer than a pass with each search; no figures", k)
+		b.Logf("%d words corrected, fewer than a pass with each setting; no figures", k)
 		return
 	}
 	var ratio []float64
@@ -286,7 +308,7 @@ func BenchmarkParentBound(b *testing.B) {
 		ratio = append(ratio, float64(best[1][i])/float64(best[0][i]))
 	}
 	slices.Sort(ratio)
-	for m, name := range []string{"without", "with"} {
+	for m, name := range names {
 		x := slices.Clone(best[m])
 		var sum time.Duration
 		for _, v := range x {
@@ -298,4 +320,137 @@ func BenchmarkParentBound(b *testing.B) {
 		b.ReportMetric(float64(sum.Nanoseconds())/float64(len(x)), name+"-cpu-mean-ns")
 	}
 	b.ReportMetric(ratio[len(ratio)/2], "ratio-median")
+}
+
+// BenchmarkPasses measures, for the 8-letter misspellings of
+// BenchmarkCorrect8 with the engine's cap, the widening passes of
+// searchUpTo one by one: the pass each word ends in, the prefixes each
+// pass examines and its thread CPU time (each word's least over the
+// loop's rounds), and the typed-word setup (prepare) apart. It reports
+// the share of words reaching each pass, rows and time per pass (median
+// over the words that run it), and the share of the time of words ending
+// in a wider pass that goes to the narrower passes' prefixes, which the
+// wider pass walks again. Run it for a few rounds: -benchtime=3x.
+func BenchmarkPasses(b *testing.B) {
+	d := corpus(b)
+	typed := eightLetterTyped(b)
+	lex := newTrieLex(b, d.subtlexLex)
+	c, err := New(lex, d.unigramScorer(d.subtlexLex), Options{MaxStates: benchCap})
+	if err != nil {
+		b.Fatal(err)
+	}
+	runtime.LockOSThread()
+	defer runtime.UnlockOSThread()
+	const passes = 3
+	type wordPass struct {
+		last int // index of the last pass run
+		rows [passes]int
+		cpu  [passes]time.Duration
+		prep time.Duration
+	}
+	per := make([]wordPass, len(typed))
+	for i := range per {
+		for p := range per[i].cpu {
+			per[i].cpu[p] = 1<<63 - 1
+		}
+		per[i].prep = 1<<63 - 1
+	}
+	o := &c.opts
+	var sc scratch
+	b.ReportAllocs()
+	for b.Loop() {
+		// The passes as searchUpTo runs them, each timed apart.
+		for i, w := range typed {
+			id, inLex := c.lex.ID(w)
+			sc.rk.start(c, nil, id, inLex, 8, sc.rk.top)
+			widest, _ := c.widestPass(w, id, inLex, inLex)
+			s := &sc.s
+			s.order, s.below, s.capRows = c.order, c.below, c.capRows
+			s.prepCh = nil
+			t0 := threadClock()
+			s.reset(c.ch, c.lex, w, float32(firstPass), len(w)+maxExtra)
+			per[i].prep = min(per[i].prep, threadClock()-t0)
+			used, last := 0, 0.0
+			for p, budget := range [...]float64{firstPass, secondPass, o.MaxCost} {
+				budget = min(budget, widest, o.MaxCost)
+				if budget <= last || used >= o.MaxStates {
+					break
+				}
+				last = budget
+				t0 := threadClock()
+				s.reset(c.ch, c.lex, w, float32(budget), len(w)+maxExtra)
+				s.limit = o.MaxStates - used
+				s.rk = &sc.rk
+				if budget >= o.MaxCost {
+					s.runBest()
+				} else {
+					s.run()
+				}
+				per[i].cpu[p] = min(per[i].cpu[p], threadClock()-t0)
+				per[i].rows[p] = s.spent()
+				per[i].last = p
+				used += s.spent()
+				if budget >= min(widest, o.MaxCost) || len(sc.rk.top) > 0 && sc.rk.top[0].Score >= c.passRef(p) {
+					break
+				}
+			}
+		}
+	}
+	median := func(x []float64) float64 {
+		if len(x) == 0 {
+			return 0
+		}
+		slices.Sort(x)
+		return x[len(x)/2]
+	}
+	var prep []float64
+	for _, wp := range per {
+		prep = append(prep, float64(wp.prep.Nanoseconds()))
+	}
+	b.ReportMetric(median(prep), "prepare-median-ns")
+	for p := range passes {
+		var rows, cpu, rewalk []float64
+		ends := 0
+		for _, wp := range per {
+			if wp.last == p {
+				ends++
+			}
+			if wp.last < p {
+				continue
+			}
+			rows = append(rows, float64(wp.rows[p]))
+			cpu = append(cpu, float64(wp.cpu[p].Nanoseconds()))
+			if wp.last == p && p > 0 {
+				// Of this word's search time, the share the narrower
+				// passes' prefixes take again in pass p (pass p-1's
+				// time, which re-walked pass p-2's): an estimate.
+				var total time.Duration
+				for q := 0; q <= p; q++ {
+					total += wp.cpu[q]
+				}
+				rewalk = append(rewalk, float64(wp.cpu[p-1])/float64(total+wp.prep))
+			}
+		}
+		name := [...]string{"p1", "p2", "p3"}[p]
+		b.ReportMetric(float64(len(rows))/float64(len(per)), name+"-reached")
+		b.ReportMetric(float64(ends)/float64(len(per)), name+"-ends")
+		b.ReportMetric(median(rows), name+"-rows-median")
+		b.ReportMetric(median(cpu), name+"-cpu-median-ns")
+		if p > 0 {
+			b.ReportMetric(median(rewalk), name+"-rewalk-share-median")
+		}
+	}
+	// Whole search time per word: median and p99, and the share of the
+	// median word's time that re-walks.
+	var tot []float64
+	for _, wp := range per {
+		t := wp.prep
+		for q := 0; q <= wp.last; q++ {
+			t += wp.cpu[q]
+		}
+		tot = append(tot, float64(t.Nanoseconds()))
+	}
+	slices.Sort(tot)
+	b.ReportMetric(tot[len(tot)/2], "search-median-ns")
+	b.ReportMetric(tot[len(tot)*99/100], "search-p99-ns")
 }

@@ -56,7 +56,7 @@
 // is tried only where the row entry the rule would start from plus its
 // cost fits the budget (rulestart.go). The walk runs in widening passes
 // (6, 9, then Options.MaxCost nats) and stops after a pass whose best candidate scores
-// above -16 nats; a word the lexicon or Known knows gets only the first
+// at least -16 nats (-17 after the middle pass, LMWeight-scaled); a word the lexicon or Known knows gets only the first
 // pass. The narrow passes walk depth first; the widest walks best first:
 // prefixes wait in a bucket queue ordered by the same bound, so that when
 // Options.MaxStates ends the walk, the prefixes left out are the least

@@ -89,7 +89,8 @@ type search struct {
 	extra     []float32
 	path      []byte
 	ins       []float32
-	subC      []float32       // subC[c*n+j]: intended c typed as t[j]; 0 when equal
+	subC      []float32       // subC[c*n+j]: intended c typed as t[j]; 0 when equal (filled per byte c by subRow)
+	subDone   [4]uint64       // bit c: subC's row for intended byte c is filled
 	pos       [256]uint64     // bit j: t[j] is the byte
 	rules     []appRule       // sorted by cost
 	order     *ruleOrder      // the channel's rules by cost (built if nil or for another channel)
@@ -244,16 +245,12 @@ func (s *search) prepare(ch *channel) {
 	s.ins = grow(s.ins, s.n)
 	ch.insCosts(s.t, s.ins)
 	n := s.n
+	// subC's rows are filled when the walk first tries their intended
+	// byte (subRow): a walk tries the lexicon's thirty-odd bytes, not 256.
 	s.subC = grow(s.subC, n<<8)
-	for c := 0; c < 256; c++ {
-		q := s.subC[c*n : c*n+n]
-		for j, tj := range s.t {
-			q[j] = ch.sub[tj][c]
-		}
-		s.pos[c] = 0
-	}
+	s.subDone = [4]uint64{}
+	clear(s.pos[:])
 	for j, tj := range s.t {
-		s.subC[int(tj)*n+j] = 0
 		s.pos[tj] |= 1 << j
 	}
 	if ch.lead > 0 && n > 0 {
@@ -322,21 +319,43 @@ func (s *search) prepare(ch *channel) {
 	s.prepareBelow()
 }
 
+// subRow returns subC's row for intended byte c (the cost of typing each
+// typed byte when c was meant), filling it on first use for this typed
+// word. Cost: O(typed length) the first time, then a bit test.
+func (s *search) subRow(c byte) []float32 {
+	n := s.n
+	q := s.subC[int(c)*n : int(c)*n+n]
+	if s.subDone[c>>6]&(1<<(c&63)) != 0 {
+		return q
+	}
+	s.subDone[c>>6] |= 1 << (c & 63)
+	ch := s.ch
+	for j, tj := range s.t {
+		q[j] = ch.sub[tj][c]
+	}
+	for ps := s.pos[c]; ps != 0; ps &= ps - 1 {
+		q[bitIndex64(ps)] = 0
+	}
+	if ch.lead > 0 && n > 0 {
+		// The first-letter surcharge (leadCost) on the spelling
+		// explanations of a substitution at the first typed byte;
+		// keyboard slips there cost what they cost anywhere.
+		if t0 := s.t[0]; c != t0 {
+			v := q[0] + ch.lead
+			if t0 < 128 && c < 128 {
+				v = min(v, ch.slipSub[t0][c])
+			}
+			q[0] = v
+		}
+	}
+	return q
+}
+
 // leadFirst adds the first-letter surcharge (leadCost) to the spelling
-// explanations of edits at the first typed byte; keyboard slips there cost
-// what they cost anywhere.
+// explanations of an extra first typed byte (substitutions there get it in
+// subRow); keyboard slips there cost what they cost anywhere.
 func (s *search) leadFirst() {
 	ch, n, t0 := s.ch, s.n, s.t[0]
-	for c := 0; c < 256; c++ {
-		if c == int(t0) {
-			continue
-		}
-		v := s.subC[c*n] + ch.lead
-		if t0 < 128 && c < 128 {
-			v = min(v, ch.slipSub[t0][c])
-		}
-		s.subC[c*n] = v
-	}
 	v := s.ins[0] + ch.lead
 	if n > 1 {
 		if t0 == s.t[1] {
@@ -731,7 +750,7 @@ func (s *search) computeRow(rs, ps, gs, d int, c, pc byte) float32 {
 	P := s.rows[ps*w : (ps+1)*w]
 	R := s.rows[rs*w : (rs+1)*w]
 	R = R[:len(P)]
-	sub := s.subC[int(c)*n : int(c)*n+n]
+	sub := s.subRow(c)
 	ins := s.ins[:n]
 	dc := ch.del[c]
 	if d >= 2 && pc == c {
