@@ -87,8 +87,31 @@ type topKMemo struct {
 	// view starts a new generation.
 	factGen uint32
 	facts   [factSlots]wordFacts
+	// The first stage of each evidence list for an earlier call's range,
+	// when it held every entry of that range the list's source offers
+	// (see firstStage in blend_topk.go).
+	first [nStreams]firstMemo
 	// The buffers of the search in progress (see searchBufs).
 	bufs searchBufs
+}
+
+// firstMemo is a remembered first stage of an evidence list: its entries
+// in a range, best first, and the bound of the range's other entries.
+type firstMemo struct {
+	ok     bool
+	stage  int8
+	whole  bool
+	prefix string
+	lo, hi uint32
+	tail   float64
+	n      int
+	buf    [MaxK]Scored
+}
+
+// covers reports whether the remembered range holds every word of r.
+func (f *firstMemo) covers(r *rangeQ) bool {
+	return f.ok && (f.whole || r.prefix != "" && strings.HasPrefix(r.prefix, f.prefix) &&
+		(r.lo >= r.hi || r.lo >= f.lo && r.hi <= f.hi))
 }
 
 // factSlots is the size of a memo's table of word facts (a power of two),
@@ -257,6 +280,9 @@ func (o *Overlay) publish(v *OverlayView) {
 func (m *topKMemo) reset(v *OverlayView) {
 	m.view = v
 	m.ok = false
+	for si := range m.first {
+		m.first[si].ok = false
+	}
 	m.state = [nStreams]uint8{}
 	m.baseState = memoNone
 	m.prefix = ""
@@ -299,6 +325,7 @@ func (m *topKMemo) begin(v *OverlayView, ctx []uint32, r *rangeQ) *query {
 		m.state = [nStreams]uint8{}
 		m.baseState = memoNone
 		m.prefix = ""
+		m.first[stBi].ok, m.first[stTri].ok, m.first[stCacheBi].ok = false, false, false
 		m.gen++
 		m.nWord = 0
 		if m.gen == 0 { // after 2³² histories: clear the table once

@@ -182,3 +182,86 @@ func TestOverlayMemoAcrossViews(t *testing.T) {
 		})
 	}
 }
+
+// The memo hands a search the first stage of an evidence list that an
+// earlier call under the same view (and, for the lists that depend on it,
+// the same history) built for a range around the query's (see firstStage).
+// Keystrokes that reach it (a remembered first stage covers the range) must
+// answer as ranking every word by LogProb on a copy of the view without a
+// memo (bruteBlend, the blend's definition): typing words letter by letter
+// after the next-word query, a backspace, the same prefix after another
+// history (the bigram and trigram stages must not be reused), and the same
+// prefix under a view that learned the typed word since (the unigram and
+// cache stages must not be reused across views), alternating with the old
+// view through the one shared memo. Cross-check of two code paths of the
+// project, no external source.
+func TestOverlayFirstStageReuse(t *testing.T) {
+	d := ksrSetup(t)
+	n := len(d.sentences)
+	ov, err := NewOverlay(d.base.m, bvocab{d.base.b}, OverlayOptions{MinTyped: 1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	learnAll(ov, d.sentences[:n/2])
+	bare := func(v *OverlayView) *OverlayView {
+		c := *v
+		c.memo = nil
+		return &c
+	}
+	reached := 0
+	check := func(name string, v *OverlayView, ctx []uint32, prefix string, k int) {
+		t.Helper()
+		lo, hi := prefixRange(d.base.b.Vocab, prefix)
+		r := rangeQ{prefix: prefix, lo: lo, hi: hi, whole: prefix == "" && lo == 0 && hi == v.V}
+		if m := v.memo.get(); m.view == v {
+			for si := range m.first {
+				if m.first[si].covers(&r) {
+					reached++
+					break
+				}
+			}
+		}
+		got := v.TopK(ctx, prefix, lo, hi, k, nil)
+		want := bruteBlend(bare(v), ctx, prefix, lo, hi, k)
+		if !sameScored(got, want, 1e-12) {
+			t.Errorf("%s: TopK(ctx %v, prefix %q, k %d) = %v, want %v", name, ctx, prefix, k, words(v, got), words(v, want))
+		}
+	}
+	for si, s := range []([]string){d.sentences[n/2], d.sentences[n/2+1], d.sentences[n-1]} {
+		v := ov.View()
+		ctx := []uint32{v.bos}
+		for wi, w := range s[:min(len(s), 5)] {
+			k := 1 + (si+wi)%4
+			for i := 0; i <= len(w); i++ {
+				check("typing", v, ctx[max(0, len(ctx)-2):], w[:i], k)
+			}
+			if len(w) >= 3 {
+				check("backspace", v, ctx[max(0, len(ctx)-2):], w[:1], k)
+				check("other history", v, []uint32{v.bos}, w[:2], k)
+				check("back", v, ctx[max(0, len(ctx)-2):], w[:2], k)
+			}
+			id, ok := v.ID(w)
+			if !ok {
+				id = v.unk
+			}
+			ctx = append(ctx, id)
+		}
+		// A Learn between keystrokes of one word, then both views in turn.
+		w := s[0]
+		ctx = []uint32{v.bos}
+		check("old view", v, ctx, "", 3)
+		check("old view", v, ctx, w[:1], 3)
+		for range 4 {
+			ov.Learn(strings.Join(s, " ")+".", n)
+		}
+		nv := ov.View()
+		for i := 1; i <= len(w); i++ {
+			check("new view", nv, ctx, w[:i], 3)
+			check("old view", v, ctx, w[:i], 3)
+		}
+	}
+	if reached == 0 {
+		t.Error("no keystroke found a remembered first stage covering its range: the test does not reach the reuse")
+	}
+	t.Logf("%d keystrokes with a remembered first stage", reached)
+}

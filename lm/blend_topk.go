@@ -149,8 +149,9 @@ func (v *OverlayView) inRange(tok uint32, r *rangeQ) bool {
 }
 
 // bestList fills s (stage 1) from a list of best entries, best first, of
-// which the source has more when full is set.
-func (v *OverlayView) bestList(s *stream, r *rangeQ, toks []topEntry, more bool) {
+// which the source has more when full is set. It reports whether s holds
+// every entry of toks in the range.
+func (v *OverlayView) bestList(s *stream, r *rangeQ, toks []topEntry, more bool) bool {
 	s.buf.k = MaxK
 	s.tail = 0
 	s.stage = 1
@@ -165,7 +166,7 @@ func (v *OverlayView) bestList(s *stream, r *rangeQ, toks []topEntry, more bool)
 		} else if more && n > 0 {
 			s.tail = toks[n-1].cnt
 		}
-		return
+		return n == len(toks)
 	}
 	n := 0
 	for _, e := range toks {
@@ -181,7 +182,9 @@ func (v *OverlayView) bestList(s *stream, r *rangeQ, toks []topEntry, more bool)
 		// The buffer dropped entries of the range (v.top lists more
 		// words than it holds): none is above its last.
 		s.tail = max(s.tail, s.buf.buf[s.buf.n-1].LogP)
+		return false
 	}
+	return true
 }
 
 // nodeRange calls f for each entry of nd with lo ≤ tok < hi.
@@ -580,7 +583,7 @@ func (t *thresholdSearch) run(m int) bool {
 			s.pos++
 			t.consider(pick, e.tok, e.val)
 		case s.stage == 0 && pick != stCacheBi:
-			v.stage1(pick, s, q, r)
+			t.firstStage(pick, s)
 		case (s.stage == 1 || s.stage == 2) && s.pos < s.buf.n:
 			e := s.buf.buf[s.pos]
 			s.pos++
@@ -794,13 +797,52 @@ func (v *OverlayView) streamBound(si int, q *query) float64 {
 	return 0
 }
 
-// stage1 reads list si's best entries in the range into s.
-func (v *OverlayView) stage1(si int, s *stream, q *query, r *rangeQ) {
+// firstStage fills s with list si's first stage, from the memo when it
+// holds one for a range around the query's. A remembered first stage that
+// held every entry its source offers in its range (the source's list of
+// best entries, or a small node read whole) holds, filtered, every entry
+// the source offers in the narrower range, best first, and the bound of
+// the others is the same: the stage is the one stage1 would build. The
+// unigram and cache-unigram stages depend on the view alone, the others on
+// the history too (see topKMemo.begin).
+func (t *thresholdSearch) firstStage(si int, s *stream) {
+	v, r, m := t.v, t.r, t.memo
+	if m == nil {
+		v.stage1(si, s, t.q, r)
+		return
+	}
+	f := &m.first[si]
+	if f.covers(r) {
+		s.stage, s.tail, s.buf.k, s.buf.n = f.stage, f.tail, MaxK, 0
+		for _, e := range f.buf[:f.n] {
+			if r.whole || v.inRange(e.ID, r) {
+				s.buf.buf[s.buf.n] = e
+				s.buf.n++
+			}
+		}
+		return
+	}
+	if v.stage1(si, s, t.q, r) {
+		f.set(s, r)
+	}
+}
+
+// set remembers s, a first stage that holds every entry its source offers
+// in range r.
+func (f *firstMemo) set(s *stream, r *rangeQ) {
+	f.ok, f.stage, f.whole, f.prefix, f.lo, f.hi, f.tail = true, s.stage, r.whole, r.prefix, r.lo, r.hi, s.tail
+	f.n = copy(f.buf[:], s.buf.buf[:s.buf.n])
+}
+
+// stage1 reads list si's best entries in the range into s. It reports
+// whether s holds every entry in the range that the list's source offers
+// (see firstStage).
+func (v *OverlayView) stage1(si int, s *stream, q *query, r *rangeQ) bool {
 	switch si {
 	case stUni:
 		// v.top lists the most counted suggestible words; the others are
 		// never returned, so their counts need no bound.
-		v.bestList(s, r, v.top[:v.nTop], v.nTop == uniTopLen)
+		return v.bestList(s, r, v.top[:v.nTop], v.nTop == uniTopLen)
 	case stBi, stTri:
 		nd := q.n2
 		if si == stTri {
@@ -809,17 +851,22 @@ func (v *OverlayView) stage1(si int, s *stream, q *query, r *rangeQ) {
 		top := nd.best()
 		if top == nil { // a small node: read it whole in order
 			s.stage, s.buf.k = 2, MaxK
-			v.scanNode(nd, r, s.keep)
-			return
+			n := 0
+			v.scanNode(nd, r, func(tok uint32, val float64) {
+				n++
+				s.keep(tok, val)
+			})
+			return n <= s.buf.n
 		}
-		v.bestList(s, r, top.e[:top.n], nd.size() > top.n)
+		return v.bestList(s, r, top.e[:top.n], nd.size() > top.n)
 	case stCacheUni:
 		var top [cacheBest]topEntry
 		for i, e := range v.cache.best[:v.cache.nbest] {
 			top[i] = topEntry{tok: e.tok, cnt: e.w}
 		}
-		v.bestList(s, r, top[:v.cache.nbest], v.cache.nUni > v.cache.nbest)
+		return v.bestList(s, r, top[:v.cache.nbest], v.cache.nUni > v.cache.nbest)
 	}
+	return false
 }
 
 // scan calls f for every entry of list si in the range.
