@@ -118,58 +118,105 @@ func (t *belowTable) final(i int) (bool, uint32) {
 // newBelowTable copies the automaton of lex, listing the edges of every
 // state reachable from its start with el, and records the byte sets of
 // each. It returns nil for an automaton too large to copy (2³¹ edges or
-// states). Cost: one edge listing and one Final per state, 16 bytes of
-// table per state and 9 per edge, and a map from lexicon states to nodes
-// while building (for the 74k-word SUBTLEX-US lexicon, 34,656 states and
-// 76,264 edges: about 1.2 MB).
+// states), and for a lexicon whose listings change between its two walks.
+// It walks the automaton twice, breadth-first: the first walk numbers the
+// states and counts the edges, so that the second fills arrays allocated
+// once at their final size (growing them as one walk went made the build
+// allocate about six times the table, 13.9 MB for the default model's
+// 2.4 MB table, and raised the peak RSS of a one-shot correction by about
+// 6 MB, measured, this project; BENCHMARKS.md). Cost: two edge listings
+// and one Final per state; 16 bytes of table per state and 9 per edge;
+// while building, 4 bytes per state (8 when a state does not fit 32 bits,
+// which costs a third walk) and a hash table of 4 bytes a slot, at most
+// half full (for the 74k-word SUBTLEX-US lexicon, 34,656 states and
+// 76,264 edges: a 1.24 MB table, 0.75 MB more while building and 2.9 MB
+// allocated in all).
 func newBelowTable(lex Lexicon, el EdgeLister) *belowTable {
-	t := &belowTable{}
-	var index stateIndex
-	index.put(lex.Start(), 0)
-	states := []int{lex.Start()}
+	// The states of a lexicon are mostly offsets that fit 32 bits: a
+	// list of those takes half the memory.
+	if t, fits := buildBelow[uint32](lex, el); fits {
+		return t
+	}
+	t, _ := buildBelow[int](lex, el)
+	return t
+}
+
+// lexState is a type newBelowTable lists lexicon states as while it
+// builds.
+type lexState interface{ ~int | ~uint32 }
+
+// buildBelow is newBelowTable with the walk's states listed as S. It
+// reports false, with no table, when a state does not fit S.
+func buildBelow[S lexState](lex Lexicon, el EdgeLister) (*belowTable, bool) {
+	var index stateIndex[S]
+	start := lex.Start()
+	if int(S(start)) != start {
+		return nil, false
+	}
+	states := []S{S(start)}
+	index.put(states, 0)
 	var buf []Edge
+	edges := 0
 	for i := 0; i < len(states); i++ {
-		if len(t.eb) >= finalBit || len(states) >= finalBit {
-			return nil
+		buf = el.AppendEdges(buf[:0], int(states[i]))
+		edges += len(buf)
+		if edges >= finalBit {
+			return nil, true
 		}
-		st := states[i]
-		nd := belowNode{lo: uint32(len(t.eb))}
-		if ok, fo := lex.Final(st); ok {
+		for _, e := range buf {
+			st := S(e.Next)
+			if int(st) != e.Next {
+				return nil, false
+			}
+			if _, seen := index.get(states, st); !seen {
+				if len(states) >= finalBit-1 {
+					return nil, true
+				}
+				states = append(doubled(states), st)
+				index.put(states, uint32(len(states)-1))
+			}
+		}
+	}
+	t := &belowTable{
+		nodes: make([]belowNode, len(states)+1),
+		eb:    make([]byte, edges),
+		en:    make([]uint32, edges),
+		eo:    make([]uint32, edges),
+	}
+	k := 0
+	for i, st := range states {
+		nd := &t.nodes[i]
+		nd.lo = uint32(k)
+		if ok, fo := lex.Final(int(st)); ok {
 			nd.lo |= finalBit
 			nd.fin = uint32(fo)
 		}
-		t.nodes = append(doubled(t.nodes), nd)
-		buf = el.AppendEdges(buf[:0], st)
+		nd.sets = unknownSets
+		buf = el.AppendEdges(buf[:0], int(st))
+		if k+len(buf) > edges {
+			return nil, true // the lexicon listed more edges than the first walk
+		}
 		for _, e := range buf {
-			k, seen := index.get(e.Next)
-			if !seen {
-				k = uint32(len(states))
-				index.put(e.Next, k)
-				states = append(doubled(states), e.Next)
+			n, seen := index.get(states, S(e.Next))
+			if !seen || int(S(e.Next)) != e.Next {
+				return nil, true // the lexicon listed a state the first walk did not
 			}
-			t.eb = append(doubled(t.eb), e.Byte)
-			t.en = append(doubled(t.en), k)
-			t.eo = append(doubled(t.eo), uint32(e.Out))
+			t.eb[k], t.en[k], t.eo[k] = e.Byte, n, uint32(e.Out)
+			k++
 		}
 	}
-	if len(t.eb) >= finalBit {
-		return nil
+	if k != edges {
+		return nil, true // the lexicon listed fewer edges than the first walk
 	}
-	t.nodes = append(t.nodes, belowNode{lo: uint32(len(t.eb))})
-	// Exact-size copies: the table lives as long as the corrector.
-	t.nodes, t.eb, t.en, t.eo = slices.Clone(t.nodes), slices.Clone(t.eb), slices.Clone(t.en), slices.Clone(t.eo)
-	for i := range states {
-		t.nodes[i].sets = unknownSets
-	}
-	t.fillSets(states)
-	return t
+	t.nodes[len(states)].lo = uint32(edges)
+	fillSets(t, states)
+	return t, true
 }
 
 // doubled returns s with room for one more element, doubling its
 // capacity when full: append alone grows a large slice by a quarter at a
-// time, which made building the table allocate about five times its
-// final size (18 MB for the 177k-word default lexicon, measured, this
-// project).
+// time, which allocates about five times the final size over the growth
+// instead of about twice (measured, this project).
 func doubled[T any](s []T) []T {
 	if len(s) == cap(s) {
 		s = slices.Grow(s, max(len(s), 256))
@@ -178,62 +225,55 @@ func doubled[T any](s []T) []T {
 }
 
 // stateIndex maps lexicon states to node indices while newBelowTable
-// builds: an open-addressing hash table, kept at most half full (a Go map
-// made the build twice as slow, measured, this project).
-type stateIndex struct {
-	keys  []uint64 // state+1, 0 for an empty slot
-	vals  []uint32
+// builds: an open-addressing hash table, kept at most half full, whose
+// slots hold node+1 (0 for an empty slot) and find their state in the
+// walk's list of states, so that a slot takes 4 bytes (a Go map made the
+// build twice as slow, measured, this project).
+type stateIndex[S lexState] struct {
+	slots []uint32
 	n     int
-	other map[int]uint32 // the state -1, whose key would be 0
 }
 
-// get returns the node of state and whether it has one.
-func (x *stateIndex) get(state int) (uint32, bool) {
-	if state == -1 {
-		v, ok := x.other[state]
-		return v, ok
-	}
-	if len(x.keys) == 0 {
+// stateHash returns the hash of a lexicon state for stateIndex.
+func stateHash[S lexState](state S) int {
+	return int((uint64(state) * 0x9e3779b97f4a7c15) >> 32)
+}
+
+// get returns the node of state and whether it has one; states lists the
+// states by node.
+func (x *stateIndex[S]) get(states []S, state S) (uint32, bool) {
+	if len(x.slots) == 0 {
 		return 0, false
 	}
-	key := uint64(state) + 1
-	mask := len(x.keys) - 1
-	for i := int((key*0x9e3779b97f4a7c15)>>32) & mask; ; i = (i + 1) & mask {
-		switch x.keys[i] {
-		case key:
-			return x.vals[i], true
-		case 0:
+	mask := len(x.slots) - 1
+	for i := stateHash(state) & mask; ; i = (i + 1) & mask {
+		v := x.slots[i]
+		if v == 0 {
 			return 0, false
+		}
+		if states[v-1] == state {
+			return v - 1, true
 		}
 	}
 }
 
-// put records the node of state, which has none yet.
-func (x *stateIndex) put(state int, node uint32) {
-	if state == -1 {
-		if x.other == nil {
-			x.other = map[int]uint32{}
-		}
-		x.other[state] = node
-		return
-	}
-	if 2*(x.n+1) > len(x.keys) {
-		oldK, oldV := x.keys, x.vals
-		size := max(2*len(oldK), 1024)
-		x.keys, x.vals, x.n = make([]uint64, size), make([]uint32, size), 0
-		for i, k := range oldK {
-			if k != 0 {
-				x.put(int(k-1), oldV[i])
+// put records node, whose state is states[node] and has no node yet.
+func (x *stateIndex[S]) put(states []S, node uint32) {
+	if 2*(x.n+1) > len(x.slots) {
+		old := x.slots
+		x.slots, x.n = make([]uint32, max(2*len(old), 1024)), 0
+		for _, v := range old {
+			if v != 0 {
+				x.put(states, v-1)
 			}
 		}
 	}
-	key := uint64(state) + 1
-	mask := len(x.keys) - 1
-	i := int((key*0x9e3779b97f4a7c15)>>32) & mask
-	for x.keys[i] != 0 {
+	mask := len(x.slots) - 1
+	i := stateHash(states[node]) & mask
+	for x.slots[i] != 0 {
 		i = (i + 1) & mask
 	}
-	x.keys[i], x.vals[i] = key, node
+	x.slots[i] = node + 1
 	x.n++
 }
 
@@ -242,11 +282,11 @@ func (x *stateIndex) put(state int, node uint32) {
 // suffix states are walked once). Below depth 4×maxTyped, deeper than any
 // search goes, and for states outside the range of tableKey, it records no
 // bound (every byte).
-func (t *belowTable) fillSets(states []int) {
+func fillSets[S lexState](t *belowTable, states []S) {
 	done := make([]bool, len(states))
 	var walk func(i, depth int) uint32
 	walk = func(i, depth int) uint32 {
-		if !tableKey(states[i]) {
+		if !tableKey(int(states[i])) {
 			return belowAll
 		}
 		if done[i] {

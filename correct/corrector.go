@@ -250,10 +250,11 @@ func (c *Corrector) passRef(i int) float64 {
 }
 
 // New builds a Corrector over a lexicon and a language-model scorer. With
-// a lexicon that lists edges ([EdgeLister]) it walks the lexicon once to
+// a lexicon that lists edges ([EdgeLister]) it walks the lexicon twice to
 // copy its automaton into the arrays the search walks, with the table
 // behind the search's lower bound (below.go): for the 74k-word SUBTLEX-US
-// lexicon 34,656 states, about 1.2 MB and a few tens of milliseconds.
+// lexicon 34,656 states, a 1.24 MB table built with 2.9 MB of allocations
+// in about 15 ms on this project's machine.
 func New(lex Lexicon, lm Scorer, opts Options) (*Corrector, error) {
 	if lex == nil {
 		return nil, ErrNoLexicon
