@@ -272,13 +272,7 @@ func BenchmarkMidPassRef(b *testing.B) {
 // times and the median over words of their ratio (setting 1 / setting 0).
 func compareSearches(b *testing.B, names [2]string, set func(c *Corrector, m int)) {
 	b.Helper()
-	d := corpus(b)
-	typed := eightLetterTyped(b)
-	lex := newTrieLex(b, d.subtlexLex)
-	c, err := New(lex, d.unigramScorer(d.subtlexLex), Options{MaxStates: benchCap})
-	if err != nil {
-		b.Fatal(err)
-	}
+	c, typed := cappedCorrector(b)
 	runtime.LockOSThread()
 	defer runtime.UnlockOSThread()
 	var best [2][]time.Duration
@@ -332,13 +326,7 @@ func compareSearches(b *testing.B, names [2]string, set func(c *Corrector, m int
 // in a wider pass that goes to the narrower passes' prefixes, which the
 // wider pass walks again. Run it for a few rounds: -benchtime=3x.
 func BenchmarkPasses(b *testing.B) {
-	d := corpus(b)
-	typed := eightLetterTyped(b)
-	lex := newTrieLex(b, d.subtlexLex)
-	c, err := New(lex, d.unigramScorer(d.subtlexLex), Options{MaxStates: benchCap})
-	if err != nil {
-		b.Fatal(err)
-	}
+	c, typed := cappedCorrector(b)
 	runtime.LockOSThread()
 	defer runtime.UnlockOSThread()
 	const passes = 3
@@ -453,4 +441,16 @@ func BenchmarkPasses(b *testing.B) {
 	slices.Sort(tot)
 	b.ReportMetric(tot[len(tot)/2], "search-median-ns")
 	b.ReportMetric(tot[len(tot)*99/100], "search-p99-ns")
+}
+
+// cappedCorrector returns a corrector over the SUBTLEX-US trie lexicon
+// with the engine's cap and the 8-letter misspellings of BenchmarkCorrect8.
+func cappedCorrector(b *testing.B) (*Corrector, []string) {
+	b.Helper()
+	d := corpus(b)
+	c, err := New(newTrieLex(b, d.subtlexLex), d.unigramScorer(d.subtlexLex), Options{MaxStates: benchCap})
+	if err != nil {
+		b.Fatal(err)
+	}
+	return c, eightLetterTyped(b)
 }

@@ -119,18 +119,8 @@ func TestOverlayTopKKeystrokes(t *testing.T) {
 // reference into the superseded view (so that a Forget or Wipe does not
 // leave the old view reachable through it).
 func TestOverlayMemoAcrossViews(t *testing.T) {
-	d := ksrSetup(t)
+	d, ov := halfLearned(t)
 	n := len(d.sentences)
-	ov, err := NewOverlay(d.base.m, bvocab{d.base.b}, OverlayOptions{MinTyped: 1})
-	if err != nil {
-		t.Fatal(err)
-	}
-	learnAll(ov, d.sentences[:n/2])
-	bare := func(v *OverlayView) *OverlayView {
-		c := *v
-		c.memo = nil
-		return &c
-	}
 	check := func(name string, v *OverlayView, ctx []uint32, prefix string) {
 		t.Helper()
 		lo, hi := prefixRange(d.base.b.Vocab, prefix)
@@ -196,18 +186,8 @@ func TestOverlayMemoAcrossViews(t *testing.T) {
 // view through the one shared memo. Cross-check of two code paths of the
 // project, no external source.
 func TestOverlayFirstStageReuse(t *testing.T) {
-	d := ksrSetup(t)
+	d, ov := halfLearned(t)
 	n := len(d.sentences)
-	ov, err := NewOverlay(d.base.m, bvocab{d.base.b}, OverlayOptions{MinTyped: 1})
-	if err != nil {
-		t.Fatal(err)
-	}
-	learnAll(ov, d.sentences[:n/2])
-	bare := func(v *OverlayView) *OverlayView {
-		c := *v
-		c.memo = nil
-		return &c
-	}
 	reached := 0
 	check := func(name string, v *OverlayView, ctx []uint32, prefix string, k int) {
 		t.Helper()
@@ -264,4 +244,24 @@ func TestOverlayFirstStageReuse(t *testing.T) {
 		t.Error("no keystroke found a remembered first stage covering its range: the test does not reach the reuse")
 	}
 	t.Logf("%d keystrokes with a remembered first stage", reached)
+}
+
+// halfLearned returns the KSR test setup and an overlay (MinTyped 1) that
+// has learned the first half of its sentences.
+func halfLearned(t *testing.T) (ksrData, *Overlay) {
+	t.Helper()
+	d := ksrSetup(t)
+	ov, err := NewOverlay(d.base.m, bvocab{d.base.b}, OverlayOptions{MinTyped: 1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	learnAll(ov, d.sentences[:len(d.sentences)/2])
+	return d, ov
+}
+
+// bare returns a copy of v without its memo: the memo-less path.
+func bare(v *OverlayView) *OverlayView {
+	c := *v
+	c.memo = nil
+	return &c
 }
