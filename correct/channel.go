@@ -1,8 +1,11 @@
 package correct
 
 import (
+	"cmp"
 	"math"
+	"slices"
 	"sort"
+	"strings"
 	"unicode/utf8"
 )
 
@@ -85,7 +88,7 @@ var alphabet = []byte("abcdefghijklmnopqrstuvwxyz'-")
 
 // newChannel compiles the costs for a keyboard and an error model.
 func newChannel(kb *Keyboard, em *ErrorModel) *channel {
-	ch := &channel{byBeta: map[string][]int32{}, lead: leadCost}
+	ch := &channel{lead: leadCost}
 	bo := em.backoff
 	ln := func(p float64) float32 { return float32(-math.Log(p)) }
 	// Keyboard slips between ASCII keys.
@@ -160,7 +163,6 @@ func newChannel(kb *Keyboard, em *ErrorModel) *channel {
 		case len(a) == 1 && b == "":
 			ch.del[a[0]] = min(ch.del[a[0]], cost)
 		default:
-			ch.byBeta[b] = append(ch.byBeta[b], int32(len(ch.rules)))
 			cr := chRule{alpha: a, beta: b, cost: cost, alphaBits: classBits(a)}
 			if len(a) > 1 {
 				cr.next1, cr.rest2 = belowBit(a[1]), classBits(a[2:])
@@ -169,6 +171,7 @@ func newChannel(kb *Keyboard, em *ErrorModel) *channel {
 			ch.maxAlpha = max(ch.maxAlpha, len(a))
 		}
 	}
+	ch.rules = make([]chRule, 0, len(em.rules)+2*len(accentPairs))
 	for _, r := range em.rules {
 		add(r.Intended, r.Typed, float32(r.Cost))
 	}
@@ -176,24 +179,38 @@ func newChannel(kb *Keyboard, em *ErrorModel) *channel {
 		add(p[0], p[1], accentCost)
 		add(p[1], p[0], accentCost+1)
 	}
-	seenLen := map[int]bool{}
+	ch.byBeta = groupByBeta(ch.rules)
 	for b := range ch.byBeta {
-		if !seenLen[len(b)] {
-			seenLen[len(b)] = true
+		if !slices.Contains(ch.betaLens, len(b)) {
 			ch.betaLens = append(ch.betaLens, len(b))
 		}
 	}
 	sort.Ints(ch.betaLens)
 	// Cost-sorted lists for choosing which bytes to try in the search.
 	ch.minEdit = min(ch.delDbl, ch.insDbl, ch.trans, ch.insBase)
+	byCost := func(a, b costOpt) int { return cmp.Compare(a.cost, b.cost) }
+	var pool []costOpt // backing array of the cheapSub lists
 	for t := 0; t < 256; t++ {
-		var l []costOpt
+		n := 0
+		for c := 0; c < 256; c++ {
+			if c != t && (isAlpha(byte(c)) || ch.sub[t][c] < float32(bo.Sub)) {
+				n++
+			}
+		}
+		if len(pool) < n {
+			pool = make([]costOpt, max(n, 32*(256-t)))
+		}
+		l := pool[:0:n]
+		pool = pool[n:]
 		for c := 0; c < 256; c++ {
 			if c != t && (isAlpha(byte(c)) || ch.sub[t][c] < float32(bo.Sub)) {
 				l = append(l, costOpt{byte(c), ch.sub[t][c]})
 			}
 		}
-		sort.SliceStable(l, func(i, j int) bool { return l[i].cost < l[j].cost })
+		slices.SortStableFunc(l, byCost)
+		if n == 0 {
+			l = nil
+		}
 		ch.cheapSub[t] = l
 		if len(l) > 0 {
 			ch.minEdit = min(ch.minEdit, l[0].cost)
@@ -204,9 +221,36 @@ func newChannel(kb *Keyboard, em *ErrorModel) *channel {
 			ch.cheapDel = append(ch.cheapDel, costOpt{byte(c), ch.del[c]})
 		}
 	}
-	sort.SliceStable(ch.cheapDel, func(i, j int) bool { return ch.cheapDel[i].cost < ch.cheapDel[j].cost })
+	slices.SortStableFunc(ch.cheapDel, byCost)
 	ch.minEdit = min(ch.minEdit, ch.cheapDel[0].cost)
 	return ch
+}
+
+// groupByBeta indexes rules by their typed side β: each list holds the
+// rule indices in increasing order. The lists share one backing array and
+// are capped, so appending to one cannot overwrite another.
+func groupByBeta(rules []chRule) map[string][]int32 {
+	order := make([]int32, len(rules))
+	for i := range order {
+		order[i] = int32(i)
+	}
+	slices.SortStableFunc(order, func(a, b int32) int { return strings.Compare(rules[a].beta, rules[b].beta) })
+	distinct := 0
+	for i := range order {
+		if i == 0 || rules[order[i]].beta != rules[order[i-1]].beta {
+			distinct++
+		}
+	}
+	m := make(map[string][]int32, distinct)
+	for lo := 0; lo < len(order); {
+		hi := lo + 1
+		for hi < len(order) && rules[order[hi]].beta == rules[order[lo]].beta {
+			hi++
+		}
+		m[rules[order[lo]].beta] = order[lo:hi:hi]
+		lo = hi
+	}
+	return m
 }
 
 func isAlpha(c byte) bool {

@@ -9,6 +9,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -63,13 +64,25 @@ func (m *ErrorModel) Backoff() Backoff { return m.backoff }
 func (m *ErrorModel) Rules() []Rule { return append([]Rule(nil), m.rules...) }
 
 //go:embed errmodel.tsv
-var builtinErrorModel []byte
+var builtinErrorModel string
 
 // BuiltinErrorModel parses the error model shipped with the package
 // (errmodel.tsv, trained on the development half of the Wikipedia list of
 // common misspellings by internal/errtrain). Each call returns a new value.
+// Its rule sides are slices of the embedded table, so parsing it
+// allocates little beyond the rule list.
 func BuiltinErrorModel() (*ErrorModel, error) {
-	return ParseErrorModel(bytes.NewReader(builtinErrorModel))
+	m := &ErrorModel{rules: make([]Rule, 0, strings.Count(builtinErrorModel, "\n"))}
+	p := tableParser{m: m}
+	rest := builtinErrorModel
+	for rest != "" {
+		var s string
+		s, rest, _ = strings.Cut(rest, "\n")
+		if err := p.line(strings.TrimSuffix(s, "\r")); err != nil {
+			return nil, err
+		}
+	}
+	return p.finish()
 }
 
 // emptySide stands for an empty rule side in the table format.
@@ -103,61 +116,85 @@ const affixBit = 1 << 7
 // "INTENDED<TAB>TYPED<TAB>COST" rule lines, where an empty side is written "∅".
 // It returns an error wrapping ErrErrorModel on malformed input.
 func ParseErrorModel(r io.Reader) (*ErrorModel, error) {
-	m := &ErrorModel{}
-	seen := 0
+	p := tableParser{m: &ErrorModel{}}
 	sc := bufio.NewScanner(r)
 	sc.Buffer(make([]byte, 0, 256), 4096)
-	line := 0
 	for sc.Scan() {
-		line++
-		s := sc.Text()
-		if s == "" || s[0] == '#' {
-			continue
+		if err := p.line(string(sc.Bytes())); err != nil {
+			return nil, err
 		}
-		if !utf8.ValidString(s) {
-			return nil, fmt.Errorf("%w: line %d: invalid UTF-8", ErrErrorModel, line)
-		}
-		f := strings.Split(s, "\t")
-		cost, err := strconv.ParseFloat(f[len(f)-1], 64)
-		if err != nil || math.IsNaN(cost) || math.IsInf(cost, 0) || cost < 0 || cost > 100 {
-			return nil, fmt.Errorf("%w: line %d: bad cost", ErrErrorModel, line)
-		}
-		if strings.HasPrefix(f[0], "@") {
-			if len(f) != 2 {
-				return nil, fmt.Errorf("%w: line %d: want @NAME<TAB>COST", ErrErrorModel, line)
-			}
-			i := indexOf(backoffNames[:], f[0][1:])
-			if i < 0 {
-				return nil, fmt.Errorf("%w: line %d: unknown backoff %q", ErrErrorModel, line, f[0])
-			}
-			*m.backoff.field(i) = cost
-			seen |= 1 << i
-			continue
-		}
-		if len(f) != 3 {
-			return nil, fmt.Errorf("%w: line %d: want INTENDED<TAB>TYPED<TAB>COST", ErrErrorModel, line)
-		}
-		a, b := unDash(f[0]), unDash(f[1])
-		if a == "" || a == b || len(a) > maxRuleLen || len(b) > maxRuleLen {
-			return nil, fmt.Errorf("%w: line %d: bad rule %q→%q", ErrErrorModel, line, a, b)
-		}
-		if len(m.rules) >= maxRules {
-			return nil, fmt.Errorf("%w: more than %d rules", ErrErrorModel, maxRules)
-		}
-		m.rules = append(m.rules, Rule{Intended: a, Typed: b, Cost: cost})
 	}
 	if err := sc.Err(); err != nil {
-		return nil, fmt.Errorf("%w: line %d: %v", ErrErrorModel, line+1, err)
+		return nil, fmt.Errorf("%w: line %d: %v", ErrErrorModel, p.n+1, err)
 	}
-	if seen&affixBit == 0 {
-		m.backoff.Affix = DefaultAffixCost // tables written before the affix line
-		seen |= affixBit
+	return p.finish()
+}
+
+// tableParser reads the lines of an error-model table one at a time.
+type tableParser struct {
+	m    *ErrorModel
+	seen int // bit i: backoff line i read
+	n    int // lines read
+}
+
+// line reads one line s of the table, without its line end. Rule sides are
+// kept as slices of s.
+func (p *tableParser) line(s string) error {
+	p.n++
+	line := p.n
+	if s == "" || s[0] == '#' {
+		return nil
 	}
-	if seen != 1<<len(backoffNames)-1 {
+	if !utf8.ValidString(s) {
+		return fmt.Errorf("%w: line %d: invalid UTF-8", ErrErrorModel, line)
+	}
+	// Split on tabs without allocating: at most three fields are used, and
+	// nf counts them all.
+	nf := strings.Count(s, "\t") + 1
+	f0, after, _ := strings.Cut(s, "\t")
+	f1, _, _ := strings.Cut(after, "\t")
+	last := s[strings.LastIndexByte(s, '\t')+1:]
+	cost, err := strconv.ParseFloat(last, 64)
+	if err != nil || math.IsNaN(cost) || math.IsInf(cost, 0) || cost < 0 || cost > 100 {
+		return fmt.Errorf("%w: line %d: bad cost", ErrErrorModel, line)
+	}
+	if strings.HasPrefix(f0, "@") {
+		if nf != 2 {
+			return fmt.Errorf("%w: line %d: want @NAME<TAB>COST", ErrErrorModel, line)
+		}
+		i := indexOf(backoffNames[:], f0[1:])
+		if i < 0 {
+			return fmt.Errorf("%w: line %d: unknown backoff %q", ErrErrorModel, line, f0)
+		}
+		*p.m.backoff.field(i) = cost
+		p.seen |= 1 << i
+		return nil
+	}
+	if nf != 3 {
+		return fmt.Errorf("%w: line %d: want INTENDED<TAB>TYPED<TAB>COST", ErrErrorModel, line)
+	}
+	a, b := unDash(f0), unDash(f1)
+	if a == "" || a == b || len(a) > maxRuleLen || len(b) > maxRuleLen {
+		return fmt.Errorf("%w: line %d: bad rule %q→%q", ErrErrorModel, line, a, b)
+	}
+	if len(p.m.rules) >= maxRules {
+		return fmt.Errorf("%w: more than %d rules", ErrErrorModel, maxRules)
+	}
+	p.m.rules = append(p.m.rules, Rule{Intended: a, Typed: b, Cost: cost})
+	return nil
+}
+
+// finish checks the backoff lines, fills in defaults and sorts the rules.
+func (p *tableParser) finish() (*ErrorModel, error) {
+	if p.seen&affixBit == 0 {
+		p.m.backoff.Affix = DefaultAffixCost // tables written before the affix line
+		p.seen |= affixBit
+	}
+	if p.seen != 1<<len(backoffNames)-1 {
 		return nil, fmt.Errorf("%w: missing backoff lines", ErrErrorModel)
 	}
-	m.sortRules()
-	return m, nil
+	p.m.sortRules()
+	return p.m, nil
 }
 
 // WriteTo writes the model in the format ParseErrorModel reads. The output
@@ -176,6 +213,16 @@ func (m *ErrorModel) WriteTo(w io.Writer) (int64, error) {
 }
 
 func (m *ErrorModel) sortRules() {
+	// A table already in strictly increasing order (as written by WriteTo)
+	// is left as it is: sorting could not change it.
+	if slices.IsSortedFunc(m.rules, func(a, b Rule) int {
+		if c := strings.Compare(a.Intended, b.Intended); c != 0 {
+			return c
+		}
+		return strings.Compare(a.Typed, b.Typed)
+	}) && !hasEqualNeighbours(m.rules) {
+		return
+	}
 	sort.Slice(m.rules, func(i, j int) bool {
 		a, b := m.rules[i], m.rules[j]
 		if a.Intended != b.Intended {
@@ -183,6 +230,16 @@ func (m *ErrorModel) sortRules() {
 		}
 		return a.Typed < b.Typed
 	})
+}
+
+// hasEqualNeighbours reports whether two adjacent rules have the same sides.
+func hasEqualNeighbours(rules []Rule) bool {
+	for i := 1; i < len(rules); i++ {
+		if rules[i].Intended == rules[i-1].Intended && rules[i].Typed == rules[i-1].Typed {
+			return true
+		}
+	}
+	return false
 }
 
 func indexOf(list []string, s string) int {
