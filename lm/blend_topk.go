@@ -439,17 +439,12 @@ func (s *memoSlot) noteShort(short, ok, kEnough bool) {
 // moves to its next stage (see stream) when its bound keeps the search
 // from stopping and it has nothing left to read in order.
 func (v *OverlayView) threshold(q *query, r *rangeQ, k, m int, res *topBuf) bool {
-	return v.thresholdMemo(q, r, k, m, res, nil)
-}
-
-// thresholdMemo is threshold with the view's memo (nil: none), which the
-// caller holds locked.
-func (v *OverlayView) thresholdMemo(q *query, r *rangeQ, k, m int, res *topBuf, memo *topKMemo) bool {
 	var bufs searchBufs
-	return v.thresholdBufs(q, r, k, m, res, memo, &bufs)
+	return v.thresholdBufs(q, r, k, m, res, nil, &bufs)
 }
 
-// thresholdBufs is thresholdMemo with the given buffers.
+// thresholdBufs is threshold with the view's memo (nil: none), which the
+// caller holds locked, and the given buffers.
 func (v *OverlayView) thresholdBufs(q *query, r *rangeQ, k, m int, res *topBuf, memo *topKMemo, bufs *searchBufs) bool {
 	bufs.reset()
 	t := thresholdSearch{searchBufs: bufs, v: v, q: q, r: r, k: k, res: res, c: v.coefficients(q), memo: memo}
