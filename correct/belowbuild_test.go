@@ -49,7 +49,9 @@ type edgeLexicon interface {
 // appending build (refBelowTable), on the SUBTLEX-US word list
 // (corpora/subtlex-us-word-counts.tsv) through both test lexicons and on
 // small hand-made lists, and that each array is allocated at its final
-// size.
+// size. A cross-check of two code paths of the project, no external
+// source; TestBelowTableMatchesWordList checks the table against the word
+// list itself.
 func TestBelowTableMatchesReference(t *testing.T) {
 	d := corpus(t)
 	tests := []struct {

@@ -11,7 +11,9 @@ import (
 // BuiltinErrorModel used before they were made to allocate less: reading
 // the table through ParseErrorModel, one appended slice per β in a Go
 // map, and one appended, stably sorted list per typed byte. The leaner
-// builds must give exactly the same values.
+// builds must give exactly the same values. Cross-checks of two code
+// paths of the project, no external source (the accuracy tests check the
+// channel against the misspellings list).
 
 // TestBuiltinErrorModelMatchesReader checks that BuiltinErrorModel, which
 // slices the embedded table in place, reads the same backoff costs and
