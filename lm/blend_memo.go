@@ -402,15 +402,9 @@ func (m *topKMemo) scan(v *OverlayView, si int, q *query, r *rangeQ, f func(uint
 		}
 		return
 	case memoOuter:
-		keep := m.lists[si][:0]
-		for _, e := range m.lists[si] {
-			if e.tok < v.V && e.tok >= r.lo && e.tok < r.hi || e.tok >= v.V && v.hasPrefix(e.tok, r.prefix) {
-				keep = append(keep, e)
-				f(e.tok, e.val)
-			}
+		for _, e := range m.narrow(v, si, r) {
+			f(e.tok, e.val)
 		}
-		m.lists[si] = keep
-		m.state[si] = memoExact
 		return
 	}
 	m.byVal[si] = false
@@ -427,6 +421,29 @@ func (m *topKMemo) scan(v *OverlayView, si int, q *query, r *rangeQ, f func(uint
 	m.state[si] = memoExact
 }
 
+// collect fills the memo with every entry of list si in range r and
+// returns them, in scan order. The range must have a prefix and the memo
+// must not hold the list yet (a search reaches its stage 2 only for a list
+// the memo did not hold at its stage 0; see has).
+func (m *topKMemo) collect(v *OverlayView, si int, q *query, r *rangeQ) []memoEnt {
+	m.byVal[si] = false
+	list := m.lists[si][:0]
+	v.scan(si, q, r, m, func(tok uint32, val float64) {
+		list = append(list, memoEnt{tok, val})
+	})
+	m.lists[si] = list
+	m.state[si] = memoExact
+	return list
+}
+
+// sortList sorts the memo's list si best first (ties: lower ID first).
+func (m *topKMemo) sortList(si int) {
+	if !m.byVal[si] {
+		sortByValue(m.lists[si])
+		m.byVal[si] = true
+	}
+}
+
 // has reports whether the memo holds list si complete for the range of
 // the current call.
 func (m *topKMemo) has(si int) bool { return m.state[si] != memoNone && m.prefix != "" }
@@ -436,16 +453,52 @@ func (m *topKMemo) has(si int) bool { return m.state[si] != memoNone && m.prefix
 // memo sorted, so that later keystrokes only filter it.
 func (m *topKMemo) sorted(v *OverlayView, si int, r *rangeQ) []memoEnt {
 	if m.state[si] == memoOuter {
-		m.scan(v, si, nil, r, func(uint32, float64) {})
+		m.narrow(v, si, r)
 	}
-	if !m.byVal[si] {
-		slices.SortFunc(m.lists[si], func(a, b memoEnt) int {
+	m.sortList(si)
+	return m.lists[si]
+}
+
+// narrow filters the memo's list si, which holds the entries of an
+// enclosing range, to range r, keeping their order, and returns it.
+func (m *topKMemo) narrow(v *OverlayView, si int, r *rangeQ) []memoEnt {
+	keep := m.lists[si][:0]
+	for _, e := range m.lists[si] {
+		if e.tok < v.V && e.tok >= r.lo && e.tok < r.hi || e.tok >= v.V && v.hasPrefix(e.tok, r.prefix) {
+			keep = append(keep, e)
+		}
+	}
+	m.lists[si] = keep
+	m.state[si] = memoExact
+	return keep
+}
+
+// sortByValue sorts s best first, ties by lower ID first. The entries of
+// one list have distinct IDs, so the order is unique. A short list (the
+// usual case: a list filtered to a longer prefix) is sorted by insertion
+// with the comparison written out, which costs less than a sort through a
+// comparison function; a long one by slices.SortFunc.
+func sortByValue(s []memoEnt) {
+	if len(s) > insertionMax {
+		slices.SortFunc(s, func(a, b memoEnt) int {
 			if c := cmp.Compare(b.val, a.val); c != 0 {
 				return c
 			}
 			return cmp.Compare(a.tok, b.tok)
 		})
-		m.byVal[si] = true
+		return
 	}
-	return m.lists[si]
+	for i := 1; i < len(s); i++ {
+		e := s[i]
+		j := i
+		for ; j > 0 && (e.val > s[j-1].val || e.val == s[j-1].val && e.tok < s[j-1].tok); j-- {
+			s[j] = s[j-1]
+		}
+		s[j] = e
+	}
 }
+
+// insertionMax is the longest list sortByValue sorts by insertion: below a
+// few dozen entries insertion sort's quadratic cost stays under a general
+// sort's overhead (common practice, no source; 48 not tuned).
+const insertionMax = 48

@@ -1,8 +1,11 @@
 package lm
 
 import (
+	"cmp"
+	"fmt"
 	"math"
 	"math/rand/v2"
+	"slices"
 	"strings"
 	"testing"
 )
@@ -264,4 +267,54 @@ func bare(v *OverlayView) *OverlayView {
 	c := *v
 	c.memo = nil
 	return &c
+}
+
+// sortByValue must order a list as the standard library's slices.SortFunc
+// (the reference) does with the same comparison, value descending and
+// then ID ascending, for lists on both sides of insertionMax, with ties
+// of value, already sorted and reversed input. Entries of one list have
+// distinct IDs, so the reference's order is the only right one.
+func TestSortByValue(t *testing.T) {
+	rng := rand.New(rand.NewPCG(11, 5))
+	random := func(n, distinctVals int) []memoEnt {
+		s := make([]memoEnt, n)
+		for i, tok := range rng.Perm(n) {
+			s[i] = memoEnt{tok: uint32(tok) * 3, val: float64(rng.IntN(distinctVals))}
+		}
+		return s
+	}
+	cases := []struct {
+		name string
+		s    []memoEnt
+	}{
+		{"empty", nil},
+		{"one", []memoEnt{{tok: 4, val: 1}}},
+		{"two-tied", []memoEnt{{tok: 9, val: 2}, {tok: 4, val: 2}}},
+		{"sorted", []memoEnt{{tok: 1, val: 5}, {tok: 2, val: 4}, {tok: 3, val: 3}}},
+		{"reversed", []memoEnt{{tok: 3, val: 3}, {tok: 2, val: 4}, {tok: 1, val: 5}}},
+	}
+	for _, n := range []int{insertionMax - 1, insertionMax, insertionMax + 1, 200} {
+		for _, d := range []int{3, 1 << 20} {
+			cases = append(cases, struct {
+				name string
+				s    []memoEnt
+			}{fmt.Sprintf("random-%d-vals-%d", n, d), random(n, d)})
+		}
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			got := slices.Clone(c.s)
+			want := slices.Clone(c.s)
+			sortByValue(got)
+			slices.SortFunc(want, func(a, b memoEnt) int {
+				if x := cmp.Compare(b.val, a.val); x != 0 {
+					return x
+				}
+				return cmp.Compare(a.tok, b.tok)
+			})
+			if !slices.Equal(got, want) {
+				t.Errorf("sortByValue(%v) = %v, want %v", c.s, got, want)
+			}
+		})
+	}
 }

@@ -102,7 +102,10 @@ func (c *coef) bound(pb float64, ev *evidence) float64 {
 // every entry of the source in the range is met once, in any order (stage 3).
 // A list the view's memo holds complete for the range is read from stage 0
 // straight through, best first (stage 4: every entry of the range, in
-// order of value).
+// order of value). Under the memo, with a typed prefix, the scan of stage
+// 2 keeps every entry it meets in the memo (for the next keystrokes), and
+// when they are few (at most insertionMax) the stream reads all of them
+// sorted as stage 4 instead of picking the best MaxK into its buffer.
 type stream struct {
 	buf   topBuf // stage 1: LogP holds the value
 	pos   int
@@ -583,6 +586,21 @@ func (t *thresholdSearch) run(m int) bool {
 			e := s.buf.buf[s.pos]
 			s.pos++
 			t.consider(pick, e.ID, e.LogP)
+		case s.stage <= 1 && t.memo != nil && r.prefix != "":
+			// Every entry of the range, kept in the memo for the next
+			// keystrokes; a short list is read whole in order of value
+			// (as stage 4), a long one through its best MaxK.
+			all := t.memo.collect(v, pick, q, r)
+			if len(all) <= insertionMax {
+				t.memo.sortList(pick)
+				s.stage, s.pos, s.all = 4, 0, all
+				break
+			}
+			s.stage, s.pos, s.buf.n, s.buf.k = 2, 0, 0, MaxK
+			for _, e := range all {
+				s.keep(e.tok, e.val)
+			}
+			s.tail = s.buf.buf[s.buf.n-1].LogP
 		case s.stage <= 1:
 			// The best MaxK entries in the range, in order.
 			s.stage, s.pos, s.buf.n, s.buf.k = 2, 0, 0, MaxK
