@@ -32,11 +32,16 @@ func eightLetterTyped(b *testing.B) []string {
 // API, which decodes and allocates a state per call) and trie (the same
 // FST bytes read by the trie package's decoder, as the engine does).
 // The trie is also searched with the previous depth-first widest pass
-// (trie-depthfirst), and both with the engine's cap (-cap);
+// (trie-depthfirst; the widest pass restricted by skelFilter walks
+// depth-first anyway, so this now differs from trie only in a second
+// pass whose budget is Options.MaxCost), and both with the engine's cap
+// (-cap);
 // trie-cap-rowbound is the search before the letters-below bound (row
-// minimum only, the previous cap of 15,000 states entered), and
+// minimum only, the previous cap of 15,000 states entered),
 // trie-cap-noparent the search without the check of parentBound
-// (parentbound.go) before a child's row is computed. Besides
+// (parentbound.go) before a child's row is computed, and
+// trie-cap-wholewide the previous widest pass (the whole lexicon, not
+// only the words skelFilter keeps, skeleton.go). Besides
 // latency (wall and, where the thread's CPU clock is read, CPU time of
 // the calling thread, which other processes disturb less) it reports the
 // states visited and the DP rows computed per word, which do not depend
@@ -55,15 +60,17 @@ func BenchmarkCorrect8(b *testing.B) {
 		cap        int
 		rowBound   bool // the previous bound: no letters-below table
 		noParent   bool // the previous search: no parentBound check
+		fullWide   bool // the previous widest pass: the whole lexicon
 	}{
-		{"flat", newFlatLex(d.subtlexLex), d.subtlexLex, false, 0, false, false},
-		{"vellum", newVellumLex(b, d.subtlexLex), d.subtlexLex, false, 0, false, false},
-		{"trie", newTrieLex(b, d.subtlexLex), d.subtlexLex, false, 0, false, false},
-		{"trie-depthfirst", newTrieLex(b, d.subtlexLex), d.subtlexLex, true, 0, false, false},
-		{"trie-cap", newTrieLex(b, d.subtlexLex), d.subtlexLex, false, benchCap, false, false},
-		{"trie-cap-noparent", newTrieLex(b, d.subtlexLex), d.subtlexLex, false, benchCap, false, true},
-		{"trie-depthfirst-cap", newTrieLex(b, d.subtlexLex), d.subtlexLex, true, benchCap, false, false},
-		{"trie-cap-rowbound", newTrieLex(b, d.subtlexLex), d.subtlexLex, false, prevBenchCap, true, false},
+		{"flat", newFlatLex(d.subtlexLex), d.subtlexLex, false, 0, false, false, false},
+		{"vellum", newVellumLex(b, d.subtlexLex), d.subtlexLex, false, 0, false, false, false},
+		{"trie", newTrieLex(b, d.subtlexLex), d.subtlexLex, false, 0, false, false, false},
+		{"trie-depthfirst", newTrieLex(b, d.subtlexLex), d.subtlexLex, true, 0, false, false, false},
+		{"trie-cap", newTrieLex(b, d.subtlexLex), d.subtlexLex, false, benchCap, false, false, false},
+		{"trie-cap-wholewide", newTrieLex(b, d.subtlexLex), d.subtlexLex, false, benchCap, false, false, true},
+		{"trie-cap-noparent", newTrieLex(b, d.subtlexLex), d.subtlexLex, false, benchCap, false, true, false},
+		{"trie-depthfirst-cap", newTrieLex(b, d.subtlexLex), d.subtlexLex, true, benchCap, false, false, false},
+		{"trie-cap-rowbound", newTrieLex(b, d.subtlexLex), d.subtlexLex, false, prevBenchCap, true, false, false},
 	}
 	for _, l := range lexicons {
 		b.Run(l.name, func(b *testing.B) {
@@ -73,6 +80,7 @@ func BenchmarkCorrect8(b *testing.B) {
 			}
 			c.depthFirst = l.depthFirst
 			c.noParent = l.noParent
+			c.fullWide = l.fullWide
 			if l.rowBound {
 				c.below, c.capRows = nil, false
 			}
@@ -262,6 +270,15 @@ func BenchmarkMidPassRef(b *testing.B) {
 	})
 }
 
+// BenchmarkSkeletonPass compares, in one process, the previous widest
+// pass (the whole lexicon within the budget, best-first) with the one
+// restricted by skelFilter (skeleton.go) on the 8-letter misspellings of
+// BenchmarkCorrect8 with the engine's cap (see compareSearches). Run it
+// for a few passes of each: -benchtime=6x the 305 words.
+func BenchmarkSkeletonPass(b *testing.B) {
+	compareSearches(b, [2]string{"whole", "skeleton"}, func(c *Corrector, m int) { c.fullWide = m == 0 })
+}
+
 // compareSearches corrects the 8-letter misspellings of BenchmarkCorrect8
 // with the engine's cap under two settings of the corrector (set puts
 // setting m, 0 or 1, in place), one whole pass over the list with each
@@ -369,11 +386,7 @@ func BenchmarkPasses(b *testing.B) {
 				s.reset(c.ch, c.lex, w, float32(budget), len(w)+maxExtra)
 				s.limit = o.MaxStates - used
 				s.rk = &sc.rk
-				if budget >= o.MaxCost {
-					s.runBest()
-				} else {
-					s.run()
-				}
+				c.runPass(s, w, p, budget, true)
 				per[i].cpu[p] = min(per[i].cpu[p], threadClock()-t0)
 				per[i].rows[p] = s.spent()
 				per[i].last = p

@@ -120,8 +120,8 @@ type Options struct {
 	// the prefixes examined (one DP row each, or a bound from the parent's
 	// row that spares it; about 0.2 µs on average); otherwise
 	// the lexicon states entered (about 0.3–0.5 µs). 0 means no cap: the
-	// widest pass can examine a few 10⁴ prefixes (milliseconds) for a badly
-	// misspelled long word.
+	// middle and widest passes can together examine about 10⁴ prefixes
+	// (a few milliseconds) for a badly misspelled long word.
 	MaxStates int
 	// Rejected, if not nil, reports corrections the user has undone
 	// (typed and candidate word, both lower-cased); they are not offered.
@@ -169,7 +169,8 @@ type Corrector struct {
 	ch   *channel
 	pool sync.Pool
 	// depthFirst selects the previous search (alphabetical depth-first
-	// passes of growing budget) for comparison in tests and benchmarks.
+	// passes of growing budget) for comparison in tests and benchmarks;
+	// it changes the widest pass only with fullWide (runPass).
 	depthFirst bool
 	// order lists the channel's rules by cost for every search.
 	order *ruleOrder
@@ -194,6 +195,10 @@ type Corrector struct {
 	// gives the previous trigger of the widest pass, for comparison in
 	// benchmarks.
 	midRef float64
+	// fullWide selects the previous widest pass (the whole lexicon within
+	// the budget, best-first) instead of the skeleton-restricted one, for
+	// comparison in tests and benchmarks.
+	fullWide bool
 }
 
 // firstPass is the cost budget of the first, narrow search pass: about one
@@ -457,12 +462,7 @@ func insertTop(top []Candidate, c Candidate, n int) []Candidate {
 // searchUpTo finds the candidates of lower in passes of growing budget up
 // to widest (at most Options.MaxCost), the cap shared by the passes; it
 // returns the work the cap counted (see capRows) and the number of states
-// entered. With bestFirst the full-budget pass walks best-first (see
-// runBest): under the state cap it leaves out the least promising prefixes rather than the alphabetically last
-// ones. The narrow passes always walk depth-first: they are complete within
-// the cap for nearly every word, and a depth-first state costs about a
-// quarter less (BenchmarkWidePass). Without bestFirst it is the previous,
-// all depth-first search.
+// entered. Each pass is walked by runPass.
 func (c *Corrector) searchUpTo(s *search, rk *ranker, lower string, widest float64, bestFirst bool) (used, states int) {
 	o := &c.opts
 	last := 0.0
@@ -484,11 +484,7 @@ func (c *Corrector) searchUpTo(s *search, rk *ranker, lower string, widest float
 			s.limit = o.MaxStates - used
 		}
 		s.rk = rk
-		if bestFirst && budget >= o.MaxCost {
-			s.runBest()
-		} else {
-			s.run()
-		}
+		c.runPass(s, lower, i, budget, bestFirst)
 		used += s.spent()
 		states += s.visited
 		if budget >= min(widest, o.MaxCost) || len(rk.top) > 0 && rk.top[0].Score >= c.passRef(i) {
@@ -496,6 +492,35 @@ func (c *Corrector) searchUpTo(s *search, rk *ranker, lower string, widest float
 		}
 	}
 	return used, states
+}
+
+// runPass walks pass i (0 for the narrow one) of searchUpTo with s, reset
+// for lower and the pass's budget. The passes walk depth-first. The third,
+// widest pass follows only the words skelFilter keeps (skeleton.go): on
+// the 8-letter misspellings of BenchmarkCorrect8 it examined at most
+// 5,694 prefixes (median 1,976) instead of the whole lexicon's 17,997
+// (10,675); on corpora/misspellings-dev.tsv (package 5-fold
+// cross-validation) it gave the same top-3 count as the whole lexicon and
+// one word more of top-1, and the engine's tests as many repaired typist
+// slips (measured, this project; BENCHMARKS.md). With fullWide the
+// widest pass is the previous one: the whole lexicon, walked best-first
+// when bestFirst is set (see runBest: under the state cap it leaves out
+// the least promising prefixes rather than the alphabetically last ones;
+// a depth-first state costs about a quarter less, BenchmarkWidePass),
+// else depth-first. A second pass whose budget is Options.MaxCost
+// (MaxCost at most secondPass) is walked like that too.
+func (c *Corrector) runPass(s *search, lower string, i int, budget float64, bestFirst bool) {
+	switch {
+	case i == 2 && !c.fullWide:
+		s.skel = &s.skf
+		s.skel.reset(lower, s.maxDepth)
+		s.run()
+		s.skel = nil
+	case bestFirst && budget >= c.opts.MaxCost:
+		s.runBest()
+	default:
+		s.run()
+	}
 }
 
 // widestPass returns the budget of the widest pass Correct searches a

@@ -150,6 +150,10 @@ type search struct {
 	rsDepth      [][4]uint64 // rule-start sets of the depth-first walk, by depth
 	rsBest       [4]uint64   // rule-start set of the best-first walk
 	pnBest       [4]uint64   // partialNext set of the best-first walk
+	// skel, if not nil, restricts the depth-first walk to the words
+	// skelFilter keeps (skeleton.go); skf is what it points to when set.
+	skel *skelFilter
+	skf  skelFilter
 	// noParent turns off the check of parentBound (parentbound.go) before
 	// a child's row is computed, for comparison in tests and benchmarks.
 	noParent bool
@@ -203,6 +207,7 @@ func (s *search) reset(ch *channel, lex Lexicon, typed string, budget float32, m
 	}
 	s.path = s.path[:s.maxDepth+1]
 	s.hits = s.hits[:0]
+	s.skel = nil
 	s.visited = 0
 	s.examined = 0
 	s.limit = 0
@@ -470,7 +475,7 @@ func (s *search) visit(d int, state int, acc uint64) {
 	s.visited++
 	w := s.w
 	budget := s.budget
-	if c := s.rows[d*w+s.n]; c <= budget {
+	if c := s.rows[d*w+s.n]; c <= budget && (s.skel == nil || s.skel.accepts(d)) {
 		if ok, fo := s.finalAt(state); ok {
 			if s.rk != nil {
 				s.rk.add(uint32(acc+fo), c)
@@ -492,8 +497,15 @@ func (s *search) visit(d int, state int, acc uint64) {
 	s.edges[d] = edges
 	pn := s.partialNext(&s.pnDepth[d], parts)
 	g := s.below
+	var fm [4]uint64 // with skel: the bytes the filter may let through
+	if s.skel != nil {
+		fm = s.skel.mask(d)
+	}
 	for k := lo; k < hi; k++ {
 		c, next, out := s.edgeAt(edges, k)
+		if s.skel != nil && fm[c>>6]&(1<<(c&63)) == 0 {
+			continue // no word below is one the filter keeps
+		}
 		if haveSet || plainByte[c>>6]&(1<<(c&63)) == 0 {
 			// A byte outside the alphabet is tried only where the typed
 			// word, a cheap edit or a rule suggests it.
@@ -505,6 +517,9 @@ func (s *search) visit(d int, state int, acc uint64) {
 			}
 		}
 		s.path[d] = c
+		if s.skel != nil && !s.skel.step(d, c, s.belowOf(next)) {
+			continue // no word below is one the filter keeps
+		}
 		if g != nil && !s.noParent && s.parentBound(s.rows[d*w:(d+1)*w], prev, c, last, parts, g.nodes[next].sets.below()|belowBit(c)) > budget {
 			s.examined++ // counted for the cap as when its row was computed (parentbound.go)
 			continue
@@ -525,6 +540,15 @@ func (s *search) visit(d int, state int, acc uint64) {
 		}
 		s.act = s.act[:base]
 	}
+}
+
+// belowOf returns the letters below state (belowAll without the
+// letters-below table).
+func (s *search) belowOf(state int) uint32 {
+	if s.below == nil {
+		return belowAll
+	}
+	return s.below.nodes[state].sets.below()
 }
 
 // edgeAt returns the byte, target state and output of edge k of the

@@ -1,0 +1,342 @@
+package correct
+
+import "math/bits"
+
+// The widest search pass and the kinds of error it is for. Under the
+// package's 5-fold cross-validation on corpora/misspellings-dev.tsv (each
+// fold's error model trained on the other four), 19 words owed their
+// top-3 hit to the widest pass (the intended word 9 to 13 nats away),
+// and they were mostly two plain edits from the intended word: vowel
+// trouble with at most one consonant wrong ("resteraunt", "exerternal",
+// "maintinaing") or scrambled letters ("hvea", "lveo", "thigsn"); the
+// root package's simulated typist adds double keyboard slips. Of the
+// 49 dev pairs whose intended word costs 9 to 13 nats, 46 have a
+// consonant skeleton (below) within one plain edit of the typed word's,
+// 38 are within two plain edits of the typed word, 48 one or the other;
+// but only 5 are within one plain edit (measured, this project;
+// BENCHMARKS.md). So the widest pass looks only there (skelFilter): keys
+// of a different kind from the weighted channel, cheap to check on each
+// prefix of the walk, which computes the channel's exact cost of every
+// word they keep.
+
+// The consonant skeleton of a word: its bytes without the vowels a e i o
+// u, y, h and w, and with a byte equal to the skeleton's previous one left
+// out ("resteraunt" and "restaurant" → rstrnt; "banana" → bn).
+
+// inSkeleton reports whether byte c belongs to a word's consonant
+// skeleton.
+func inSkeleton(c byte) bool {
+	switch c {
+	case 'a', 'e', 'i', 'o', 'u', 'y', 'h', 'w':
+		return false
+	}
+	return true
+}
+
+// appendSkeleton appends the consonant skeleton of w to dst.
+func appendSkeleton(dst []byte, w string) []byte {
+	start := len(dst)
+	for i := 0; i < len(w); i++ {
+		c := w[i]
+		if !inSkeleton(c) || len(dst) > start && dst[len(dst)-1] == c {
+			continue
+		}
+		dst = append(dst, c)
+	}
+	return dst
+}
+
+// skelFilter restricts a depth-first walk to the words whose consonant
+// skeleton is within one plain edit (insertion, deletion, substitution or
+// swap of adjacent bytes: the optimal string alignment distance) of the
+// typed word's, and to the words within plainEdits plain edits of the
+// typed word itself. For each key it keeps the unit-cost DP rows of the
+// path against the typed key (unitRows; for the skeleton one row per
+// skeleton byte, for the word one per byte) and, by depth, whether a word
+// below may still be within reach of it. Cost per step: for each key
+// still within reach, one band of its row (at most five entries) and,
+// when a typed letter of the key is on no path below, a bound over the
+// band (unitRows.bound). It walks with the search (search.skel), which
+// computes the channel's exact costs of the words it keeps.
+type skelFilter struct {
+	skel    unitRows // the skeleton's rows, by skeleton bytes walked
+	plain   unitRows // the word's rows, by depth
+	k       []int32  // by depth: skeleton bytes of the path to that depth
+	skelOK  []bool   // by depth: a word below may have a skeleton in reach
+	plainOK []bool   // by depth: a word below may be within plainEdits
+	buf     []byte   // the typed skeleton
+	tw      []byte   // the typed word
+}
+
+// skelEdits is how many plain edits from the typed word's skeleton the
+// skeleton of a word the widest pass keeps may be. In the package's
+// cross-validation (the skeleton as the only key) two edits found 2,105
+// of 2,173 top-3 hits against one edit's 2,106, the larger candidate
+// lists crowding out right ones; with the plain key beside it, allowing
+// two edits from skeletons of 6, 7 or 8 letters up changed nothing
+// (measured, this project; BENCHMARKS.md).
+const skelEdits = 1
+
+// plainEdits is how many plain edits from the typed word a word the
+// widest pass keeps may be, whatever its skeleton: two keyboard slips
+// (two neighbouring keys hit, say) can take a short word's skeleton two
+// edits away, and the simulated typist of the root package's tests
+// (TestTypistHeldOut) makes them often: with the skeleton alone it
+// repaired 85.1 % of its corrupted words instead of 86.6 % (measured,
+// this project; BENCHMARKS.md). Two edits are also the usual reach of a
+// candidate generator (common practice, no source).
+const plainEdits = 2
+
+// reset prepares the filter for typed (lower-cased) and walks of at most
+// maxDepth bytes.
+func (f *skelFilter) reset(typed string, maxDepth int) {
+	f.buf = appendSkeleton(f.buf[:0], typed)
+	f.skel.reset(f.buf, maxDepth, skelEdits)
+	f.tw = append(f.tw[:0], typed...)
+	f.plain.reset(f.tw, maxDepth, plainEdits)
+	if cap(f.k) < maxDepth+1 {
+		f.k = make([]int32, maxDepth+1)
+	}
+	f.k = f.k[:maxDepth+1]
+	f.k[0] = 0
+	f.skelOK = growBool(f.skelOK, maxDepth+1)
+	f.plainOK = growBool(f.plainOK, maxDepth+1)
+	f.skelOK[0], f.plainOK[0] = true, true
+}
+
+// step extends the path at depth d by byte c to depth d+1; below is the
+// set of letters (belowBit) on the paths below the new prefix. It reports
+// false when no word below can be kept: for each key, the distance of
+// every word below is over its limit (by unitRows.bound). A key once out
+// of reach stays so below (the words below a prefix are among those
+// below its parent), and its rows are no longer computed.
+func (f *skelFilter) step(d int, c byte, below uint32) bool {
+	p := f.plainOK[d]
+	if p {
+		f.plain.push(d, c)
+		p = f.plain.bound(d+1, below) <= f.plain.maxd
+	}
+	f.plainOK[d+1] = p
+	k := int(f.k[d])
+	sk := f.skelOK[d]
+	if sk {
+		if inSkeleton(c) && (k == 0 || f.skel.path[k-1] != c) && k+1 < f.skel.nrows {
+			f.skel.push(k, c)
+			k++
+		}
+		sk = f.skel.bound(k, below) <= f.skel.maxd
+	}
+	f.k[d+1] = int32(k)
+	f.skelOK[d+1] = sk
+	return p || sk
+}
+
+// mask returns a superset of the bytes c for which step(d, c, ·) can
+// report true, so that the walk can skip the other children of a prefix
+// without a step each: a key within reach lets through every byte while
+// it has an edit to spare, else only the typed bytes its row can match
+// (or swap) next; the skeleton also lets through the bytes that leave it
+// as it is.
+func (f *skelFilter) mask(d int) (m [4]uint64) {
+	all := [4]uint64{^uint64(0), ^uint64(0), ^uint64(0), ^uint64(0)}
+	if f.plainOK[d] && f.plain.nextMask(d, &m) {
+		return all
+	}
+	if f.skelOK[d] {
+		k := int(f.k[d])
+		if f.skel.nextMask(k, &m) {
+			return all
+		}
+		for i := range m {
+			m[i] |= notSkeleton[i]
+		}
+		if k > 0 {
+			c := f.skel.path[k-1]
+			m[c>>6] |= 1 << (c & 63)
+		}
+	}
+	return m
+}
+
+// notSkeleton is the set of bytes inSkeleton rejects.
+var notSkeleton = func() (m [4]uint64) {
+	for c := range 256 {
+		if !inSkeleton(byte(c)) {
+			m[c>>6] |= 1 << (c & 63)
+		}
+	}
+	return m
+}()
+
+// accepts reports whether the word spelled by the path to depth d is
+// kept.
+func (f *skelFilter) accepts(d int) bool {
+	return f.skelOK[d] && f.skel.final(int(f.k[d])) || f.plainOK[d] && f.plain.final(d)
+}
+
+// unitRows is the unit-cost optimal-string-alignment DP of a walked key
+// against a typed key t, one row per walked byte, entries capped at
+// maxd+1 (a capped entry stands for any larger distance, so that every
+// comparison with maxd stays exact).
+type unitRows struct {
+	t     []byte
+	tall  uint32     // the letters (belowBit) of t
+	pos   [29]uint64 // pos[i]: the typed positions of letters of class i
+	maxd  uint8
+	rows  []uint8 // row k at rows[k*(len(t)+1):]
+	rmin  []uint8 // by row: its least entry
+	path  []byte  // the walked key
+	nrows int
+}
+
+// reset prepares u for typed key t, at most maxRows walked bytes and
+// maxd edits.
+func (u *unitRows) reset(t []byte, maxRows int, maxd uint8) {
+	u.t = append(u.t[:0], t...)
+	u.maxd = maxd
+	u.tall = 0
+	u.pos = [29]uint64{}
+	for j, b := range u.t {
+		u.tall |= belowBit(b)
+		u.pos[bitIndex(belowBit(b))] |= 1 << j
+	}
+	w := len(u.t) + 1
+	u.nrows = maxRows + 1
+	if need := u.nrows * w; cap(u.rows) < need {
+		u.rows = make([]uint8, need)
+	} else {
+		u.rows = u.rows[:need]
+	}
+	for j := range w {
+		u.rows[j] = uint8(min(j, int(maxd)+1))
+	}
+	u.rmin = grow8(u.rmin, u.nrows)
+	u.rmin[0] = 0
+	u.path = grow8(u.path, u.nrows)
+}
+
+// push computes row k+1 from rows k and k-1 for walked byte c
+// (k+1 < nrows). Only the band of typed positions within maxd of k+1 can
+// hold entries within maxd; the entries just outside it are set to the
+// cap for the next row to read, and the others are left stale (see at).
+func (u *unitRows) push(k int, c byte) {
+	w := len(u.t) + 1
+	n := w - 1
+	md := int(u.maxd)
+	u.path[k] = c
+	P := u.rows[k*w : (k+1)*w]
+	R := u.rows[(k+1)*w : (k+2)*w]
+	R[0] = uint8(min(k+1, md+1))
+	m := R[0]
+	lo, hi := max(1, k+1-md), min(n, k+1+md)
+	if lo > 1 && lo-1 <= n {
+		R[lo-1] = u.maxd + 1
+	}
+	for j := lo; j <= hi; j++ {
+		v := P[j-1]
+		if u.t[j-1] != c {
+			v++
+		}
+		v = min(v, P[j]+1, R[j-1]+1)
+		if k > 0 && j > 1 && u.t[j-1] == u.path[k-1] && u.t[j-2] == c {
+			v = min(v, u.rows[(k-1)*w+j-2]+1)
+		}
+		R[j] = min(v, u.maxd+1)
+		m = min(m, R[j])
+	}
+	if hi < n {
+		R[hi+1] = u.maxd + 1
+	}
+	u.rmin[k+1] = m
+}
+
+// nextMask adds to m the bytes c for which row k+1 (pushed with c) can
+// hold an entry within maxd, or reports true when every byte can: while
+// k+1 is within maxd (its first entry), or while row k holds an entry
+// below maxd (an edit to spare: c left out); else c must match a typed
+// byte after an entry of row k within maxd, or swap with the walked key's
+// last byte.
+func (u *unitRows) nextMask(k int, m *[4]uint64) bool {
+	md := int(u.maxd)
+	n := len(u.t)
+	if k+1 <= md || u.rmin[k] < u.maxd {
+		return true
+	}
+	for j := max(1, k+1-md); j <= min(n, k+1+md); j++ {
+		if u.at(k, j-1) <= u.maxd {
+			c := u.t[j-1]
+			m[c>>6] |= 1 << (c & 63)
+		}
+		if k > 0 && j > 1 && u.t[j-1] == u.path[k-1] && u.at(k-1, j-2) < u.maxd {
+			c := u.t[j-2]
+			m[c>>6] |= 1 << (c & 63)
+		}
+	}
+	return false
+}
+
+// at returns entry j of row k, the cap outside the row's band.
+func (u *unitRows) at(k, j int) uint8 {
+	md := int(u.maxd)
+	if j > 0 && (j < k-md || j > k+md) {
+		return u.maxd + 1
+	}
+	return u.rows[k*(len(u.t)+1)+j]
+}
+
+// final reports whether the walked key of row k is within maxd edits of
+// the typed key.
+func (u *unitRows) final(k int) bool {
+	return u.at(k, len(u.t)) <= u.maxd
+}
+
+// bound returns a lower bound on the distance of any walked key that
+// continues the one of row k with letters of below, exact where it is
+// within maxd: every alignment passes through a cell of row k at some
+// typed position j or swaps the key's last byte with the next, jumping
+// from row k-1 at j-2 to row k+1 at j; each typed byte from j on whose
+// letter is on no path below costs an edit. Only the rows' bands can
+// hold entries within maxd, so only they are read.
+func (u *unitRows) bound(k int, below uint32) uint8 {
+	miss := u.tall &^ below
+	if miss == 0 {
+		// Every typed letter is below: the rows alone.
+		if k > 0 {
+			return min(u.rmin[k], u.rmin[k-1]+1)
+		}
+		return u.rmin[k]
+	}
+	var mm uint64 // typed positions whose letter is on no path below
+	for ; miss != 0; miss &= miss - 1 {
+		mm |= u.pos[bitIndex(miss)]
+	}
+	n, md, w := len(u.t), int(u.maxd), len(u.t)+1
+	lb := u.maxd + 1
+	R := u.rows[k*w : (k+1)*w]
+	for j := max(0, k-md); j <= min(n, k+md); j++ {
+		lb = min(lb, R[j]+uint8(bits.OnesCount64(mm>>j)))
+	}
+	if k > 0 {
+		Q := u.rows[(k-1)*w : k*w]
+		for j := max(0, k-1-md); j <= min(n-2, k-1+md); j++ {
+			lb = min(lb, Q[j]+1+uint8(bits.OnesCount64(mm>>(j+2))))
+		}
+	}
+	return lb
+}
+
+// growBool returns b with length n, reallocated when too short.
+func growBool(b []bool, n int) []bool {
+	if cap(b) < n {
+		return make([]bool, n)
+	}
+	return b[:n]
+}
+
+// grow8 returns b with length n, reallocated when too short.
+func grow8(b []byte, n int) []byte {
+	if cap(b) < n {
+		return make([]byte, n)
+	}
+	return b[:n]
+}

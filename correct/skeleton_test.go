@@ -1,0 +1,134 @@
+package correct
+
+import (
+	"fmt"
+	"math/rand"
+	"strings"
+	"testing"
+)
+
+// TestAppendSkeleton checks the consonant skeleton on words worked by
+// hand from its definition in skeleton.go (this package's own key, no
+// outside source).
+func TestAppendSkeleton(t *testing.T) {
+	tests := []struct{ word, want string }{
+		{"restaurant", "rstrnt"},
+		{"resteraunt", "rstrnt"},
+		{"banana", "bn"},        // a byte equal to the previous skeleton byte is left out, vowels between or not
+		{"whey", ""},            // w, h, e, y: none is in a skeleton
+		{"co-operate", "c-prt"}, // the hyphen is kept
+		{"don't", "dn't"},       // the apostrophe too
+		{"committee", "cmt"},    // doubled letters once
+		{"rhythm", "rtm"},       // h and y left out
+		{"", ""},
+	}
+	for _, tt := range tests {
+		t.Run(tt.word, func(t *testing.T) {
+			if got := string(appendSkeleton(nil, tt.word)); got != tt.want {
+				t.Errorf("appendSkeleton(%q) = %q, want %q", tt.word, got, tt.want)
+			}
+		})
+	}
+}
+
+// skelKeeps is what skelFilter should keep, computed directly with the
+// optimal-string-alignment distance of unitChannel (whose distances
+// TestUnitDistanceMatchesLevenshtein checks against
+// github.com/agnivade/levenshtein): the words whose skeleton is within
+// skelEdits of the typed word's, or that are within plainEdits of it.
+func skelKeeps(typed, word string) bool {
+	unit := unitChannel(true)
+	ts, ws := appendSkeleton(nil, typed), appendSkeleton(nil, word)
+	return unit.distance(string(ts), string(ws)) <= skelEdits || unit.distance(typed, word) <= plainEdits
+}
+
+// TestSkeletonPassKeepsWords checks that the widest pass restricted by
+// skelFilter finds exactly the words of the whole lexicon's walk at the
+// same budget that skelKeeps keeps, at exactly the same channel costs:
+// for words of the development misspellings list
+// (corpora/misspellings-dev.tsv, a public list of real misspellings) and
+// random letter strings over the SUBTLEX-US lexicon, with the
+// letters-below table (the filter's bound then charges typed letters on
+// no path below) and without it. The whole lexicon's walk is checked
+// word by word against the row recurrence in TestBelowBoundKeepsWords.
+// It also checks that the filter prunes: fewer rows computed in all.
+func TestSkeletonPassKeepsWords(t *testing.T) {
+	d := corpus(t)
+	lex := newTrieLex(t, d.subtlexLex)
+	c, err := New(lex, d.unigramScorer(lex.words), Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	var typed []string
+	pairs := devPairs(t)
+	for i := 0; i < len(pairs); i += 7 {
+		w := strings.ToLower(pairs[i].Typed)
+		if len(w) <= maxTyped && latinOnly(w) {
+			typed = append(typed, w)
+		}
+	}
+	rng := rand.New(rand.NewSource(16)) // fixed seed: failures replay
+	for range 30 {
+		b := make([]byte, 3+rng.Intn(10))
+		for i := range b {
+			b[i] = "abcdefghijklmnopqrstuvwxyz'-"[rng.Intn(28)]
+		}
+		typed = append(typed, string(b))
+	}
+	tests := []struct {
+		name  string
+		below *belowTable
+		every int // test every n-th typed word (the walk without the table is slower)
+	}{
+		{"letters-below", c.below, 1},
+		{"row-only", nil, 4},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			kept, rowsWhole, rowsSkel := 0, 0, 0
+			walk := func(w string, filter bool) map[uint32]float32 {
+				t.Helper()
+				s := &search{order: c.order, below: tt.below}
+				s.reset(c.ch, lex, w, float32(c.opts.MaxCost), len(w)+maxExtra)
+				if filter {
+					s.skel = &s.skf
+					s.skel.reset(w, s.maxDepth)
+				}
+				s.run()
+				got := map[uint32]float32{}
+				for _, h := range s.hits {
+					if old, dup := got[h.id]; dup {
+						t.Errorf("%q: word %d found twice (costs %v and %v)", w, h.id, old, h.cost)
+					}
+					got[h.id] = h.cost
+				}
+				if filter {
+					rowsSkel += s.rowsDone
+				} else {
+					rowsWhole += s.rowsDone
+				}
+				return got
+			}
+			for k, w := range typed {
+				if k%tt.every != 0 {
+					continue
+				}
+				whole, skel := walk(w, false), walk(w, true)
+				want := map[uint32]float32{}
+				for id, cost := range whole {
+					if skelKeeps(w, lex.words[id]) {
+						want[id] = cost
+					}
+				}
+				kept += len(want)
+				if fmt.Sprint(skel) != fmt.Sprint(want) {
+					t.Errorf("%q: skeleton pass found %v, want %v", w, skel, want)
+				}
+			}
+			t.Logf("%d words kept; rows %d with the filter, %d without", kept, rowsSkel, rowsWhole)
+			if kept == 0 || rowsSkel >= rowsWhole {
+				t.Errorf("kept %d words, rows %d with the filter and %d without: want some words and fewer rows", kept, rowsSkel, rowsWhole)
+			}
+		})
+	}
+}
