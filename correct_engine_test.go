@@ -294,7 +294,7 @@ func TestCorrectSentenceStartPrior(t *testing.T) {
 // by a model built as the default one with an error model trained on the
 // other four, every word typed on its own as `keyloom eval --correct
 // --folds 5` does. The floors are the issue's goals (top-1 ≥ 90 %, top-3
-// ≥ 97 %; measured 92.87 % and 97.01 %, BENCHMARKS.md, corrector round 7). (The default model leaves
+// ≥ 97 %; measured 92.87 % and 97.05 %, BENCHMARKS.md, corrector round 9). (The default model leaves
 // SUBTLEX-US contraction halves out, so `keyloom eval` shows slightly
 // different figures.)
 func TestCorrectDevCrossValidated(t *testing.T) {

@@ -74,10 +74,15 @@ const DefaultAutoApplyConfidence = 0.8
 // cross-validation of the package corrector on the development list gives
 // top-1/top-3 92.82/96.27 % at 7,000 prefixes, 93.01/96.59 % at 15,000,
 // 93.24/96.96 % at 20,000 and 93.28/97.01 % at 25,000, the same as with no
-// cap. The engine's figures on the development list itself hide this (its
-// error model was trained there: no loss down to 3,000). Words that reach
-// the cap are the badly misspelled ones; the cap makes them take up to
-// about 7 ms on this project's machine (BENCHMARKS.md).
+// cap (measured while the widest pass still walked the whole lexicon).
+// The engine's figures on the development list itself hide this (its
+// error model was trained there: no loss down to 3,000). Since the widest
+// pass follows only spellings near the typed word's consonant skeleton or
+// within two plain edits (correct/skeleton.go), the 8-letter
+// misspellings of the package's benchmark (74k-word lexicon) examine at
+// most about 9,000 prefixes, so the cap now bounds only rarer, longer
+// words; the slowest corrections take about 4–5 ms on this project's
+// machine (BENCHMARKS.md).
 const DefaultCorrectionStates = 25000
 
 func (o Options) withDefaults() (Options, error) {
