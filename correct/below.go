@@ -70,6 +70,7 @@ type belowTable struct {
 	eb    []byte      // edge bytes, by node and in the lexicon's order
 	en    []uint32    // edge targets (node indices)
 	eo    []uint32    // edge outputs, modulo 2³² (word IDs are 32-bit)
+	rest  []restLens  // by node: the lengths of the rests below (restlen.go)
 }
 
 // belowNode is one state of belowTable: its edges are eb[lo:] up to the
@@ -125,12 +126,13 @@ func (t *belowTable) final(i int) (bool, uint32) {
 // allocate about six times the table, 13.9 MB for the default model's
 // 2.4 MB table, and raised the peak RSS of a one-shot correction by about
 // 6 MB, measured, this project; BENCHMARKS.md). Cost: two edge listings
-// and one Final per state; 16 bytes of table per state and 9 per edge;
+// and one Final per state; 19 bytes of table per state (3 of them the
+// rest lengths, restlen.go) and 9 per edge;
 // while building, 4 bytes per state (8 when a state does not fit 32 bits,
 // which costs a third walk) and a hash table of 4 bytes a slot, at most
 // half full (for the 74k-word SUBTLEX-US lexicon, 34,656 states and
-// 76,264 edges: a 1.24 MB table, 0.75 MB more while building and 2.9 MB
-// allocated in all).
+// 76,264 edges: a 1.24 MB table and 0.1 MB of rest lengths; before the
+// rest lengths, 0.75 MB more while building and 2.9 MB allocated in all).
 func newBelowTable(lex Lexicon, el EdgeLister) *belowTable {
 	// The states of a lexicon are mostly offsets that fit 32 bits: a
 	// list of those takes half the memory.
@@ -210,6 +212,7 @@ func buildBelow[S lexState](lex Lexicon, el EdgeLister) (*belowTable, bool) {
 	}
 	t.nodes[len(states)].lo = uint32(edges)
 	fillSets(t, states)
+	fillRest(t)
 	return t, true
 }
 

@@ -41,7 +41,9 @@ func eightLetterTyped(b *testing.B) []string {
 // trie-cap-noparent the search without the check of parentBound
 // (parentbound.go) before a child's row is computed, and
 // trie-cap-wholewide the previous widest pass (the whole lexicon, not
-// only the words skelFilter keeps, skeleton.go). Besides
+// only the words skelFilter keeps, skeleton.go), trie-cap-onewalk the
+// widest pass in one walk with the keys as a filter instead of the keys'
+// walk and then the weighted one (keywalk.go). Besides
 // latency (wall and, where the thread's CPU clock is read, CPU time of
 // the calling thread, which other processes disturb less) it reports the
 // states visited and the DP rows computed per word, which do not depend
@@ -61,16 +63,18 @@ func BenchmarkCorrect8(b *testing.B) {
 		rowBound   bool // the previous bound: no letters-below table
 		noParent   bool // the previous search: no parentBound check
 		fullWide   bool // the previous widest pass: the whole lexicon
+		oneWalk    bool // the previous widest pass: one walk, the keys as a filter
 	}{
-		{"flat", newFlatLex(d.subtlexLex), d.subtlexLex, false, 0, false, false, false},
-		{"vellum", newVellumLex(b, d.subtlexLex), d.subtlexLex, false, 0, false, false, false},
-		{"trie", newTrieLex(b, d.subtlexLex), d.subtlexLex, false, 0, false, false, false},
-		{"trie-depthfirst", newTrieLex(b, d.subtlexLex), d.subtlexLex, true, 0, false, false, false},
-		{"trie-cap", newTrieLex(b, d.subtlexLex), d.subtlexLex, false, benchCap, false, false, false},
-		{"trie-cap-wholewide", newTrieLex(b, d.subtlexLex), d.subtlexLex, false, benchCap, false, false, true},
-		{"trie-cap-noparent", newTrieLex(b, d.subtlexLex), d.subtlexLex, false, benchCap, false, true, false},
-		{"trie-depthfirst-cap", newTrieLex(b, d.subtlexLex), d.subtlexLex, true, benchCap, false, false, false},
-		{"trie-cap-rowbound", newTrieLex(b, d.subtlexLex), d.subtlexLex, false, prevBenchCap, true, false, false},
+		{"flat", newFlatLex(d.subtlexLex), d.subtlexLex, false, 0, false, false, false, false},
+		{"vellum", newVellumLex(b, d.subtlexLex), d.subtlexLex, false, 0, false, false, false, false},
+		{"trie", newTrieLex(b, d.subtlexLex), d.subtlexLex, false, 0, false, false, false, false},
+		{"trie-depthfirst", newTrieLex(b, d.subtlexLex), d.subtlexLex, true, 0, false, false, false, false},
+		{"trie-cap", newTrieLex(b, d.subtlexLex), d.subtlexLex, false, benchCap, false, false, false, false},
+		{"trie-cap-wholewide", newTrieLex(b, d.subtlexLex), d.subtlexLex, false, benchCap, false, false, true, false},
+		{"trie-cap-onewalk", newTrieLex(b, d.subtlexLex), d.subtlexLex, false, benchCap, false, false, false, true},
+		{"trie-cap-noparent", newTrieLex(b, d.subtlexLex), d.subtlexLex, false, benchCap, false, true, false, false},
+		{"trie-depthfirst-cap", newTrieLex(b, d.subtlexLex), d.subtlexLex, true, benchCap, false, false, false, false},
+		{"trie-cap-rowbound", newTrieLex(b, d.subtlexLex), d.subtlexLex, false, prevBenchCap, true, false, false, false},
 	}
 	for _, l := range lexicons {
 		b.Run(l.name, func(b *testing.B) {
@@ -81,6 +85,7 @@ func BenchmarkCorrect8(b *testing.B) {
 			c.depthFirst = l.depthFirst
 			c.noParent = l.noParent
 			c.fullWide = l.fullWide
+			c.oneWalk = l.oneWalk
 			if l.rowBound {
 				c.below, c.capRows = nil, false
 			}
@@ -277,6 +282,12 @@ func BenchmarkMidPassRef(b *testing.B) {
 // for a few passes of each: -benchtime=6x the 305 words.
 func BenchmarkSkeletonPass(b *testing.B) {
 	compareSearches(b, [2]string{"whole", "skeleton"}, func(c *Corrector, m int) { c.fullWide = m == 0 })
+}
+
+// BenchmarkKeyWalk compares, in one process, the widest pass in one walk
+// with the keys as a filter and in two (keywalk.go): see compareSearches.
+func BenchmarkKeyWalk(b *testing.B) {
+	compareSearches(b, [2]string{"onewalk", "twowalks"}, func(c *Corrector, m int) { c.oneWalk = m == 0 })
 }
 
 // compareSearches corrects the 8-letter misspellings of BenchmarkCorrect8

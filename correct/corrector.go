@@ -199,6 +199,11 @@ type Corrector struct {
 	// the budget, best-first) instead of the skeleton-restricted one, for
 	// comparison in tests and benchmarks.
 	fullWide bool
+	// oneWalk walks the widest pass in one walk with the keys as a filter
+	// (the previous way) instead of the keys' walk and then the weighted
+	// one along its words (keywalk.go), for comparison in tests and
+	// benchmarks.
+	oneWalk bool
 }
 
 // firstPass is the cost budget of the first, narrow search pass: about one
@@ -496,7 +501,10 @@ func (c *Corrector) searchUpTo(s *search, rk *ranker, lower string, widest float
 
 // runPass walks pass i (0 for the narrow one) of searchUpTo with s, reset
 // for lower and the pass's budget. The passes walk depth-first. The third,
-// widest pass follows only the words skelFilter keeps (skeleton.go): on
+// widest pass follows only the words skelFilter keeps (skeleton.go),
+// found first by the keys' own walk (keywalk.go; with oneWalk, or
+// without the letters-below table, or when that walk gives up, the keys
+// filter the weighted walk instead, with the same result): on
 // the 8-letter misspellings of BenchmarkCorrect8 it examined at most
 // 5,694 prefixes (median 1,976) instead of the whole lexicon's 17,997
 // (10,675); on corpora/misspellings-dev.tsv (package 5-fold
@@ -512,8 +520,22 @@ func (c *Corrector) searchUpTo(s *search, rk *ranker, lower string, widest float
 func (c *Corrector) runPass(s *search, lower string, i int, budget float64, bestFirst bool) {
 	switch {
 	case i == 2 && !c.fullWide:
+		s.skf.reset(lower, s.maxDepth)
+		if s.below != nil && !c.oneWalk && s.kwt.build(&s.skf, s.below, s.maxDepth) {
+			// The keys first, then the weighted rows along their words
+			// only (keywalk.go).
+			if len(s.kwt.nodes) == 0 {
+				return // no word the keys keep
+			}
+			s.kt = &s.kwt
+			s.ktAt = growInt32(s.ktAt, s.maxDepth+1)
+			s.ktAt[0] = 0
+			s.run()
+			s.kt = nil
+			return
+		}
+		s.skf.reset(lower, s.maxDepth)
 		s.skel = &s.skf
-		s.skel.reset(lower, s.maxDepth)
 		s.run()
 		s.skel = nil
 	case bestFirst && budget >= c.opts.MaxCost:

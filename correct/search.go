@@ -154,6 +154,12 @@ type search struct {
 	// skelFilter keeps (skeleton.go); skf is what it points to when set.
 	skel *skelFilter
 	skf  skelFilter
+	// kt, if not nil, restricts the depth-first walk (which must follow
+	// s.below) to the paths of a keyTrie (keywalk.go): at depth d it is
+	// at trie node ktAt[d]. kwt is what it points to when set.
+	kt   *keyTrie
+	kwt  keyTrie
+	ktAt []int32
 	// noParent turns off the check of parentBound (parentbound.go) before
 	// a child's row is computed, for comparison in tests and benchmarks.
 	noParent bool
@@ -208,6 +214,7 @@ func (s *search) reset(ch *channel, lex Lexicon, typed string, budget float32, m
 	s.path = s.path[:s.maxDepth+1]
 	s.hits = s.hits[:0]
 	s.skel = nil
+	s.kt = nil
 	s.visited = 0
 	s.examined = 0
 	s.limit = 0
@@ -475,7 +482,7 @@ func (s *search) visit(d int, state int, acc uint64) {
 	s.visited++
 	w := s.w
 	budget := s.budget
-	if c := s.rows[d*w+s.n]; c <= budget && (s.skel == nil || s.skel.accepts(d)) {
+	if c := s.rows[d*w+s.n]; c <= budget && (s.skel == nil || s.skel.accepts(d)) && (s.kt == nil || s.kt.nodes[s.ktAt[d]].accept) {
 		if ok, fo := s.finalAt(state); ok {
 			if s.rk != nil {
 				s.rk.add(uint32(acc+fo), c)
@@ -501,7 +508,19 @@ func (s *search) visit(d int, state int, acc uint64) {
 	if s.skel != nil {
 		fm = s.skel.mask(d)
 	}
-	for k := lo; k < hi; k++ {
+	if s.kt != nil {
+		// Only the edges of the key trie's node, which are edges of
+		// state in the table's order.
+		kn := s.kt.nodes[s.ktAt[d]]
+		lo, hi = int(kn.lo), int(kn.hi)
+	}
+	for x := lo; x < hi; x++ {
+		k := x
+		if s.kt != nil {
+			e := s.kt.edges[x]
+			k = int(e.k)
+			s.ktAt[d+1] = e.child
+		}
 		c, next, out := s.edgeAt(edges, k)
 		if s.skel != nil && fm[c>>6]&(1<<(c&63)) == 0 {
 			continue // no word below is one the filter keeps
@@ -517,7 +536,7 @@ func (s *search) visit(d int, state int, acc uint64) {
 			}
 		}
 		s.path[d] = c
-		if s.skel != nil && !s.skel.step(d, c, s.belowOf(next)) {
+		if s.skel != nil && !s.skel.step(d, c, s.belowOf(next), s.restOf(next)) {
 			continue // no word below is one the filter keeps
 		}
 		if g != nil && !s.noParent && s.parentBound(s.rows[d*w:(d+1)*w], prev, c, last, parts, g.nodes[next].sets.below()|belowBit(c)) > budget {

@@ -64,6 +64,8 @@ type skelFilter struct {
 	k       []int32  // by depth: skeleton bytes of the path to that depth
 	skelOK  []bool   // by depth: a word below may have a skeleton in reach
 	plainOK []bool   // by depth: a word below may be within plainEdits
+	skMiss  []uint32 // by depth: the typed skeleton's letters missing below, when skelOK
+	skRest  []uint8  // by depth: the longest skeleton tail below (restLens.skel), when skelOK
 	buf     []byte   // the typed skeleton
 	tw      []byte   // the typed word
 }
@@ -102,29 +104,45 @@ func (f *skelFilter) reset(typed string, maxDepth int) {
 	f.skelOK = growBool(f.skelOK, maxDepth+1)
 	f.plainOK = growBool(f.plainOK, maxDepth+1)
 	f.skelOK[0], f.plainOK[0] = true, true
+	if cap(f.skMiss) < maxDepth+1 {
+		f.skMiss = make([]uint32, maxDepth+1)
+	}
+	f.skMiss = f.skMiss[:maxDepth+1]
+	f.skRest = grow8(f.skRest, maxDepth+1)
+	f.skMiss[0] = ^uint32(0) // no bound computed at the empty prefix
 }
 
 // step extends the path at depth d by byte c to depth d+1; below is the
-// set of letters (belowBit) on the paths below the new prefix. It reports
-// false when no word below can be kept: for each key, the distance of
-// every word below is over its limit (by unitRows.bound). A key once out
-// of reach stays so below (the words below a prefix are among those
-// below its parent), and its rows are no longer computed.
-func (f *skelFilter) step(d int, c byte, below uint32) bool {
+// set of letters (belowBit) on the paths below the new prefix and rest
+// the lengths of the rests below it (restLens). It reports false when no
+// word below can be kept: for each key, the distance of every word below
+// is over its limit (by unitRows.bound). A key once out of reach stays so
+// below (the words below a prefix are among those below its parent), and
+// its rows are no longer computed.
+func (f *skelFilter) step(d int, c byte, below uint32, rest restLens) bool {
 	p := f.plainOK[d]
 	if p {
 		f.plain.push(d, c)
-		p = f.plain.bound(d+1, below) <= f.plain.maxd
+		p = f.plain.bound(d+1, below, rest.min, rest.max) <= f.plain.maxd
 	}
 	f.plainOK[d+1] = p
 	k := int(f.k[d])
 	sk := f.skelOK[d]
 	if sk {
+		moved := false
 		if inSkeleton(c) && (k == 0 || f.skel.path[k-1] != c) && k+1 < f.skel.nrows {
 			f.skel.push(k, c)
 			k++
+			moved = true
 		}
-		sk = f.skel.bound(k, below) <= f.skel.maxd
+		miss := f.skel.tall &^ below
+		// A byte the skeleton leaves out, with the same letters missing
+		// below and the same longest skeleton tail, gives the bound the
+		// parent had, which let it through.
+		if moved || miss != f.skMiss[d] || rest.skel != f.skRest[d] {
+			sk = f.skel.bound(k, below, 0, rest.skel) <= f.skel.maxd
+		}
+		f.skMiss[d+1], f.skRest[d+1] = miss, rest.skel
 	}
 	f.k[d+1] = int32(k)
 	f.skelOK[d+1] = sk
@@ -291,35 +309,49 @@ func (u *unitRows) final(k int) bool {
 }
 
 // bound returns a lower bound on the distance of any walked key that
-// continues the one of row k with letters of below, exact where it is
-// within maxd: every alignment passes through a cell of row k at some
-// typed position j or swaps the key's last byte with the next, jumping
-// from row k-1 at j-2 to row k+1 at j; each typed byte from j on whose
-// letter is on no path below costs an edit. Only the rows' bands can
-// hold entries within maxd, so only they are read.
-func (u *unitRows) bound(k int, below uint32) uint8 {
+// continues the one of row k with letters of below and with at least lo
+// and at most hi more bytes, exact where it is within maxd: every
+// alignment passes through a cell of row k at some typed position j or
+// swaps the key's last byte with the next, jumping from row k-1 at j-2 to
+// row k+1 at j. From there on, each typed byte whose letter is on no path
+// below costs an edit, and so does each byte by which the typed tail is
+// longer than hi or shorter than lo (an insertion or deletion each); the
+// tail pays the larger of the two counts. Only the rows' bands can hold
+// entries within maxd, so only they are read.
+func (u *unitRows) bound(k int, below uint32, lo, hi uint8) uint8 {
+	n, md, w := len(u.t), int(u.maxd), len(u.t)+1
+	rows := u.rmin[k] // the rows alone: every term is at least this
+	if k > 0 {
+		rows = min(rows, u.rmin[k-1]+1)
+	}
 	miss := u.tall &^ below
-	if miss == 0 {
-		// Every typed letter is below: the rows alone.
-		if k > 0 {
-			return min(u.rmin[k], u.rmin[k-1]+1)
-		}
-		return u.rmin[k]
+	if rows > u.maxd || miss == 0 && int(lo) <= n-min(n, k+md) && int(hi) >= n-max(0, k-md) {
+		// Out of reach by the rows alone, or every typed letter is
+		// below and no tail in the bands is out of the lengths' reach.
+		return rows
 	}
 	var mm uint64 // typed positions whose letter is on no path below
 	for ; miss != 0; miss &= miss - 1 {
 		mm |= u.pos[bitIndex(miss)]
 	}
-	n, md, w := len(u.t), int(u.maxd), len(u.t)+1
+	// Each term: an entry plus what the typed bytes from j on cost at
+	// least after it, the larger of the letters missing below and the
+	// length gap to a walked tail of l to h bytes.
 	lb := u.maxd + 1
 	R := u.rows[k*w : (k+1)*w]
+	l, h := int(lo), int(hi)
 	for j := max(0, k-md); j <= min(n, k+md); j++ {
-		lb = min(lb, R[j]+uint8(bits.OnesCount64(mm>>j)))
+		r := n - j
+		g := max(0, r-h, l-r, bits.OnesCount64(mm>>j))
+		lb = min(lb, R[j]+uint8(min(g, md+1)))
 	}
-	if k > 0 {
+	if k > 0 && h > 0 {
 		Q := u.rows[(k-1)*w : k*w]
+		l, h := max(l, 1)-1, h-1
 		for j := max(0, k-1-md); j <= min(n-2, k-1+md); j++ {
-			lb = min(lb, Q[j]+1+uint8(bits.OnesCount64(mm>>(j+2))))
+			r := n - j - 2
+			g := max(0, r-h, l-r, bits.OnesCount64(mm>>(j+2)))
+			lb = min(lb, Q[j]+1+uint8(min(g, md+1)))
 		}
 	}
 	return lb

@@ -1,0 +1,118 @@
+package correct
+
+// The widest pass in two walks. The widest pass keeps the words within
+// the budget whose keys (skelFilter) are in reach. Walked at once, the
+// weighted rows and the keys prune each other only prefix by prefix: on
+// the slowest 5 % of the 8-letter misspellings of BenchmarkCorrect8 that
+// walk computed about 2,100 weighted rows a word, of which about 26 were
+// prefixes of words it kept (measured, this project; BENCHMARKS.md). So
+// the keys walk first, alone and cheaply (keyWalk: unit-cost rows only),
+// and record the words they keep as a small trie of the lexicon's paths
+// (keyTrie); then the weighted walk follows only that trie, pricing the
+// same words at the same costs: the filter is the same, only the order
+// of work changes. The keys' walk is not counted by the cap
+// (Options.MaxStates; it is bounded by keyWalkMax instead). The weighted
+// walk then examines some of the prefixes the one walk would, in the same
+// order, so under the cap it finds the same words whenever the one walk
+// would have finished, and more when the cap would have stopped that.
+
+// keyTrie is the set of paths of the lexicon's automaton (belowTable)
+// that lead to a word the keys keep, recorded by keyWalk: node 0 is the
+// start; each node lists, in the automaton's edge order, the edges
+// (by index into belowTable's edge arrays) to its children that lead to
+// such a word, and whether its own path is a word the keys keep.
+type keyTrie struct {
+	nodes   []keyNode
+	edges   []keyEdge
+	pending []keyEdge // keyWalk's children lists, stacked by depth
+	steps   int       // children keyWalk stepped into (skelFilter.step)
+}
+
+// keyNode is one node of keyTrie: its children are edges[lo:hi].
+type keyNode struct {
+	lo, hi int32
+	accept bool
+}
+
+// keyEdge is one edge of keyTrie: edge k of belowTable, to trie node
+// child.
+type keyEdge struct {
+	k, child int32
+}
+
+// keyWalkMax is the number of children keyWalk steps into before it gives
+// up, leaving the widest pass to the one walk with the keys as a filter
+// (same words, same costs), so that no input costs much more than before:
+// the keys alone follow every vowel below a prefix whose skeleton is in
+// reach. Over all 2,173 development misspellings the keys' walk stepped
+// into median 6,603, p99 14,366 and at most 15,265 children, and for
+// one- and two-letter words and long runs of one letter 300 to 8,700
+// (74 k-word SUBTLEX-US lexicon; measured, this project).
+const keyWalkMax = 20000
+
+// keyWalk walks the letters-below table s.below from node g at depth d
+// under the keys of f alone and records in t the paths to the words they
+// keep, returning the trie node of the path to g, or -1 when no word
+// below is kept or the walk gave up (t.steps over keyWalkMax).
+func (t *keyTrie) keyWalk(f *skelFilter, g *belowTable, node, d, maxDepth int) int32 {
+	ok, _ := g.final(node)
+	accept := ok && f.accepts(d)
+	idx := int32(len(t.nodes))
+	t.nodes = append(t.nodes, keyNode{accept: accept})
+	base := len(t.pending)
+	if d < maxDepth {
+		m := f.mask(d)
+		lo, hi := g.edges(node)
+		for k := lo; k < hi; k++ {
+			c := g.eb[k]
+			if m[c>>6]&(1<<(c&63)) == 0 {
+				continue
+			}
+			t.steps++
+			if t.steps > keyWalkMax {
+				return -1
+			}
+			next := int(g.en[k])
+			if !f.step(d, c, g.nodes[next].sets.below(), g.rest[next]) {
+				continue
+			}
+			if ch := t.keyWalk(f, g, next, d+1, maxDepth); ch >= 0 {
+				t.pending = append(t.pending, keyEdge{k: int32(k), child: ch})
+			} else if t.steps > keyWalkMax {
+				return -1
+			}
+		}
+	}
+	kids := t.pending[base:]
+	if len(kids) == 0 && !accept {
+		t.nodes = t.nodes[:idx]
+		t.pending = t.pending[:base]
+		return -1
+	}
+	lo := int32(len(t.edges))
+	t.edges = append(t.edges, kids...)
+	t.pending = t.pending[:base]
+	t.nodes[idx].lo, t.nodes[idx].hi = lo, int32(len(t.edges))
+	return idx
+}
+
+// build records the words the keys of f keep below the table's start,
+// walking at most maxDepth bytes deep. It reports false when the walk
+// gave up (keyWalkMax) and true otherwise, with an empty trie when no
+// word is kept.
+func (t *keyTrie) build(f *skelFilter, g *belowTable, maxDepth int) bool {
+	t.nodes, t.edges, t.pending, t.steps = t.nodes[:0], t.edges[:0], t.pending[:0], 0
+	if t.keyWalk(f, g, 0, 0, maxDepth) < 0 {
+		t.nodes = t.nodes[:0]
+		return t.steps <= keyWalkMax
+	}
+	return true
+}
+
+// growInt32 returns b with length n, reallocated when too short.
+func growInt32(b []int32, n int) []int32 {
+	if cap(b) < n {
+		return make([]int32, n)
+	}
+	return b[:n]
+}
