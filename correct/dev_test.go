@@ -1,11 +1,38 @@
 package correct
 
 import (
+	"math/rand"
 	"os"
 	"strings"
 	"testing"
 	"time"
 )
+
+// typedSample returns test inputs for the search: the lower-cased typed
+// side of every every-th development pair (devPairs) that Correct
+// accepts (at most max of them, 0 for no limit), then n random strings of
+// minLen to minLen+spread-1 letters, apostrophes and hyphens drawn from
+// seed, fixed so that failures replay.
+func typedSample(t testing.TB, every, max int, seed int64, n, minLen, spread int) []string {
+	t.Helper()
+	var typed []string
+	pairs := devPairs(t)
+	for i := 0; i < len(pairs) && (max == 0 || len(typed) < max); i += every {
+		w := strings.ToLower(pairs[i].Typed)
+		if len(w) <= maxTyped && latinOnly(w) {
+			typed = append(typed, w)
+		}
+	}
+	rng := rand.New(rand.NewSource(seed))
+	for range n {
+		b := make([]byte, minLen+rng.Intn(spread))
+		for i := range b {
+			b[i] = "abcdefghijklmnopqrstuvwxyz'-"[rng.Intn(28)]
+		}
+		typed = append(typed, string(b))
+	}
+	return typed
+}
 
 // devPairs reads misspellings-dev.tsv (development half of the English
 // Wikipedia "Lists of common misspellings/For machines", see

@@ -53,7 +53,8 @@ const keyWalkMax = 20000
 // keyWalk walks the letters-below table s.below from node g at depth d
 // under the keys of f alone and records in t the paths to the words they
 // keep, returning the trie node of the path to g, or -1 when no word
-// below is kept or the walk gave up (t.steps over keyWalkMax).
+// below is kept or the walk gave up (t.steps over keyWalkMax). Below a
+// child whose plain key is out of reach it walks on with skelWalk.
 func (t *keyTrie) keyWalk(f *skelFilter, g *belowTable, node, d, maxDepth int) int32 {
 	ok, _ := g.final(node)
 	accept := ok && f.accepts(d)
@@ -76,13 +77,99 @@ func (t *keyTrie) keyWalk(f *skelFilter, g *belowTable, node, d, maxDepth int) i
 			if !f.step(d, c, g.nodes[next].sets.below(), g.rest[next]) {
 				continue
 			}
-			if ch := t.keyWalk(f, g, next, d+1, maxDepth); ch >= 0 {
+			var ch int32
+			if f.plainOK[d+1] {
+				ch = t.keyWalk(f, g, next, d+1, maxDepth)
+			} else {
+				// Only the skeleton key is left below: skelWalk.
+				sl := int(f.k[d+1])
+				f.skMask[sl] = f.mask(d + 1)
+				ch = t.skelWalk(f, g, next, d+1, maxDepth, f.skel.final(sl))
+			}
+			if ch >= 0 {
 				t.pending = append(t.pending, keyEdge{k: int32(k), child: ch})
 			} else if t.steps > keyWalkMax {
 				return -1
 			}
 		}
 	}
+	return t.close(idx, base, accept)
+}
+
+// skelWalk is keyWalk below a prefix (of depth d) whose plain key is out
+// of reach, so that only the skeleton key decides, with fin whether the
+// prefix's skeleton is within reach (unitRows.final) and its byte mask
+// (skelFilter.mask) in f.skMask at its skeleton's length. Its steps are
+// skelFilter.step's for that case, with less work and the same outcome: a
+// byte that leaves the skeleton as it is moves no row, so the child's
+// mask and fin are the prefix's and are not computed again; and the plain
+// key is not looked at.
+func (t *keyTrie) skelWalk(f *skelFilter, g *belowTable, node, d, maxDepth int, fin bool) int32 {
+	ok, _ := g.final(node)
+	accept := ok && fin
+	idx := int32(len(t.nodes))
+	t.nodes = append(t.nodes, keyNode{accept: accept})
+	base := len(t.pending)
+	if d < maxDepth {
+		sk := &f.skel
+		k := int(f.k[d])
+		var last byte
+		if k > 0 {
+			last = sk.path[k-1]
+		}
+		miss0, rest0 := f.skMiss[d], f.skRest[d]
+		m := &f.skMask[k]
+		lo, hi := g.edges(node)
+		for x := lo; x < hi; x++ {
+			c := g.eb[x]
+			if m[c>>6]&(1<<(c&63)) == 0 {
+				continue
+			}
+			t.steps++
+			if t.steps > keyWalkMax {
+				return -1
+			}
+			next := int(g.en[x])
+			below := g.nodes[next].sets.below()
+			rs := g.rest[next].skel
+			miss := sk.tall &^ below
+			k2 := k
+			if inSkeleton(c) && (k == 0 || last != c) && k+1 < sk.nrows {
+				sk.push(k, c)
+				k2 = k + 1
+				if sk.bound(k2, below, 0, rs) > sk.maxd {
+					continue
+				}
+			} else if (miss != miss0 || rs != rest0) && sk.bound(k, below, 0, rs) > sk.maxd {
+				// The parent's bound, which passed, holds unless the
+				// letters missing below or the longest tail changed.
+				continue
+			}
+			f.k[d+1] = int32(k2)
+			f.plainOK[d+1], f.skelOK[d+1] = false, true
+			f.skMiss[d+1], f.skRest[d+1] = miss, rs
+			var ch int32
+			if k2 == k {
+				ch = t.skelWalk(f, g, next, d+1, maxDepth, fin)
+			} else {
+				f.skMask[k2] = f.mask(d + 1)
+				ch = t.skelWalk(f, g, next, d+1, maxDepth, sk.final(k2))
+			}
+			if ch >= 0 {
+				t.pending = append(t.pending, keyEdge{k: int32(x), child: ch})
+			} else if t.steps > keyWalkMax {
+				return -1
+			}
+		}
+	}
+	return t.close(idx, base, accept)
+}
+
+// close ends trie node idx, whose children keyWalk or skelWalk stacked
+// in t.pending from base on: it moves them to t.edges and returns idx,
+// or drops the node and returns -1 when it has no child and its own path
+// is no word the keys keep (accept).
+func (t *keyTrie) close(idx int32, base int, accept bool) int32 {
 	kids := t.pending[base:]
 	if len(kids) == 0 && !accept {
 		t.nodes = t.nodes[:idx]

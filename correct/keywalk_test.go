@@ -2,9 +2,7 @@ package correct
 
 import (
 	"fmt"
-	"math/rand"
 	"slices"
-	"strings"
 	"testing"
 )
 
@@ -40,21 +38,7 @@ func TestKeyWalkSameWords(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	var typed []string
-	for _, p := range devPairs(t) {
-		w := strings.ToLower(p.Typed)
-		if len(w) <= maxTyped && latinOnly(w) {
-			typed = append(typed, w)
-		}
-	}
-	rng := rand.New(rand.NewSource(4)) // fixed seed: failures replay
-	for range 60 {
-		b := make([]byte, 1+rng.Intn(12))
-		for i := range b {
-			b[i] = "abcdefghijklmnopqrstuvwxyz'-"[rng.Intn(28)]
-		}
-		typed = append(typed, string(b))
-	}
+	typed := typedSample(t, 1, 0, 4, 60, 1, 12)
 	tests := []struct {
 		name  string
 		words []string

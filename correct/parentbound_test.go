@@ -2,8 +2,6 @@ package correct
 
 import (
 	"fmt"
-	"math/rand"
-	"strings"
 	"testing"
 )
 
@@ -23,22 +21,7 @@ func TestParentBoundKeepsWords(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	var typed []string
-	pairs := devPairs(t)
-	for i := 0; i < len(pairs) && len(typed) < 150; i += 11 {
-		w := strings.ToLower(pairs[i].Typed)
-		if len(w) <= maxTyped && latinOnly(w) {
-			typed = append(typed, w)
-		}
-	}
-	rng := rand.New(rand.NewSource(15)) // fixed seed: failures replay
-	for range 20 {
-		b := make([]byte, 3+rng.Intn(10))
-		for i := range b {
-			b[i] = "abcdefghijklmnopqrstuvwxyz'-"[rng.Intn(28)]
-		}
-		typed = append(typed, string(b))
-	}
+	typed := typedSample(t, 11, 150, 15, 20, 3, 10)
 	tests := []struct {
 		name      string
 		budget    float32

@@ -2,8 +2,6 @@ package correct
 
 import (
 	"fmt"
-	"math/rand"
-	"strings"
 	"testing"
 )
 
@@ -59,22 +57,7 @@ func TestSkeletonPassKeepsWords(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	var typed []string
-	pairs := devPairs(t)
-	for i := 0; i < len(pairs); i += 7 {
-		w := strings.ToLower(pairs[i].Typed)
-		if len(w) <= maxTyped && latinOnly(w) {
-			typed = append(typed, w)
-		}
-	}
-	rng := rand.New(rand.NewSource(16)) // fixed seed: failures replay
-	for range 30 {
-		b := make([]byte, 3+rng.Intn(10))
-		for i := range b {
-			b[i] = "abcdefghijklmnopqrstuvwxyz'-"[rng.Intn(28)]
-		}
-		typed = append(typed, string(b))
-	}
+	typed := typedSample(t, 7, 0, 16, 30, 3, 10)
 	tests := []struct {
 		name  string
 		below *belowTable

@@ -1,0 +1,168 @@
+package correct
+
+import (
+	"fmt"
+	"runtime"
+	"slices"
+	"testing"
+	"time"
+)
+
+// refKeyWalk is the keys' walk of round 10 (keyTrie.keyWalk before its
+// fast paths), kept as the reference the current walk must equal.
+func (t *keyTrie) refKeyWalk(f *skelFilter, g *belowTable, node, d, maxDepth int) int32 {
+	ok, _ := g.final(node)
+	accept := ok && f.accepts(d)
+	idx := int32(len(t.nodes))
+	t.nodes = append(t.nodes, keyNode{accept: accept})
+	base := len(t.pending)
+	if d < maxDepth {
+		m := f.mask(d)
+		lo, hi := g.edges(node)
+		for k := lo; k < hi; k++ {
+			c := g.eb[k]
+			if m[c>>6]&(1<<(c&63)) == 0 {
+				continue
+			}
+			t.steps++
+			if t.steps > keyWalkMax {
+				return -1
+			}
+			next := int(g.en[k])
+			if !f.step(d, c, g.nodes[next].sets.below(), g.rest[next]) {
+				continue
+			}
+			if ch := t.refKeyWalk(f, g, next, d+1, maxDepth); ch >= 0 {
+				t.pending = append(t.pending, keyEdge{k: int32(k), child: ch})
+			} else if t.steps > keyWalkMax {
+				return -1
+			}
+		}
+	}
+	kids := t.pending[base:]
+	if len(kids) == 0 && !accept {
+		t.nodes = t.nodes[:idx]
+		t.pending = t.pending[:base]
+		return -1
+	}
+	lo := int32(len(t.edges))
+	t.edges = append(t.edges, kids...)
+	t.pending = t.pending[:base]
+	t.nodes[idx].lo, t.nodes[idx].hi = lo, int32(len(t.edges))
+	return idx
+}
+
+// refBuild is keyTrie.build with refKeyWalk.
+func (t *keyTrie) refBuild(f *skelFilter, g *belowTable, maxDepth int) bool {
+	t.nodes, t.edges, t.pending, t.steps = t.nodes[:0], t.edges[:0], t.pending[:0], 0
+	if t.refKeyWalk(f, g, 0, 0, maxDepth) < 0 {
+		t.nodes = t.nodes[:0]
+		return t.steps <= keyWalkMax
+	}
+	return true
+}
+
+// keyWalkWords returns the lower-cased development misspellings of at
+// most maxTyped bytes and n random strings of 1 to 12 bytes (fixed seed).
+func keyWalkWords(t testing.TB, n int) []string {
+	t.Helper()
+	return typedSample(t, 1, 0, 11, n, 1, 12)
+}
+
+// TestKeyWalkSameTrie checks that the keys' walk builds, node for node
+// and edge for edge, the same trie as the round-10 walk (refKeyWalk) and
+// gives up on the same words, for every development misspelling and 200
+// random strings over the SUBTLEX-US letters-below table.
+func TestKeyWalkSameTrie(t *testing.T) {
+	d := corpus(t)
+	c, err := New(newTrieLex(t, d.subtlexLex), d.unigramScorer(d.subtlexLex), Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if c.below == nil {
+		t.Fatal("no letters-below table")
+	}
+	var f skelFilter
+	var got, want keyTrie
+	nodes := 0
+	for _, w := range keyWalkWords(t, 200) {
+		maxDepth := min(len(w)+maxExtra, 2*maxTyped)
+		f.reset(w, maxDepth)
+		okWant := want.refBuild(&f, c.below, maxDepth)
+		f.reset(w, maxDepth)
+		okGot := got.build(&f, c.below, maxDepth)
+		nodes += len(want.nodes)
+		if okGot != okWant || fmt.Sprint(got.nodes) != fmt.Sprint(want.nodes) || fmt.Sprint(got.edges) != fmt.Sprint(want.edges) {
+			t.Errorf("%q: trie of %d nodes (finished %v), want %d nodes (finished %v)", w, len(got.nodes), okGot, len(want.nodes), okWant)
+		}
+	}
+	if nodes == 0 {
+		t.Error("every trie empty: the comparison tests nothing")
+	}
+}
+
+// BenchmarkKeyWalkOnly times the keys' walk alone (keyTrie.build) for the
+// 8-letter misspellings of BenchmarkCorrect8, the round-10 walk
+// (refKeyWalk) and the current one in turn, each word's least CPU time
+// per walk, and reports their median, p99 and mean, the steps per word
+// (median, p99) and the median over words of the time ratio (new / old).
+// Run it for a few passes: -benchtime=6x the 305 words.
+func BenchmarkKeyWalkOnly(b *testing.B) {
+	c, typed := cappedCorrector(b)
+	if c.below == nil {
+		b.Fatal("no letters-below table")
+	}
+	runtime.LockOSThread()
+	defer runtime.UnlockOSThread()
+	var best [2][]time.Duration
+	for m := range best {
+		best[m] = make([]time.Duration, len(typed))
+		for i := range best[m] {
+			best[m][i] = 1<<63 - 1
+		}
+	}
+	steps := make([]float64, len(typed))
+	var f skelFilter
+	var kt keyTrie
+	k := 0
+	b.ReportAllocs()
+	for b.Loop() {
+		i, m := k%len(typed), (k/len(typed))%2
+		k++
+		w := typed[i]
+		maxDepth := min(len(w)+maxExtra, 2*maxTyped)
+		cpu0 := threadClock()
+		f.reset(w, maxDepth)
+		if m == 0 {
+			kt.refBuild(&f, c.below, maxDepth)
+		} else {
+			kt.build(&f, c.below, maxDepth)
+			steps[i] = float64(kt.steps)
+		}
+		best[m][i] = min(best[m][i], threadClock()-cpu0)
+	}
+	if k < 2*len(typed) {
+		b.Logf("%d walks, fewer than a pass with each; no figures", k)
+		return
+	}
+	var ratio []float64
+	for i := range typed {
+		ratio = append(ratio, float64(best[1][i])/float64(best[0][i]))
+	}
+	slices.Sort(ratio)
+	for m, name := range [2]string{"old", "new"} {
+		x := slices.Clone(best[m])
+		var sum time.Duration
+		for _, v := range x {
+			sum += v
+		}
+		slices.Sort(x)
+		b.ReportMetric(float64(x[len(x)/2].Nanoseconds()), name+"-cpu-median-ns")
+		b.ReportMetric(float64(x[len(x)*99/100].Nanoseconds()), name+"-cpu-p99-ns")
+		b.ReportMetric(float64(sum.Nanoseconds())/float64(len(x)), name+"-cpu-mean-ns")
+	}
+	slices.Sort(steps)
+	b.ReportMetric(steps[len(steps)/2], "steps-median")
+	b.ReportMetric(steps[len(steps)*99/100], "steps-p99")
+	b.ReportMetric(ratio[len(ratio)/2], "ratio-median")
+}
