@@ -303,13 +303,7 @@ func compareSearches(b *testing.B, names [2]string, set func(c *Corrector, m int
 	c, typed := cappedCorrector(b)
 	runtime.LockOSThread()
 	defer runtime.UnlockOSThread()
-	var best [2][]time.Duration
-	for m := range best {
-		best[m] = make([]time.Duration, len(typed))
-		for i := range best[m] {
-			best[m][i] = 1<<63 - 1
-		}
-	}
+	best := pairedBest(len(typed))
 	var buf []Candidate
 	k := 0
 	b.ReportAllocs()
@@ -325,8 +319,29 @@ func compareSearches(b *testing.B, names [2]string, set func(c *Corrector, m int
 		b.Logf("%d words corrected, fewer than a pass with each setting; no figures", k)
 		return
 	}
+	reportPaired(b, names, best)
+}
+
+// pairedBest returns two lists of n least times (one per setting of a
+// paired benchmark), each starting at the largest duration.
+func pairedBest(n int) [2][]time.Duration {
+	var best [2][]time.Duration
+	for m := range best {
+		best[m] = make([]time.Duration, n)
+		for i := range best[m] {
+			best[m][i] = 1<<63 - 1
+		}
+	}
+	return best
+}
+
+// reportPaired reports, for each of the two settings of a paired
+// benchmark, the median, p99 and mean of its least times per word, and
+// the median over words of their ratio (setting 1 / setting 0).
+func reportPaired(b *testing.B, names [2]string, best [2][]time.Duration) {
+	b.Helper()
 	var ratio []float64
-	for i := range typed {
+	for i := range best[0] {
 		ratio = append(ratio, float64(best[1][i])/float64(best[0][i]))
 	}
 	slices.Sort(ratio)

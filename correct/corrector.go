@@ -528,7 +528,7 @@ func (c *Corrector) runPass(s *search, lower string, i int, budget float64, best
 				return // no word the keys keep
 			}
 			s.kt = &s.kwt
-			s.ktAt = growInt32(s.ktAt, s.maxDepth+1)
+			s.ktAt = grow(s.ktAt, s.maxDepth+1)
 			s.ktAt[0] = 0
 			s.run()
 			s.kt = nil

@@ -195,11 +195,3 @@ func (t *keyTrie) build(f *skelFilter, g *belowTable, maxDepth int) bool {
 	}
 	return true
 }
-
-// growInt32 returns b with length n, reallocated when too short.
-func growInt32(b []int32, n int) []int32 {
-	if cap(b) < n {
-		return make([]int32, n)
-	}
-	return b[:n]
-}

@@ -5,7 +5,6 @@ import (
 	"runtime"
 	"slices"
 	"testing"
-	"time"
 )
 
 // refKeyWalk is the keys' walk of round 10 (keyTrie.keyWalk before its
@@ -39,17 +38,7 @@ func (t *keyTrie) refKeyWalk(f *skelFilter, g *belowTable, node, d, maxDepth int
 			}
 		}
 	}
-	kids := t.pending[base:]
-	if len(kids) == 0 && !accept {
-		t.nodes = t.nodes[:idx]
-		t.pending = t.pending[:base]
-		return -1
-	}
-	lo := int32(len(t.edges))
-	t.edges = append(t.edges, kids...)
-	t.pending = t.pending[:base]
-	t.nodes[idx].lo, t.nodes[idx].hi = lo, int32(len(t.edges))
-	return idx
+	return t.close(idx, base, accept)
 }
 
 // refBuild is keyTrie.build with refKeyWalk.
@@ -114,13 +103,7 @@ func BenchmarkKeyWalkOnly(b *testing.B) {
 	}
 	runtime.LockOSThread()
 	defer runtime.UnlockOSThread()
-	var best [2][]time.Duration
-	for m := range best {
-		best[m] = make([]time.Duration, len(typed))
-		for i := range best[m] {
-			best[m][i] = 1<<63 - 1
-		}
-	}
+	best := pairedBest(len(typed))
 	steps := make([]float64, len(typed))
 	var f skelFilter
 	var kt keyTrie
@@ -145,24 +128,8 @@ func BenchmarkKeyWalkOnly(b *testing.B) {
 		b.Logf("%d walks, fewer than a pass with each; no figures", k)
 		return
 	}
-	var ratio []float64
-	for i := range typed {
-		ratio = append(ratio, float64(best[1][i])/float64(best[0][i]))
-	}
-	slices.Sort(ratio)
-	for m, name := range [2]string{"old", "new"} {
-		x := slices.Clone(best[m])
-		var sum time.Duration
-		for _, v := range x {
-			sum += v
-		}
-		slices.Sort(x)
-		b.ReportMetric(float64(x[len(x)/2].Nanoseconds()), name+"-cpu-median-ns")
-		b.ReportMetric(float64(x[len(x)*99/100].Nanoseconds()), name+"-cpu-p99-ns")
-		b.ReportMetric(float64(sum.Nanoseconds())/float64(len(x)), name+"-cpu-mean-ns")
-	}
+	reportPaired(b, [2]string{"old", "new"}, best)
 	slices.Sort(steps)
 	b.ReportMetric(steps[len(steps)/2], "steps-median")
 	b.ReportMetric(steps[len(steps)*99/100], "steps-p99")
-	b.ReportMetric(ratio[len(ratio)/2], "ratio-median")
 }

@@ -378,9 +378,11 @@ func (s *search) leadFirst() {
 	s.ins[0] = v
 }
 
-func grow(b []float32, n int) []float32 {
+// grow returns b with length n, reallocated when too short (the
+// contents are then not kept).
+func grow[T any](b []T, n int) []T {
 	if cap(b) < n {
-		return make([]float32, n)
+		return make([]T, n)
 	}
 	return b[:n]
 }

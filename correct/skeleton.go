@@ -97,24 +97,15 @@ func (f *skelFilter) reset(typed string, maxDepth int) {
 	f.skel.reset(f.buf, maxDepth, skelEdits)
 	f.tw = append(f.tw[:0], typed...)
 	f.plain.reset(f.tw, maxDepth, plainEdits)
-	if cap(f.k) < maxDepth+1 {
-		f.k = make([]int32, maxDepth+1)
-	}
-	f.k = f.k[:maxDepth+1]
+	f.k = grow(f.k, maxDepth+1)
 	f.k[0] = 0
-	f.skelOK = growBool(f.skelOK, maxDepth+1)
-	f.plainOK = growBool(f.plainOK, maxDepth+1)
+	f.skelOK = grow(f.skelOK, maxDepth+1)
+	f.plainOK = grow(f.plainOK, maxDepth+1)
 	f.skelOK[0], f.plainOK[0] = true, true
-	if cap(f.skMiss) < maxDepth+1 {
-		f.skMiss = make([]uint32, maxDepth+1)
-	}
-	f.skMiss = f.skMiss[:maxDepth+1]
-	f.skRest = grow8(f.skRest, maxDepth+1)
+	f.skMiss = grow(f.skMiss, maxDepth+1)
+	f.skRest = grow(f.skRest, maxDepth+1)
 	f.skMiss[0] = ^uint32(0) // no bound computed at the empty prefix
-	if cap(f.skMask) < f.skel.nrows {
-		f.skMask = make([][4]uint64, f.skel.nrows)
-	}
-	f.skMask = f.skMask[:f.skel.nrows]
+	f.skMask = grow(f.skMask, f.skel.nrows)
 }
 
 // step extends the path at depth d by byte c to depth d+1; below is the
@@ -237,17 +228,13 @@ func (u *unitRows) reset(t []byte, maxRows int, maxd uint8) {
 	}
 	w := len(u.t) + 1
 	u.nrows = maxRows + 1
-	if need := u.nrows * w; cap(u.rows) < need {
-		u.rows = make([]uint8, need)
-	} else {
-		u.rows = u.rows[:need]
-	}
+	u.rows = grow(u.rows, u.nrows*w)
 	for j := range w {
 		u.rows[j] = uint8(min(j, int(maxd)+1))
 	}
-	u.rmin = grow8(u.rmin, u.nrows)
+	u.rmin = grow(u.rmin, u.nrows)
 	u.rmin[0] = 0
-	u.path = grow8(u.path, u.nrows)
+	u.path = grow(u.path, u.nrows)
 }
 
 // push computes row k+1 from rows k and k-1 for walked byte c
@@ -370,20 +357,4 @@ func (u *unitRows) bound(k int, below uint32, lo, hi uint8) uint8 {
 		}
 	}
 	return lb
-}
-
-// growBool returns b with length n, reallocated when too short.
-func growBool(b []bool, n int) []bool {
-	if cap(b) < n {
-		return make([]bool, n)
-	}
-	return b[:n]
-}
-
-// grow8 returns b with length n, reallocated when too short.
-func grow8(b []byte, n int) []byte {
-	if cap(b) < n {
-		return make([]byte, n)
-	}
-	return b[:n]
 }
