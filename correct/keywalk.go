@@ -137,12 +137,12 @@ func (t *keyTrie) skelWalk(f *skelFilter, g *belowTable, node, d, maxDepth int, 
 			if inSkeleton(c) && (k == 0 || last != c) && k+1 < sk.nrows {
 				sk.push(k, c)
 				k2 = k + 1
-				if sk.bound(k2, below, 0, rs) > sk.maxd {
+				if !sk.reach(k2, below, 0, rs) {
 					continue
 				}
-			} else if (miss != miss0 || rs != rest0) && sk.bound(k, below, 0, rs) > sk.maxd {
-				// The parent's bound, which passed, holds unless the
-				// letters missing below or the longest tail changed.
+			} else if (miss != miss0 || rs != rest0) && !sk.reach(k, below, 0, rs) {
+				// The parent's test (reach), which passed, holds unless
+				// the letters missing below or the longest tail changed.
 				continue
 			}
 			f.k[d+1] = int32(k2)
