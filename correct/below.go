@@ -71,6 +71,10 @@ type belowTable struct {
 	en    []uint32    // edge targets (node indices)
 	eo    []uint32    // edge outputs, modulo 2³² (word IDs are 32-bit)
 	rest  []restLens  // by node: the lengths of the rests below (restlen.go)
+	// ascending reports that every state's edges are listed by rising
+	// byte, so that the edges of a state whose edges are all letters lie
+	// in the order of their classes (pickLetters, search.go).
+	ascending bool
 }
 
 // belowNode is one state of belowTable: its edges are eb[lo:] up to the
@@ -186,9 +190,11 @@ func buildBelow[S lexState](lex Lexicon, el EdgeLister) (*belowTable, bool) {
 		eo:    make([]uint32, edges),
 	}
 	k := 0
+	t.ascending = true
 	for i, st := range states {
 		nd := &t.nodes[i]
 		nd.lo = uint32(k)
+		lo := k
 		if ok, fo := lex.Final(int(st)); ok {
 			nd.lo |= finalBit
 			nd.fin = uint32(fo)
@@ -202,6 +208,9 @@ func buildBelow[S lexState](lex Lexicon, el EdgeLister) (*belowTable, bool) {
 			n, seen := index.get(states, S(e.Next))
 			if !seen || int(S(e.Next)) != e.Next {
 				return nil, true // the lexicon listed a state the first walk did not
+			}
+			if k > lo && t.eb[k-1] >= e.Byte {
+				t.ascending = false
 			}
 			t.eb[k], t.en[k], t.eo[k] = e.Byte, n, uint32(e.Out)
 			k++

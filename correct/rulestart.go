@@ -60,16 +60,35 @@ func (s *search) prepareStarts() {
 	s.startOff = append(s.startOff, int32(len(s.startTab)))
 }
 
-// addRuleStarts adds to set the first intended bytes of the rules that
-// can start after a prefix with the given row within the budget: for each
-// typed position x, those of the rules starting at x that cost at most
-// budget - row[x].
-func (s *search) addRuleStarts(row []float32, set *[4]uint64) {
+// startSet is what the rule-start pass of allowed learns of a prefix for
+// its children's extend: the first intended bytes of the rules that can
+// start after it within budget, and the typed positions some rule can
+// start at (bit x: the row entry x plus the cheapest rule starting at x
+// fits the budget).
+type startSet struct {
+	first [4]uint64
+	at    uint64
+}
+
+// addRuleStarts adds to rs.first the first intended bytes of the rules
+// that can start after a prefix with the given row within the budget:
+// for each typed position x, those of the rules starting at x that cost
+// at most budget - row[x]; and it sets rs.at to the positions where one
+// of them does.
+func (s *search) addRuleStarts(row []float32, rs *startSet) {
 	budget := s.budget
+	set := &rs.first
+	rs.at = 0
 	for x := 0; x <= s.n; x++ {
 		lo, hi := int(s.startOff[x]), int(s.startOff[x+1])
 		if lo == hi {
 			continue
+		}
+		if row[x]+s.startTab[lo].cost <= budget {
+			// In the form extend tests a rule's start entry with, so
+			// that a position left out here fails that test for every
+			// rule starting there (float addition is monotone).
+			rs.at |= 1 << x
 		}
 		room := budget - row[x]
 		if s.startTab[lo].cost > room {

@@ -11,8 +11,10 @@ import (
 // start from, plus its cost, fits the budget. For typed words from
 // corpora/misspellings-dev.tsv, the built-in error model and rows drawn at
 // random, the set addRuleStarts gives must be exactly the first intended
-// bytes of the rules that pass that test (an equivalence check between two
-// ways of computing one set; no outside reference applies).
+// bytes of the rules that pass that test, and its start positions exactly
+// the typed positions from which one of them can start within budget (an
+// equivalence check between two ways of computing one set; no outside
+// reference applies).
 func TestRuleStartsMatchRules(t *testing.T) {
 	ch := qwertyChannel(t)
 	tests := []struct {
@@ -42,21 +44,29 @@ func TestRuleStartsMatchRules(t *testing.T) {
 					row[j] = rng.Float32() * (tt.budget + 2)
 				}
 				var want [4]uint64
+				var wantAt uint64
 				for i := range s.rules {
 					r := &s.rules[i]
 					v := inf
 					for ends := r.ends; ends != 0; ends &= ends - 1 {
-						v = min(v, row[bitIndex64(ends)-r.lb])
+						x := bitIndex64(ends) - r.lb
+						v = min(v, row[x])
+						if row[x]+r.cost <= tt.budget {
+							wantAt |= 1 << x
+						}
 					}
 					if v+r.cost <= tt.budget {
 						c := r.alpha[0]
 						want[c>>6] |= 1 << (c & 63)
 					}
 				}
-				var got [4]uint64
+				var got startSet
 				s.addRuleStarts(row, &got)
-				if got != want {
-					t.Fatalf("row %v: set %x, want %x", row, got, want)
+				if got.first != want {
+					t.Fatalf("row %v: set %x, want %x", row, got.first, want)
+				}
+				if got.at != wantAt {
+					t.Fatalf("row %v: start positions %b, want %b", row, got.at, wantAt)
 				}
 				if want != [4]uint64{} {
 					nonEmpty++

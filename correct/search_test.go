@@ -3,6 +3,9 @@ package correct
 import (
 	"fmt"
 	"math"
+	"math/bits"
+	"math/rand/v2"
+	"slices"
 	"sort"
 	"strings"
 	"testing"
@@ -183,6 +186,98 @@ func TestPrepareRules(t *testing.T) {
 				if k > 0 && r.cost < s.rules[k-1].cost {
 					t.Errorf("rule %d costs %v, less than the one before (%v)", k, r.cost, s.rules[k-1].cost)
 				}
+			}
+		})
+	}
+}
+
+// reversedEdges lists a lexicon's edges in falling byte order.
+type reversedEdges struct{ edgeLexicon }
+
+// AppendEdges implements EdgeLister.
+func (l reversedEdges) AppendEdges(dst []Edge, state int) []Edge {
+	n := len(dst)
+	dst = l.edgeLexicon.AppendEdges(dst, state)
+	slices.Reverse(dst[n:])
+	return dst
+}
+
+// TestPickLettersMatchesEdgeScan checks the walk's direct pick of a
+// state's letter edges (pickLetters, search.go) against reading every edge
+// and keeping those whose byte is in the set, on the letters-below table
+// of the SUBTLEX-US word list (corpora/subtlex-us-word-counts.tsv) through
+// both test lexicons: for every state and sets drawn at random, the same
+// edges in the same order; a state pickLetters declines has an edge on a
+// byte other than a–z. A table built from edges listed in falling order
+// must not claim rising order (the walk then reads every edge). A
+// cross-check of two code paths of the project, no external source.
+func TestPickLettersMatchesEdgeScan(t *testing.T) {
+	d := corpus(t)
+	tests := []struct {
+		name          string
+		lex           edgeLexicon
+		wantAscending bool
+		wantDeclined  bool // some state has an edge on a byte other than a–z
+	}{
+		{"trie", newTrieLex(t, d.subtlexLex), true, false},
+		{"flat", newFlatLex(d.subtlexLex), true, false},
+		{"flat, edges reversed", reversedEdges{newFlatLex(d.subtlexLex)}, false, false},
+		{"apostrophe, hyphen and accent", newFlatLex(sortedUnique([]string{"cafe", "café", "can't", "cant", "e-mail", "email", "émigré"})), true, true},
+	}
+	rng := rand.New(rand.NewPCG(12, 4))
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			tab := newBelowTable(tt.lex, tt.lex)
+			if tab == nil {
+				t.Fatal("no table")
+			}
+			if tab.ascending != tt.wantAscending {
+				t.Fatalf("ascending = %v, want %v", tab.ascending, tt.wantAscending)
+			}
+			if !tab.ascending {
+				return
+			}
+			picked, declined := 0, 0
+			for i := 0; i+1 < len(tab.nodes); i++ {
+				lo, hi := tab.edges(i)
+				for trial := 0; trial < 4; trial++ {
+					set := [4]uint64{rng.Uint64(), rng.Uint64(), rng.Uint64(), rng.Uint64()}
+					if trial == 0 {
+						set = [4]uint64{^uint64(0), ^uint64(0), ^uint64(0), ^uint64(0)}
+					}
+					pick, nx, ok := pickLetters(tab.nodes[i].sets.next(), &set)
+					if !ok {
+						declined++
+						letters := true
+						for k := lo; k < hi; k++ {
+							letters = letters && tab.eb[k] >= 'a' && tab.eb[k] <= 'z'
+						}
+						if letters {
+							t.Fatalf("node %d: declined, but its edges %q are all letters", i, tab.eb[lo:hi])
+						}
+						break
+					}
+					var want, got []int
+					for k := lo; k < hi; k++ {
+						if c := tab.eb[k]; set[c>>6]&(1<<(c&63)) != 0 {
+							want = append(want, k)
+						}
+					}
+					for ; pick != 0; pick &= pick - 1 {
+						b := bitIndex(pick)
+						got = append(got, lo+bits.OnesCount32(nx&(1<<b-1)))
+					}
+					if !slices.Equal(got, want) {
+						t.Fatalf("node %d (edges %q), set %x: picked edges %v, want %v", i, tab.eb[lo:hi], set, got, want)
+					}
+					picked += len(got)
+				}
+			}
+			if picked == 0 {
+				t.Errorf("no edge picked: the check is vacuous")
+			}
+			if tt.wantDeclined != (declined > 0) {
+				t.Errorf("declined %d states; want some: %v", declined, tt.wantDeclined)
 			}
 		})
 	}
