@@ -459,6 +459,7 @@ func (s *search) prepareBelow() {
 		s.subGroups(tk)
 		s.ruleMiss[k] = s.ruleMiss[k][:0]
 	}
+	s.clsPos.fill(&s.posBit)
 	// stepCls[k][b]: the cheapest first step at k that needs an edge
 	// letter of class b: a substitution, a deletion, or a rule starting
 	// with it.
@@ -524,6 +525,16 @@ func (s *search) prepareBelow() {
 			v = min(v, g[0].cost)
 		}
 		s.missLow[k] = v
+	}
+	// missSel: missLow with a zero before each entry, so that the floor
+	// sums (floorBound, parentBound) add missSel[2k + bit k of missPos]
+	// instead of testing the bit: adding zero leaves the sum as it was,
+	// and the test, whose outcome follows the child's letters, was
+	// mispredicted often enough to cost about 7 % of the median word
+	// (measured, this project; BENCHMARKS.md, round 13).
+	s.missSel = grow(s.missSel, 2*n)
+	for k := 0; k < n; k++ {
+		s.missSel[2*k], s.missSel[2*k+1] = 0, s.missLow[k]
 	}
 	s.hlow = grow(s.hlow, n+1)
 	s.hsCache = grow(s.hsCache, (n+1)<<hsCacheBits)
@@ -596,13 +607,7 @@ func (s *search) childBound(row, prev []float32, m float32, c byte, parts []part
 		}
 		return lb
 	}
-	var missPos, stepPos uint64
-	for miss := s.tbits &^ below; miss != 0; miss &= miss - 1 {
-		missPos |= s.posBit[bitIndex(miss)]
-	}
-	for ; notNext != 0; notNext &= notNext - 1 {
-		stepPos |= s.posBit[bitIndex(notNext)]
-	}
+	missPos, stepPos := s.clsPos.of(s.tbits&^below), s.clsPos.of(notNext)
 	stepPos &^= missPos
 	var cbit uint32
 	if s.ch.delDbl < inf {
@@ -667,10 +672,9 @@ func (s *search) floorBound(row, prev []float32, c byte, parts []partial, missPo
 	fl := s.hlow[:n+1]
 	h := float32(0)
 	fl[n] = 0
+	sel := s.missSel[:2*n]
 	for j := n - 1; j >= 0; j-- {
-		if missPos&(1<<j) != 0 {
-			h += s.missLow[j]
-		}
+		h += sel[2*j|int(missPos>>j&1)] // missLow[j], or 0 off missPos
 		fl[j] = h
 	}
 	lb := row[n]

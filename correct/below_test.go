@@ -1,6 +1,8 @@
 package correct
 
 import (
+	"math"
+	"math/rand/v2"
 	"sort"
 	"strings"
 	"testing"
@@ -117,4 +119,47 @@ func tableStep(tab *belowTable, node int, c byte) (int, uint32, bool) {
 		}
 	}
 	return 0, 0, false
+}
+
+// TestFloorSumsMatchBitTest checks the floor sums of parentBound and
+// floorBound, which add missSel[2k + bit k of missPos] at every typed
+// position k, against their definition, missLow[k] added only where bit k
+// of missPos is set: bit for bit (IEEE 754 addition of +0 leaves a sum
+// unchanged), at every suffix, for every typed word of
+// corpora/misspellings-dev.tsv under the built-in error model and sets
+// of positions drawn at random, with the empty and the full set.
+func TestFloorSumsMatchBitTest(t *testing.T) {
+	em, err := BuiltinErrorModel()
+	if err != nil {
+		t.Fatalf("BuiltinErrorModel: %v", err)
+	}
+	kb, err := LayoutQWERTY.Keyboard()
+	if err != nil {
+		t.Fatalf("Keyboard: %v", err)
+	}
+	ch := newChannel(kb, em)
+	var s search
+	s.order = newRuleOrder(ch)
+	rng := rand.New(rand.NewPCG(13, 7))
+	for _, p := range devPairs(t) {
+		w := strings.ToLower(p.Typed)
+		if len(w) > maxTyped {
+			continue
+		}
+		s.reset(ch, nil, w, inf, len(w)+maxExtra)
+		n := s.n
+		all := uint64(1)<<n - 1
+		for _, missPos := range []uint64{0, all, rng.Uint64() & all, rng.Uint64() & all, rng.Uint64() & all} {
+			var got, want float32
+			for k := n - 1; k >= 0; k-- {
+				got += s.missSel[2*k|int(missPos>>k&1)]
+				if missPos&(1<<k) != 0 {
+					want += s.missLow[k]
+				}
+				if math.Float32bits(got) != math.Float32bits(want) {
+					t.Fatalf("%q, positions %#x: floor sum from %d = %v, want %v", w, missPos, k, got, want)
+				}
+			}
+		}
+	}
 }

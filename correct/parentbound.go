@@ -29,7 +29,8 @@ package correct
 // matches parts, where below is the set (belowBit) of c and the bytes below
 // the child's state. As floorBound, it may return the first term it finds
 // within budget instead of the least; a value above budget means every
-// term is. Cost: O(typed length) with floor prices (missLow); the exact
+// term is. Cost: O(typed length) with floor prices (missLow, summed
+// without a branch per byte through missSel); the exact
 // prices (leftOver, cached by byte set) only when the floor prices leave a
 // term within budget.
 func (s *search) parentBound(row, prev []float32, c, pc byte, parts []partial, below uint32) float32 {
@@ -37,10 +38,7 @@ func (s *search) parentBound(row, prev []float32, c, pc byte, parts []partial, b
 	if miss == 0 {
 		return 0 // nothing to charge: the bound cannot prune
 	}
-	var missPos uint64
-	for ; miss != 0; miss &= miss - 1 {
-		missPos |= s.posBit[bitIndex(miss)]
-	}
+	missPos := s.clsPos.of(miss)
 	// Floor prices (missLow) first, in one pass from the end that stops
 	// at the first term within budget; the exact prices (missCost) only
 	// then.
@@ -52,10 +50,9 @@ func (s *search) parentBound(row, prev []float32, c, pc byte, parts []partial, b
 	if lb <= budget {
 		return lb
 	}
+	sel := s.missSel[:2*n]
 	for j := n - 1; j >= 0; j-- {
-		if missPos&(1<<j) != 0 {
-			h += s.missLow[j]
-		}
+		h += sel[2*j|int(missPos>>j&1)] // missLow[j], or 0 off missPos
 		fl[j] = h
 		v := row[j] + h
 		if v <= budget {

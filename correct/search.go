@@ -132,12 +132,14 @@ type search struct {
 	delG       []hopt                   // deletions by class of the left-out letter
 	tbits      uint32                   // byte classes (belowBit) of the typed bytes
 	posBit     [29]uint64               // posBit[i]: typed positions of byte class i
+	clsPos     classPos                 // posBit by sets of classes (classpos.go)
 	ruleMiss   [][]hopt                 // per typed byte, see prepareBelow
 	stepCls    [][29]float32            // per typed byte, see prepareBelow
 	hsCache    []float32                // leftOver answers, n+1 per slot
 	hsKeys     [1 << hsCacheBits]uint32 // below set + 1 of each hsCache slot
 	hzero      []float32                // n+1 zeros
 	missLow    []float32                // per typed byte, see prepareBelow
+	missSel    []float32                // per typed byte, 0 and missLow (see prepareBelow)
 	hlow       []float32                // floorBound's scratch, n+1
 	pnext      *[4]uint64               // if not nil: the bytes the parent's partials wait for
 	childState int                      // node of the child prefix extend works for (see setChild)
