@@ -26,12 +26,17 @@
 //     costs 2.26 nats more: writers rarely get the first letter wrong
 //     (see leadCost in channel.go).
 //
-// Two whole-word features stand beside the letter edits, for typed words
-// the lexicon does not know. Word families: a stem typed with another
+// Three whole-word features stand beside the letter edits. Word families,
+// for typed words the lexicon does not know: a stem typed with another
 // ending ("examinated" for examined, "oftenly" for often) is usually
 // beyond the search budget, so the lexicon words sharing a long prefix
 // with the typed word are offered at a learned per-word cost plus a cost
-// per edit between the endings (family.go). Sound: candidates that sound
+// per edit between the endings (family.go). Over-regularised verbs, for
+// any typed word: a verb's base with the regular past ending ("teached",
+// "payed") gets the verb's irregular forms (taught, paid) from a table of
+// common English irregular verbs, at a per-word cost learned from the
+// training pairs like the family cost (irregular.go). Sound, for typed
+// words the lexicon does not know: candidates that sound
 // like the typed word (the same code under rules after Philips's 1990
 // Metaphone, phonetic.go) gain a small bonus, a pronunciation feature in
 // the manner of Toutanova and Moore (2002) (rank.go).

@@ -25,8 +25,8 @@ type Rule struct {
 }
 
 // Backoff holds the costs (nats) of single-letter edits that no rule covers,
-// by class, and of one whole-word error (Affix). They are estimated from
-// the same training pairs as the rules.
+// by class, and of two whole-word errors (Affix, Irregular). They are
+// estimated from the same training pairs as the rules.
 type Backoff struct {
 	// SubVowel is the cost of one vowel typed for another.
 	SubVowel float64
@@ -47,6 +47,10 @@ type Backoff struct {
 	// word; the corrector adds a cost per edit between the two endings
 	// (see addFamily in family.go).
 	Affix float64
+	// Irregular is the cost of giving a verb with an irregular past the
+	// regular ending ("teached" for taught, "payed" for paid), per word
+	// (see addIrregular in irregular.go).
+	Irregular float64
 }
 
 // ErrorModel is the spelling-error half of the channel: rules α→β with
@@ -95,10 +99,10 @@ const maxRuleLen = 8
 const maxRules = 1 << 16
 
 // backoffNames lists the backoff lines of the table format, in order.
-var backoffNames = [...]string{"sub-vowel", "sub", "del", "del-double", "ins", "ins-double", "trans", "affix"}
+var backoffNames = [...]string{"sub-vowel", "sub", "del", "del-double", "ins", "ins-double", "trans", "affix", "irregular"}
 
 func (b *Backoff) field(i int) *float64 {
-	return [...]*float64{&b.SubVowel, &b.Sub, &b.Del, &b.DelDouble, &b.Ins, &b.InsDouble, &b.Trans, &b.Affix}[i]
+	return [...]*float64{&b.SubVowel, &b.Sub, &b.Del, &b.DelDouble, &b.Ins, &b.InsDouble, &b.Trans, &b.Affix, &b.Irregular}[i]
 }
 
 // DefaultAffixCost is Backoff.Affix for a table without an "@affix" line
@@ -109,10 +113,21 @@ const DefaultAffixCost = 3.2
 // affixBit is the "@affix" line's bit in ParseErrorModel's seen set.
 const affixBit = 1 << 7
 
+// DefaultIrregularCost is Backoff.Irregular for a table without an
+// "@irregular" line (tables written before it existed), and the cost a
+// Corrector built without Options.ErrorModel uses: the value in the
+// built-in table (errmodel.tsv, trained on the development misspellings
+// list).
+const DefaultIrregularCost = 5.734
+
+// irregularBit is the "@irregular" line's bit in ParseErrorModel's seen
+// set.
+const irregularBit = 1 << 8
+
 // ParseErrorModel reads an error-model table: UTF-8 text, '#' comments,
-// "@NAME<TAB>COST" lines for the eight backoff costs (sub-vowel, sub, del,
-// del-double, ins, ins-double, trans, all required, and affix, which
-// defaults to DefaultAffixCost) and
+// "@NAME<TAB>COST" lines for the nine backoff costs (sub-vowel, sub, del,
+// del-double, ins, ins-double, trans, all required, then affix and
+// irregular, which default to DefaultAffixCost and DefaultIrregularCost) and
 // "INTENDED<TAB>TYPED<TAB>COST" rule lines, where an empty side is written "∅".
 // It returns an error wrapping ErrErrorModel on malformed input.
 func ParseErrorModel(r io.Reader) (*ErrorModel, error) {
@@ -189,6 +204,10 @@ func (p *tableParser) finish() (*ErrorModel, error) {
 	if p.seen&affixBit == 0 {
 		p.m.backoff.Affix = DefaultAffixCost // tables written before the affix line
 		p.seen |= affixBit
+	}
+	if p.seen&irregularBit == 0 {
+		p.m.backoff.Irregular = DefaultIrregularCost // tables written before the irregular line
+		p.seen |= irregularBit
 	}
 	if p.seen != 1<<len(backoffNames)-1 {
 		return nil, fmt.Errorf("%w: missing backoff lines", ErrErrorModel)

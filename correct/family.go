@@ -52,7 +52,16 @@ type famFrame struct {
 // the walk then took a third of the time, measured, this project), and a
 // member's text is the stem and the bytes walked after it. It returns the
 // number of lexicon states visited, at most familyMaxStates.
+//
+// First, for any typed word, known or not, it offers the irregular forms
+// of a verb lower over-regularises (addIrregular in irregular.go): they
+// are family members no shared stem finds ("teached" for taught). Both
+// features are off when the channel's affix cost is inf (a unit-cost
+// channel).
 func (c *Corrector) addFamily(rk *ranker, lower string) int {
+	if c.ch.affix < inf {
+		c.addIrregular(rk, lower, c.irregularCost())
+	}
 	if rk.skipOK || c.ch.affix >= inf || len(lower) <= familyMinStem || len(lower) > maxTyped {
 		return 0
 	}

@@ -131,12 +131,15 @@ func (s segment) match() bool { return s.a == s.b }
 // used. Rules that are no cheaper than a shorter rule they contain are
 // dropped. The affix cost is -ln((n+1)/(N+2)) for n pairs of N whose
 // typed word is the intended word's stem with another ending (see
-// isAffixError). Training is deterministic. Cost: O(total bytes × Window²).
+// isAffixError), and the irregular cost likewise for pairs whose typed
+// word is a verb's base with the regular past ending and whose intended
+// word is one of its irregular forms (isIrregularError). Training is
+// deterministic. Cost: O(total bytes × Window²).
 func TrainErrorModel(pairs []Pair, opts TrainOptions) *ErrorModel {
 	opts.defaults()
 	ruleCount := map[[2]string]int{}
 	var words []string
-	var nSubV, nSub, nDel, nDelDbl, nIns, nInsDbl, nTrans, nAffix, nPairs float64
+	var nSubV, nSub, nDel, nDelDbl, nIns, nInsDbl, nTrans, nAffix, nIrregular, nPairs float64
 	for _, p := range pairs {
 		typed := strings.ToLower(p.Typed)
 		best, bestD := "", math.MaxInt
@@ -155,6 +158,9 @@ func TrainErrorModel(pairs []Pair, opts TrainOptions) *ErrorModel {
 		nPairs++
 		if isAffixError(typed, best) {
 			nAffix++
+		}
+		if isIrregularError(typed, best) {
+			nIrregular++
 		}
 		words = append(words, best)
 		segs := align(best, typed)
@@ -240,6 +246,7 @@ func TrainErrorModel(pairs []Pair, opts TrainOptions) *ErrorModel {
 		InsDouble: lp(nInsDbl, nChars),
 		Trans:     lp(nTrans, nChars),
 		Affix:     lp(nAffix, nPairs),
+		Irregular: lp(nIrregular, nPairs),
 	}
 	if opts.Discount == 0 {
 		opts.Discount = discount(ruleCount)
