@@ -431,7 +431,8 @@ func (s *search) subGroups(t byte) []hopt {
 // side starts there or is empty). A rule of cost c with a typed side of l
 // bytes is charged c/l per byte, so that the shares of the bytes one rule
 // covers never add up to more than the rule. Cost: O(typed length × (29 +
-// rules)); substitution and deletion groups are cached per channel.
+// rules)); substitution and deletion groups, and the first-step prices
+// alike at every typed position (stepBase), are cached per channel.
 func (s *search) prepareBelow() {
 	ch, n := s.ch, s.n
 	if s.subGCh != ch {
@@ -446,6 +447,22 @@ func (s *search) prepareBelow() {
 			byClass[i] = min(byClass[i], v, ch.slipDel)
 		}
 		s.delG = groupByCost(s.delG, &byClass)
+		// stepBase: the first steps that cost the same at every typed
+		// position, per class of the edge letter they need: a deletion,
+		// or a rule with an empty typed side starting with it.
+		for i := range s.stepBase {
+			s.stepBase[i] = inf
+		}
+		for _, g := range s.delG {
+			for a := g.any; a != 0; a &= a - 1 {
+				b := bitIndex(a)
+				s.stepBase[b] = min(s.stepBase[b], g.cost)
+			}
+		}
+		for _, r := range ch.byBeta[""] {
+			b := bitIndex(belowBit(ch.rules[r].alpha[0]))
+			s.stepBase[b] = min(s.stepBase[b], ch.rules[r].cost)
+		}
 	}
 	s.tbits = 0
 	clear(s.posBit[:])
@@ -464,19 +481,11 @@ func (s *search) prepareBelow() {
 	// letter of class b: a substitution, a deletion, or a rule starting
 	// with it.
 	s.stepCls = s.stepCls[:0]
-	var empty [29]float32
-	for i := range empty {
-		empty[i] = inf
-	}
+	// Each position starts from stepBase (min picks one of its operands,
+	// so taking those terms first leaves every entry as it was).
 	for k := 0; k < n; k++ {
-		cls := empty
+		cls := s.stepBase
 		for _, g := range s.subG[s.t[k]] {
-			for a := g.any; a != 0; a &= a - 1 {
-				b := bitIndex(a)
-				cls[b] = min(cls[b], g.cost)
-			}
-		}
-		for _, g := range s.delG {
 			for a := g.any; a != 0; a &= a - 1 {
 				b := bitIndex(a)
 				cls[b] = min(cls[b], g.cost)
@@ -489,10 +498,7 @@ func (s *search) prepareBelow() {
 		o := hopt{cost: r.cost, needNext: belowBit(r.alpha[0]), needBelow: r.alphaBits}
 		b := bitIndex(o.needNext)
 		if r.lb == 0 {
-			for k := 0; k < n; k++ {
-				s.stepCls[k][b] = min(s.stepCls[k][b], r.cost)
-			}
-			continue
+			continue // in stepBase
 		}
 		o.cost = r.cost / float32(r.lb)
 		// ruleMiss is read only for a typed byte that is not below the

@@ -163,3 +163,70 @@ func TestFloorSumsMatchBitTest(t *testing.T) {
 		}
 	}
 }
+
+// TestStepClassesMatchChannel checks the first-step prices prepareBelow
+// fills per typed position and letter class (stepCls, read by stepCost)
+// against the channel's costs read directly: for typed position k and
+// class b, the least of a substitution of t[k] by a byte of class b, a
+// deletion of a byte of class b (spelling or keyboard slip), a rule with
+// an empty typed side whose intended side starts with class b, and the
+// share (cost over typed length) of a rule starting with class b whose
+// typed side starts at k; bit for bit. Words: every typed word of
+// corpora/misspellings-dev.tsv, twice per channel, so that the tables
+// cached per channel are read as well as built (an equivalence check between two
+// ways of computing one table; no outside reference applies).
+func TestStepClassesMatchChannel(t *testing.T) {
+	base := qwertyChannel(t)
+	// With the built-in model a multi-letter rule with an empty typed
+	// side is never cheaper than a deletion of its first letter; a copy
+	// with dear deletions makes those rules count too.
+	dear := *base
+	for c := range dear.del {
+		dear.del[c] = 30
+	}
+	dear.slipDel = 30
+	var s search
+	s.below = &belowTable{}
+	checked, byRule := 0, 0
+	for round, ch := range []*channel{base, base, &dear, &dear} {
+		for _, p := range devPairs(t) {
+			w := strings.ToLower(p.Typed)
+			if len(w) > maxTyped || w == "" {
+				continue
+			}
+			s.reset(ch, nil, w, inf, len(w)+maxExtra)
+			for k := 0; k < s.n; k++ {
+				var want [29]float32
+				for i := range want {
+					want[i] = inf
+				}
+				for c := 0; c < 256; c++ {
+					b := bitIndex(belowBit(byte(c)))
+					if c != int(w[k]) {
+						want[b] = min(want[b], ch.sub[w[k]][c])
+					}
+					want[b] = min(want[b], ch.del[c], ch.slipDel)
+				}
+				for i := range s.rules {
+					r := &s.rules[i]
+					b := bitIndex(belowBit(r.alpha[0]))
+					if r.lb == 0 {
+						if r.cost < want[b] && round >= 2 {
+							byRule++
+						}
+						want[b] = min(want[b], r.cost)
+					} else if r.ends&(1<<(k+r.lb)) != 0 {
+						want[b] = min(want[b], r.cost/float32(r.lb))
+					}
+				}
+				if s.stepCls[k] != want {
+					t.Fatalf("%q: stepCls[%d] = %v, want %v", w, k, s.stepCls[k], want)
+				}
+				checked++
+			}
+		}
+	}
+	if checked == 0 || byRule == 0 {
+		t.Fatalf("%d typed positions checked, %d prices set by a rule with an empty typed side: the check is too weak", checked, byRule)
+	}
+}

@@ -74,6 +74,7 @@ type channel struct {
 	slipRep  float32           // keyboard-slip part of insDbl
 	rules    []chRule
 	byBeta   map[string][]int32
+	byByte   [256][]int32   // byBeta's lists of the one-byte typed sides, by byte
 	betaLens []int          // distinct β lengths, ascending
 	cheapSub [256][]costOpt // per typed byte: intended bytes by sub cost
 	cheapDel []costOpt      // intended bytes by deletion cost
@@ -179,7 +180,17 @@ func newChannel(kb *Keyboard, em *ErrorModel) *channel {
 		add(p[0], p[1], accentCost)
 		add(p[1], p[0], accentCost+1)
 	}
+	// The rules by cost, rules of equal cost in the order added, so that
+	// a search lists the rules of a typed word by cost by listing a set
+	// of rule indices (search.gatherRules), reading ch.rules at rising
+	// addresses and without an index from rank to rule.
+	slices.SortStableFunc(ch.rules, func(a, b chRule) int { return cmp.Compare(a.cost, b.cost) })
 	ch.byBeta = groupByBeta(ch.rules)
+	for b, l := range ch.byBeta {
+		if len(b) == 1 {
+			ch.byByte[b[0]] = l
+		}
+	}
 	for b := range ch.byBeta {
 		if !slices.Contains(ch.betaLens, len(b)) {
 			ch.betaLens = append(ch.betaLens, len(b))

@@ -1,7 +1,9 @@
 package correct
 
 import (
+	"cmp"
 	"math/rand/v2"
+	"slices"
 	"testing"
 	"time"
 
@@ -99,4 +101,72 @@ func qwertyChannel(t *testing.T) *channel {
 		t.Fatal(err)
 	}
 	return newChannel(kb, em)
+}
+
+// TestChannelRulesByCost checks the order newChannel stores its
+// multi-letter rules in, which the search's setup relies on to list a
+// typed word's rules by cost (search.gatherRules): the error model's rules
+// and then the accent pairs, in the order they are added, with the ones
+// the channel keeps as single-letter costs left out, sorted stably by
+// cost (rules of equal cost stay in the order added). The expected list
+// is built here directly from the error model (an equivalence check
+// between two ways of computing one order; no outside reference applies).
+func TestChannelRulesByCost(t *testing.T) {
+	kb, err := LayoutQWERTY.Keyboard()
+	if err != nil {
+		t.Fatalf("Keyboard: %v", err)
+	}
+	builtin, err := BuiltinErrorModel()
+	if err != nil {
+		t.Fatalf("BuiltinErrorModel: %v", err)
+	}
+	half, _ := SplitPairs(devPairs(t), 0, 2)
+	for _, m := range []struct {
+		name string
+		em   *ErrorModel
+	}{{"builtin", builtin}, {"trained-half", TrainErrorModel(half, TrainOptions{})}} {
+		t.Run(m.name, func(t *testing.T) {
+			type rule struct {
+				alpha, beta string
+				cost        float32
+			}
+			var want []rule
+			add := func(a, b string, cost float32) {
+				if len(a) == 1 && (len(b) == 1 || b == "") {
+					return // a substitution or deletion cost, not a rule
+				}
+				want = append(want, rule{a, b, cost})
+			}
+			for _, r := range m.em.rules {
+				add(r.Intended, r.Typed, float32(r.Cost))
+			}
+			for _, p := range accentPairs {
+				add(p[0], p[1], accentCost)
+				add(p[1], p[0], accentCost+1)
+			}
+			slices.SortStableFunc(want, func(a, b rule) int { return cmp.Compare(a.cost, b.cost) })
+			ch := newChannel(kb, m.em)
+			if len(ch.rules) != len(want) {
+				t.Fatalf("newChannel keeps %d rules, want %d", len(ch.rules), len(want))
+			}
+			if len(want) < 100 {
+				t.Fatalf("only %d rules: the check would test little", len(want))
+			}
+			for i, r := range ch.rules {
+				if got := (rule{r.alpha, r.beta, r.cost}); got != want[i] {
+					t.Fatalf("rule %d = %+v, want %+v", i, got, want[i])
+				}
+			}
+			for b, l := range ch.byBeta {
+				if len(b) == 1 && !slices.Equal(ch.byByte[b[0]], l) {
+					t.Errorf("byByte[%q] = %v, want byBeta's %v", b, ch.byByte[b[0]], l)
+				}
+			}
+			for c, l := range ch.byByte {
+				if l != nil && ch.byBeta[string([]byte{byte(c)})] == nil {
+					t.Errorf("byByte[%d] lists rules byBeta does not", c)
+				}
+			}
+		})
+	}
 }

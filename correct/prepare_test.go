@@ -49,6 +49,27 @@ func TestPrepareRulesMatchScan(t *testing.T) {
 						t.Fatalf("%q: rule %d = %+v, want %+v", w, i, r, want[i])
 					}
 				}
+				// The heads by first intended byte: each rule once, under
+				// its first byte, by cost, its starts the positions its
+				// typed side starts at.
+				heads := 0
+				for c := range s.first {
+					for k, h := range s.first[c] {
+						r := &s.rules[h.rule]
+						var starts uint64
+						for ends := r.ends; ends != 0; ends &= ends - 1 {
+							starts |= 1 << (bitIndex64(ends) - r.lb)
+						}
+						if r.alpha[0] != byte(c) || h.cost != r.cost || h.starts != starts ||
+							k > 0 && s.first[c][k-1].rule >= h.rule {
+							t.Fatalf("%q: head %d of byte %d = %+v, rule %+v (starts %b)", w, k, c, h, *r, starts)
+						}
+						heads++
+					}
+				}
+				if heads != len(s.rules) {
+					t.Fatalf("%q: %d rule heads, want %d", w, heads, len(s.rules))
+				}
 			}
 		})
 	}

@@ -22,42 +22,74 @@ type startStep struct {
 // prepareStarts fills s.startTab and s.startOff from s.rules (sorted by
 // cost): s.startTab[s.startOff[x]:s.startOff[x+1]] are the steps of typed
 // position x, by rising cost, one step per cost at which the set grows.
-// Cost: O(rules × their end positions) per typed word.
+// A step's set holds each first byte whose cheapest rule starting at x
+// costs at most the step's cost, so only the first start of each first
+// byte and position in cost order matters: a rule gives its first byte
+// the positions no earlier rule with that byte starts at (one AND per
+// rule), and those starts, put in order of position by a stable counting
+// sort (so that each position's starts stay in cost order) and merged by
+// cost, are the steps. Cost: O(rules + starts kept + typed length) per
+// typed word.
 func (s *search) prepareStarts() {
 	n := s.n
-	for len(s.startBy) <= n {
-		s.startBy = append(s.startBy, nil)
-	}
-	var seen [maxTyped + 1][4]uint64
-	for x := 0; x <= n; x++ {
-		s.startBy[x] = s.startBy[x][:0]
-	}
+	ev := s.startEv[:0]
+	seen := &s.startSeen
 	for i := range s.rules {
 		r := &s.rules[i]
 		c := r.alpha[0]
-		bit := uint64(1) << (c & 63)
-		for ends := r.ends; ends != 0; ends &= ends - 1 {
-			x := bitIndex64(ends) - r.lb
-			m := &seen[x]
-			if m[c>>6]&bit != 0 {
-				continue
-			}
-			m[c>>6] |= bit
-			st := s.startBy[x]
-			if k := len(st); k > 0 && st[k-1].cost == r.cost {
-				st[k-1].mask = *m
-			} else {
-				s.startBy[x] = append(st, startStep{cost: r.cost, mask: *m})
-			}
+		for nx := r.ends >> r.lb &^ seen[c]; nx != 0; nx &= nx - 1 {
+			ev = append(ev, startEvent{cost: r.cost, x: uint8(bitIndex64(nx)), c: c})
 		}
+		seen[c] |= r.ends >> r.lb
+	}
+	for _, c := range s.usedFirst {
+		seen[c] = 0
+	}
+	s.startEv = ev
+	// Count the starts at each position, then place them position by
+	// position, keeping their order.
+	var at [maxTyped + 2]int32
+	for i := range ev {
+		at[ev[i].x+1]++
+	}
+	for x := 1; x <= n+1; x++ {
+		at[x] += at[x-1]
+	}
+	s.startPos = grow(s.startPos, len(ev))
+	sorted := s.startPos
+	for i := range ev {
+		x := ev[i].x
+		sorted[at[x]] = ev[i]
+		at[x]++
 	}
 	s.startOff = s.startOff[:0]
 	s.startTab = s.startTab[:0]
+	lo := 0
 	for x := 0; x <= n; x++ {
-		s.startOff = append(s.startOff, int32(len(s.startTab)))
-		s.startTab = append(s.startTab, s.startBy[x]...)
+		first := len(s.startTab)
+		s.startOff = append(s.startOff, int32(first))
+		hi := int(at[x])
+		var m [4]uint64
+		for i := lo; i < hi; i++ {
+			c := sorted[i].c
+			m[c>>6] |= 1 << (c & 63)
+			if k := len(s.startTab); k > first && s.startTab[k-1].cost == sorted[i].cost {
+				s.startTab[k-1].mask = m
+			} else {
+				s.startTab = append(s.startTab, startStep{cost: sorted[i].cost, mask: m})
+			}
+		}
+		lo = hi
 	}
 	s.startOff = append(s.startOff, int32(len(s.startTab)))
+}
+
+// startEvent is the cheapest start of the rules of first intended byte c
+// at typed position x, for prepareStarts.
+type startEvent struct {
+	cost float32
+	x    uint8
+	c    byte
 }
 
 // startSet is what the rule-start pass of allowed learns of a prefix for

@@ -2,6 +2,8 @@ package correct
 
 import (
 	"math/rand/v2"
+	"slices"
+	"strings"
 	"testing"
 )
 
@@ -76,5 +78,64 @@ func TestRuleStartsMatchRules(t *testing.T) {
 				t.Errorf("every drawn row gave an empty set; the check is vacuous")
 			}
 		})
+	}
+}
+
+// TestPrepareStartsMatchRuleScan checks the per-position steps
+// prepareStarts builds (from the cheapest start of each first byte, put
+// in order of position by a counting sort) against steps built rule by
+// rule and position by position: for each rule by cost and each typed
+// position its typed side starts at, a first byte new at that position
+// adds a step at the rule's cost, or joins the last step when that has
+// the same cost. Words: every typed word of corpora/misspellings-dev.tsv
+// under the built-in error model (an equivalence check between two ways
+// of computing one table; no outside reference applies).
+func TestPrepareStartsMatchRuleScan(t *testing.T) {
+	ch := qwertyChannel(t)
+	var s search
+	steps := 0
+	for _, p := range devPairs(t) {
+		w := strings.ToLower(p.Typed)
+		if len(w) > maxTyped {
+			continue
+		}
+		s.reset(ch, nil, w, inf, len(w)+maxExtra)
+		want := make([][]startStep, s.n+1)
+		var seen [maxTyped + 1][4]uint64
+		for i := range s.rules {
+			r := &s.rules[i]
+			c := r.alpha[0]
+			for ends := r.ends; ends != 0; ends &= ends - 1 {
+				x := bitIndex64(ends) - r.lb
+				m := &seen[x]
+				if m[c>>6]&(1<<(c&63)) != 0 {
+					continue
+				}
+				m[c>>6] |= 1 << (c & 63)
+				if k := len(want[x]); k > 0 && want[x][k-1].cost == r.cost {
+					want[x][k-1].mask = *m
+				} else {
+					want[x] = append(want[x], startStep{cost: r.cost, mask: *m})
+				}
+			}
+		}
+		if len(s.startOff) != s.n+2 {
+			t.Fatalf("%q: %d start offsets, want %d", w, len(s.startOff), s.n+2)
+		}
+		for x := 0; x <= s.n; x++ {
+			got := s.startTab[s.startOff[x]:s.startOff[x+1]]
+			if !slices.Equal(got, want[x]) {
+				t.Fatalf("%q: steps at %d = %v, want %v", w, x, got, want[x])
+			}
+			steps += len(got)
+		}
+		for c, m := range s.startSeen {
+			if m != 0 {
+				t.Fatalf("%q: prepareStarts left scratch for byte %d set", w, c)
+			}
+		}
+	}
+	if steps == 0 {
+		t.Fatal("no steps at all: the check is vacuous")
 	}
 }

@@ -1,10 +1,6 @@
 package correct
 
-import (
-	"cmp"
-	"math/bits"
-	"slices"
-)
+import "math/bits"
 
 // Lexicon is what the corrector needs from the word list: a finite-state
 // transducer over lower-case UTF-8 words whose outputs, summed along a
@@ -94,12 +90,14 @@ type search struct {
 	pos       [256]uint64     // bit j: t[j] is the byte
 	rules     []appRule       // sorted by cost
 	order     *ruleOrder      // the channel's rules by cost (built if nil or for another channel)
-	ruleSet   []uint64        // while collecting rules: bit r for rank r (else zero)
-	ruleEnds  []uint64        // while collecting rules: their ends, by rank
+	ruleSet   []uint64        // while collecting rules: bit r for ch.rules[r] (else zero)
+	ruleEnds  []uint64        // while collecting rules: their ends, by index in ch.rules
 	ruleMask  [][4]uint64     // ruleMask[i]: first intended bytes of rules[:i+1] (only with below nil)
 	startOff  []int32         // startTab[startOff[x]:startOff[x+1]]: typed position x (rulestart.go)
 	startTab  []startStep     // first bytes of the rules starting at each typed position, by cost
-	startBy   [][]startStep   // prepareStarts' per-position lists
+	startEv   []startEvent    // prepareStarts' first starts of each first byte, by cost
+	startPos  []startEvent    // the same by typed position
+	startSeen [256]uint64     // prepareStarts' scratch, zero between calls
 	first     [256][]ruleHead // rules by first intended byte, by cost
 	usedFirst []byte
 	act       []partial // partial rule matches, stacked by depth
@@ -130,6 +128,7 @@ type search struct {
 	subGCh     *channel                 // channel subG and delG were made for
 	subG       [256][]hopt              // substitution groups by typed byte (subGroups)
 	delG       []hopt                   // deletions by class of the left-out letter
+	stepBase   [29]float32              // the part of stepCls alike at every typed position (prepareBelow)
 	tbits      uint32                   // byte classes (belowBit) of the typed bytes
 	posBit     [29]uint64               // posBit[i]: typed positions of byte class i
 	clsPos     classPos                 // posBit by sets of classes (classpos.go)
@@ -271,67 +270,85 @@ func (s *search) prepare(ch *channel) {
 	if ch.lead > 0 && n > 0 {
 		s.leadFirst()
 	}
-	// Rules whose typed side occurs in the word, with their end positions.
 	for _, c := range s.usedFirst {
 		s.first[c] = s.first[c][:0]
 	}
 	s.usedFirst = s.usedFirst[:0]
-	// Rules whose typed side occurs in the word, with their end positions,
-	// collected as a set of cost ranks so that listing the set lists them
-	// by cost (rules of equal cost by index). Cost: one map look-up per
-	// typed substring of a rule's length, plus the rules found. (Adding
-	// them one by one to a list, searched for duplicates, and
-	// insertion-sorting it cost about 60 µs per word: rules with short or
-	// empty typed sides occur in most words; measured, this project.)
+	s.ruleMask = s.ruleMask[:0]
 	if s.order == nil || s.order.ch != ch {
 		s.order = newRuleOrder(ch)
 	}
+	s.gatherRules(ch)
+	s.prepareStarts()
+	s.prepareBelow()
+}
+
+// gatherRules lists in s.rules the channel's rules whose typed side
+// occurs in the typed word, with their end positions, by cost (rules of
+// equal cost by index: ch.rules is stored in that order, newChannel), and
+// fills the tables of their first intended bytes (s.first, s.ruleMask).
+// The rules are found as a set of rule indices, one map look-up per typed
+// substring of a typed-side length, so that listing the set lists them in
+// the stored order and reads ch.rules at rising addresses. (Adding them
+// one by one to a list, searched for duplicates, and insertion-sorting
+// it cost about 60 µs per word: rules with short or empty typed sides
+// occur in most words; measured, this project.) Cost: the look-ups, plus
+// one bit-set word per 64 rules of the channel, plus the rules found.
+func (s *search) gatherRules(ch *channel) {
 	if len(s.ruleEnds) != len(ch.rules) {
 		s.ruleSet = make([]uint64, (len(ch.rules)+63)/64)
 		s.ruleEnds = make([]uint64, len(ch.rules))
 	}
-	rank, byRank := s.order.rank, s.order.byRank
+	// Rules with an empty typed side end at every typed position; those
+	// of one typed byte are listed by byte (channel.byByte); longer typed
+	// sides are looked up by string.
+	for _, r := range ch.byBeta[""] {
+		s.ruleSet[r>>6] |= 1 << (r & 63)
+		s.ruleEnds[r] |= 2<<s.n - 1
+	}
+	for e := 1; e <= s.n; e++ {
+		for _, r := range ch.byByte[s.t[e-1]] {
+			s.ruleSet[r>>6] |= 1 << (r & 63)
+			s.ruleEnds[r] |= 1 << e
+		}
+	}
 	for _, lb := range ch.betaLens {
+		if lb < 2 {
+			continue
+		}
 		for e := lb; e <= s.n; e++ {
-			for _, ri := range ch.byBeta[string(s.t[e-lb:e])] {
-				r := rank[ri]
+			for _, r := range ch.byBeta[string(s.t[e-lb:e])] {
 				s.ruleSet[r>>6] |= 1 << (r & 63)
 				s.ruleEnds[r] |= 1 << e
 			}
 		}
 	}
 	s.rules = s.rules[:0]
+	var rm [4]uint64
 	for wi, word := range s.ruleSet {
 		for word != 0 {
 			r := wi<<6 | bits.TrailingZeros64(word)
 			word &= word - 1
-			ri := byRank[r]
-			cr := &ch.rules[ri]
-			s.rules = append(s.rules, appRule{src: ri, alpha: cr.alpha, la: len(cr.alpha), lb: len(cr.beta), cost: cr.cost, ends: s.ruleEnds[r],
-				alphaBits: cr.alphaBits, next1: cr.next1, rest2: cr.rest2})
+			cr := &ch.rules[r]
+			ends := s.ruleEnds[r]
 			s.ruleEnds[r] = 0
+			lb := len(cr.beta)
+			c := cr.alpha[0]
+			if s.below == nil { // allowed reads ruleMask only without the table
+				rm[c>>6] |= 1 << (c & 63)
+				s.ruleMask = append(s.ruleMask, rm)
+			}
+			if len(s.first[c]) == 0 {
+				s.usedFirst = append(s.usedFirst, c)
+			}
+			// Bit x of starts: the typed side starts at x, ending at
+			// x+lb.
+			s.first[c] = append(s.first[c], ruleHead{cost: cr.cost, rule: int32(len(s.rules)), starts: ends >> lb})
+			s.rules = append(s.rules, appRule{src: int32(r), alpha: cr.alpha, la: len(cr.alpha), lb: lb, cost: cr.cost, ends: ends,
+				alphaBits: cr.alphaBits, next1: cr.next1, rest2: cr.rest2})
 		}
 		s.ruleSet[wi] = 0
 	}
-	s.ruleMask = s.ruleMask[:0]
-	var rm [4]uint64
-	for i := range s.rules {
-		c := s.rules[i].alpha[0]
-		if s.below == nil { // allowed reads ruleMask only without the table
-			rm[c>>6] |= 1 << (c & 63)
-			s.ruleMask = append(s.ruleMask, rm)
-		}
-		if len(s.first[c]) == 0 {
-			s.usedFirst = append(s.usedFirst, c)
-		}
-		var starts uint64
-		for ends := s.rules[i].ends; ends != 0; ends &= ends - 1 {
-			starts |= 1 << (bitIndex64(ends) - s.rules[i].lb)
-		}
-		s.first[c] = append(s.first[c], ruleHead{cost: s.rules[i].cost, rule: int32(i), starts: starts})
-	}
-	s.prepareStarts()
-	s.prepareBelow()
 }
 
 // subRow returns subC's row for intended byte c (the cost of typing each
@@ -390,26 +407,17 @@ func grow[T any](b []T, n int) []T {
 	return b[:n]
 }
 
-// ruleOrder lists a channel's rules by cost, rules of equal cost by index,
-// for prepare. It is immutable once built and may be shared by searches.
+// ruleOrder names the channel whose typed-word tables a search
+// prepares. It used to hold the order of the channel's rules by cost;
+// newChannel now stores the rules in that order, so nothing else is
+// left to build. It is immutable and may be shared by searches.
 type ruleOrder struct {
-	ch     *channel
-	rank   []int32 // rank[i]: position of ch.rules[i] in the order
-	byRank []int32 // byRank[r]: the rule at position r
+	ch *channel
 }
 
-// newRuleOrder orders ch's rules. Cost: O(R log R) for R rules.
+// newRuleOrder returns the order of ch's rules. Cost: O(1).
 func newRuleOrder(ch *channel) *ruleOrder {
-	n := len(ch.rules)
-	o := &ruleOrder{ch: ch, rank: make([]int32, n), byRank: make([]int32, n)}
-	for i := range o.byRank {
-		o.byRank[i] = int32(i)
-	}
-	slices.SortStableFunc(o.byRank, func(a, b int32) int { return cmp.Compare(ch.rules[a].cost, ch.rules[b].cost) })
-	for r, ri := range o.byRank {
-		o.rank[ri] = int32(r)
-	}
-	return o
+	return &ruleOrder{ch: ch}
 }
 
 // run walks the lexicon from its start state and collects every word
