@@ -139,7 +139,6 @@ func TestFloorSumsMatchBitTest(t *testing.T) {
 	}
 	ch := newChannel(kb, em)
 	var s search
-	s.order = newRuleOrder(ch)
 	rng := rand.New(rand.NewPCG(13, 7))
 	for _, p := range devPairs(t) {
 		w := strings.ToLower(p.Typed)

@@ -242,7 +242,7 @@ func BenchmarkCorrect8Easy(b *testing.B) {
 	})
 	b.Run("prepare", func(b *testing.B) {
 		var s search
-		s.order, s.below = c.order, c.below
+		s.below = c.below
 		i := 0
 		b.ReportAllocs()
 		for b.Loop() {
@@ -396,7 +396,7 @@ func BenchmarkPasses(b *testing.B) {
 			sc.rk.start(c, nil, id, inLex, 8, sc.rk.top)
 			widest, _ := c.widestPass(w, id, inLex, inLex)
 			s := &sc.s
-			s.order, s.below, s.capRows = c.order, c.below, c.capRows
+			s.below, s.capRows = c.below, c.capRows
 			s.prepCh = nil
 			t0 := threadClock()
 			s.reset(c.ch, c.lex, w, float32(firstPass), len(w)+maxExtra)

@@ -172,8 +172,6 @@ type Corrector struct {
 	// passes of growing budget) for comparison in tests and benchmarks;
 	// it changes the widest pass only with fullWide (runPass).
 	depthFirst bool
-	// order lists the channel's rules by cost for every search.
-	order *ruleOrder
 	// below gives the letters below each lexicon state (nil when the
 	// lexicon cannot list edges); the search's lower bound uses it.
 	below *belowTable
@@ -290,7 +288,6 @@ func New(lex Lexicon, lm Scorer, opts Options) (*Corrector, error) {
 		}
 	}
 	c := &Corrector{lex: lex, lm: lm, opts: opts, ch: newChannel(kb, em)}
-	c.order = newRuleOrder(c.ch)
 	if el, ok := lex.(EdgeLister); ok {
 		c.below = newBelowTable(lex, el)
 		c.capRows = true
@@ -480,7 +477,6 @@ func (c *Corrector) searchUpTo(s *search, rk *ranker, lower string, widest float
 		if o.MaxStates > 0 && used >= o.MaxStates {
 			break
 		}
-		s.order = c.order
 		s.below = c.below
 		s.capRows = c.capRows
 		s.noParent = c.noParent

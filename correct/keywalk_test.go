@@ -11,7 +11,7 @@ import (
 // returns the words found and their costs, sorted by ID.
 func widestHits(t *testing.T, c *Corrector, w string, oneWalk bool) []hit {
 	t.Helper()
-	s := &search{order: c.order, below: c.below}
+	s := &search{below: c.below}
 	s.reset(c.ch, c.lex, w, float32(c.opts.MaxCost), min(len(w)+maxExtra, 2*maxTyped))
 	old := c.oneWalk
 	c.oneWalk = oneWalk

@@ -37,7 +37,7 @@ func TestParentBoundKeepsWords(t *testing.T) {
 			found, rowsWith, rowsWithout := 0, 0, 0
 			walk := func(noParent bool, w string) *search {
 				t.Helper()
-				s := &search{order: c.order, below: c.below, noParent: noParent}
+				s := &search{below: c.below, noParent: noParent}
 				s.reset(c.ch, lex, w, tt.budget, len(w)+maxExtra)
 				if tt.bestFirst {
 					s.runBest()

@@ -33,7 +33,6 @@ func TestPrepareRulesMatchScan(t *testing.T) {
 		t.Run(m.name, func(t *testing.T) {
 			ch := newChannel(kb, m.em)
 			var s search
-			s.order = newRuleOrder(ch)
 			for _, p := range pairs {
 				w := strings.ToLower(p.Typed)
 				if len(w) > maxTyped {
@@ -92,7 +91,6 @@ func TestSubRowMatchesChannel(t *testing.T) {
 	}
 	ch := c.ch
 	var s search
-	s.order = c.order
 	for _, p := range pairs {
 		w := strings.ToLower(p.Typed)
 		if len(w) > maxTyped || w == "" {

@@ -89,7 +89,6 @@ type search struct {
 	subDone   [4]uint64       // bit c: subC's row for intended byte c is filled
 	pos       [256]uint64     // bit j: t[j] is the byte
 	rules     []appRule       // sorted by cost
-	order     *ruleOrder      // the channel's rules by cost (built if nil or for another channel)
 	ruleSet   []uint64        // while collecting rules: bit r for ch.rules[r] (else zero)
 	ruleEnds  []uint64        // while collecting rules: their ends, by index in ch.rules
 	ruleMask  [][4]uint64     // ruleMask[i]: first intended bytes of rules[:i+1] (only with below nil)
@@ -275,9 +274,6 @@ func (s *search) prepare(ch *channel) {
 	}
 	s.usedFirst = s.usedFirst[:0]
 	s.ruleMask = s.ruleMask[:0]
-	if s.order == nil || s.order.ch != ch {
-		s.order = newRuleOrder(ch)
-	}
 	s.gatherRules(ch)
 	s.prepareStarts()
 	s.prepareBelow()
@@ -405,19 +401,6 @@ func grow[T any](b []T, n int) []T {
 		return make([]T, n)
 	}
 	return b[:n]
-}
-
-// ruleOrder names the channel whose typed-word tables a search
-// prepares. It used to hold the order of the channel's rules by cost;
-// newChannel now stores the rules in that order, so nothing else is
-// left to build. It is immutable and may be shared by searches.
-type ruleOrder struct {
-	ch *channel
-}
-
-// newRuleOrder returns the order of ch's rules. Cost: O(1).
-func newRuleOrder(ch *channel) *ruleOrder {
-	return &ruleOrder{ch: ch}
 }
 
 // run walks the lexicon from its start state and collects every word

@@ -71,7 +71,7 @@ func TestSkeletonPassKeepsWords(t *testing.T) {
 			kept, rowsWhole, rowsSkel := 0, 0, 0
 			walk := func(w string, filter bool) map[uint32]float32 {
 				t.Helper()
-				s := &search{order: c.order, below: tt.below}
+				s := &search{below: tt.below}
 				s.reset(c.ch, lex, w, float32(c.opts.MaxCost), len(w)+maxExtra)
 				if filter {
 					s.skel = &s.skf
