@@ -163,6 +163,146 @@ func TestFloorSumsMatchBitTest(t *testing.T) {
 	}
 }
 
+// TestLeftOverMatchesBitTest checks leftOver, which prices only the typed
+// positions in missPos and then sums from the end with no test per
+// position, against its definition: hs[j] the sum, taken from the last
+// typed position down, of missCost(k, below) over the positions k >= j in
+// missPos (bit k set), and hs[n] zero; bit for bit (IEEE 754 addition of
+// +0 leaves a sum unchanged). Words: every typed word of
+// corpora/misspellings-dev.tsv under the built-in error model; below
+// sets drawn at random, with the empty and the full set, missPos as
+// parentBound and childBound make it (the typed positions of the classes
+// not below) and also drawn at random; each set is asked twice, so that
+// the answer kept in the cache is read as well as computed. An
+// equivalence check between two ways of computing one table: no outside
+// reference applies.
+func TestLeftOverMatchesBitTest(t *testing.T) {
+	em, err := BuiltinErrorModel()
+	if err != nil {
+		t.Fatalf("BuiltinErrorModel: %v", err)
+	}
+	kb, err := LayoutQWERTY.Keyboard()
+	if err != nil {
+		t.Fatalf("Keyboard: %v", err)
+	}
+	ch := newChannel(kb, em)
+	var s search
+	rng := rand.New(rand.NewPCG(17, 5))
+	for _, p := range devPairs(t) {
+		w := strings.ToLower(p.Typed)
+		if len(w) > maxTyped {
+			continue
+		}
+		s.reset(ch, nil, w, inf, len(w)+maxExtra)
+		n := s.n
+		all := uint64(1)<<n - 1
+		for _, below := range []uint32{0, belowAll, rng.Uint32() & belowAll, rng.Uint32() & belowAll, rng.Uint32() & belowAll} {
+			for _, missPos := range []uint64{s.clsPos.of(s.tbits &^ below), rng.Uint64() & all} {
+				clear(s.hsKeys[:]) // missPos is part of the question, not of the cache's key
+				for range 2 {
+					got := s.leftOver(missPos, below)
+					if len(got) != n+1 {
+						t.Fatalf("%q, below %#x: %d prices, want %d", w, below, len(got), n+1)
+					}
+					var want float32
+					if math.Float32bits(got[n]) != 0 {
+						t.Fatalf("%q, below %#x, positions %#x: price from %d = %v, want 0", w, below, missPos, n, got[n])
+					}
+					for k := n - 1; k >= 0; k-- {
+						if missPos&(1<<k) != 0 {
+							want += s.missCost(k, below)
+						}
+						if math.Float32bits(got[k]) != math.Float32bits(want) {
+							t.Fatalf("%q, below %#x, positions %#x: price from %d = %v, want %v", w, below, missPos, k, got[k], want)
+						}
+					}
+				}
+			}
+		}
+	}
+}
+
+// TestMissCostMatchesTwoLists checks missCost, which reads one list per
+// typed byte (missOpt, prepareMissOpts), against its definition from the
+// two lists it merges: the first substitution group of the typed byte
+// (subG, by cost) with a class below cheaper than the typed-extra price
+// ins[k], else that price, lowered to the first rule share of the
+// position (ruleMiss, by cost) whose intended classes are all below, when
+// cheaper (firstAny, then firstRule with no edge letters needed); bit for
+// bit. Words: every typed word of corpora/misspellings-dev.tsv under the
+// built-in error model, at every typed position, for below sets drawn at
+// random, single classes, the empty and the full set. An equivalence
+// check between two ways of computing one price: no outside reference
+// applies.
+func TestMissCostMatchesTwoLists(t *testing.T) {
+	em, err := BuiltinErrorModel()
+	if err != nil {
+		t.Fatalf("BuiltinErrorModel: %v", err)
+	}
+	kb, err := LayoutQWERTY.Keyboard()
+	if err != nil {
+		t.Fatalf("Keyboard: %v", err)
+	}
+	ch := newChannel(kb, em)
+	var s search
+	rng := rand.New(rand.NewPCG(23, 11))
+	sets := []uint32{0, belowAll}
+	for b := range 29 {
+		sets = append(sets, 1<<b)
+	}
+	shares := 0
+	for _, p := range devPairs(t) {
+		w := strings.ToLower(p.Typed)
+		if len(w) > maxTyped {
+			continue
+		}
+		s.reset(ch, nil, w, inf, len(w)+maxExtra)
+		for k := 0; k < s.n; k++ {
+			shares += len(s.ruleMiss[k])
+			for _, below := range append(sets, rng.Uint32()&belowAll, rng.Uint32()&belowAll, rng.Uint32()&belowAll) {
+				want := firstRule(s.ruleMiss[k], 0, below, firstAny(s.subG[s.t[k]], below, s.ins[k]))
+				if got := s.missCost(k, below); math.Float32bits(got) != math.Float32bits(want) {
+					t.Fatalf("%q, typed byte %d, below %#x: missCost = %v, want %v", w, k, below, got, want)
+				}
+			}
+		}
+	}
+	if shares == 0 {
+		t.Fatal("no rule shares in any typed word: the check of the merge is empty")
+	}
+}
+
+// firstAny (the reference of TestMissCostMatchesTwoLists, missCost's
+// earlier first half) returns the cost of the first option of g (sorted by cost)
+// that has a class in set, or bound if none is cheaper than bound.
+func firstAny(g []hopt, set uint32, bound float32) float32 {
+	for i := range g {
+		if g[i].cost >= bound {
+			break
+		}
+		if g[i].any&set != 0 {
+			return g[i].cost
+		}
+	}
+	return bound
+}
+
+// firstRule (the reference of TestMissCostMatchesTwoLists, missCost's
+// earlier second half) returns the cost of the first rule option of g (sorted by
+// cost) that a state with the given sets allows, or bound if none is
+// cheaper than bound.
+func firstRule(g []hopt, next, below uint32, bound float32) float32 {
+	for i := range g {
+		if g[i].cost >= bound {
+			break
+		}
+		if g[i].needNext&^next == 0 && g[i].needBelow&^below == 0 {
+			return g[i].cost
+		}
+	}
+	return bound
+}
+
 // TestStepClassesMatchChannel checks the first-step prices prepareBelow
 // fills per typed position and letter class (stepCls, read by stepCost)
 // against the channel's costs read directly: for typed position k and

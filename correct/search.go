@@ -132,6 +132,8 @@ type search struct {
 	posBit     [29]uint64               // posBit[i]: typed positions of byte class i
 	clsPos     classPos                 // posBit by sets of classes (classpos.go)
 	ruleMiss   [][]hopt                 // per typed byte, see prepareBelow
+	missOpt    []hopt                   // missCost's options of every typed byte, see prepareMissOpts
+	missOff    []int32                  // where each typed byte's options start in missOpt (n+1 entries)
 	stepCls    [][29]float32            // per typed byte, see prepareBelow
 	hsCache    []float32                // leftOver answers, n+1 per slot
 	hsKeys     [1 << hsCacheBits]uint32 // below set + 1 of each hsCache slot
