@@ -81,7 +81,7 @@ const DefaultAutoApplyConfidence = 0.8
 // within two plain edits (correct/skeleton.go), the 8-letter
 // misspellings of the package's benchmark (74k-word lexicon) examine at
 // most about 9,000 prefixes, so the cap now bounds only rarer, longer
-// words; the slowest corrections take about 3.5 ms on this project's
+// words; the slowest corrections take about 3 ms on this project's
 // machine (BENCHMARKS.md).
 const DefaultCorrectionStates = 25000
 
