@@ -129,23 +129,9 @@ func tableStep(tab *belowTable, node int, c byte) (int, uint32, bool) {
 // corpora/misspellings-dev.tsv under the built-in error model and sets
 // of positions drawn at random, with the empty and the full set.
 func TestFloorSumsMatchBitTest(t *testing.T) {
-	em, err := BuiltinErrorModel()
-	if err != nil {
-		t.Fatalf("BuiltinErrorModel: %v", err)
-	}
-	kb, err := LayoutQWERTY.Keyboard()
-	if err != nil {
-		t.Fatalf("Keyboard: %v", err)
-	}
-	ch := newChannel(kb, em)
-	var s search
+	ch := qwertyChannel(t)
 	rng := rand.New(rand.NewPCG(13, 7))
-	for _, p := range devPairs(t) {
-		w := strings.ToLower(p.Typed)
-		if len(w) > maxTyped {
-			continue
-		}
-		s.reset(ch, nil, w, inf, len(w)+maxExtra)
+	devSearches(t, ch, func(s *search, w string) {
 		n := s.n
 		all := uint64(1)<<n - 1
 		for _, missPos := range []uint64{0, all, rng.Uint64() & all, rng.Uint64() & all, rng.Uint64() & all} {
@@ -160,7 +146,7 @@ func TestFloorSumsMatchBitTest(t *testing.T) {
 				}
 			}
 		}
-	}
+	})
 }
 
 // TestLeftOverMatchesBitTest checks leftOver, which prices only the typed
@@ -177,23 +163,9 @@ func TestFloorSumsMatchBitTest(t *testing.T) {
 // equivalence check between two ways of computing one table: no outside
 // reference applies.
 func TestLeftOverMatchesBitTest(t *testing.T) {
-	em, err := BuiltinErrorModel()
-	if err != nil {
-		t.Fatalf("BuiltinErrorModel: %v", err)
-	}
-	kb, err := LayoutQWERTY.Keyboard()
-	if err != nil {
-		t.Fatalf("Keyboard: %v", err)
-	}
-	ch := newChannel(kb, em)
-	var s search
+	ch := qwertyChannel(t)
 	rng := rand.New(rand.NewPCG(17, 5))
-	for _, p := range devPairs(t) {
-		w := strings.ToLower(p.Typed)
-		if len(w) > maxTyped {
-			continue
-		}
-		s.reset(ch, nil, w, inf, len(w)+maxExtra)
+	devSearches(t, ch, func(s *search, w string) {
 		n := s.n
 		all := uint64(1)<<n - 1
 		for _, below := range []uint32{0, belowAll, rng.Uint32() & belowAll, rng.Uint32() & belowAll, rng.Uint32() & belowAll} {
@@ -219,7 +191,7 @@ func TestLeftOverMatchesBitTest(t *testing.T) {
 				}
 			}
 		}
-	}
+	})
 }
 
 // TestMissCostMatchesTwoLists checks missCost, which reads one list per
@@ -235,28 +207,14 @@ func TestLeftOverMatchesBitTest(t *testing.T) {
 // check between two ways of computing one price: no outside reference
 // applies.
 func TestMissCostMatchesTwoLists(t *testing.T) {
-	em, err := BuiltinErrorModel()
-	if err != nil {
-		t.Fatalf("BuiltinErrorModel: %v", err)
-	}
-	kb, err := LayoutQWERTY.Keyboard()
-	if err != nil {
-		t.Fatalf("Keyboard: %v", err)
-	}
-	ch := newChannel(kb, em)
-	var s search
+	ch := qwertyChannel(t)
 	rng := rand.New(rand.NewPCG(23, 11))
 	sets := []uint32{0, belowAll}
 	for b := range 29 {
 		sets = append(sets, 1<<b)
 	}
 	shares := 0
-	for _, p := range devPairs(t) {
-		w := strings.ToLower(p.Typed)
-		if len(w) > maxTyped {
-			continue
-		}
-		s.reset(ch, nil, w, inf, len(w)+maxExtra)
+	devSearches(t, ch, func(s *search, w string) {
 		for k := 0; k < s.n; k++ {
 			shares += len(s.ruleMiss[k])
 			for _, below := range append(sets, rng.Uint32()&belowAll, rng.Uint32()&belowAll, rng.Uint32()&belowAll) {
@@ -266,7 +224,7 @@ func TestMissCostMatchesTwoLists(t *testing.T) {
 				}
 			}
 		}
-	}
+	})
 	if shares == 0 {
 		t.Fatal("no rule shares in any typed word: the check of the merge is empty")
 	}
@@ -367,5 +325,21 @@ func TestStepClassesMatchChannel(t *testing.T) {
 	}
 	if checked == 0 || byRule == 0 {
 		t.Fatalf("%d typed positions checked, %d prices set by a rule with an empty typed side: the check is too weak", checked, byRule)
+	}
+}
+
+// devSearches resets s for every typed word of corpora/misspellings-dev.tsv
+// (lower-cased, at most maxTyped bytes) with channel ch, no lexicon and an
+// unlimited budget, and calls f with it.
+func devSearches(t *testing.T, ch *channel, f func(s *search, w string)) {
+	t.Helper()
+	var s search
+	for _, p := range devPairs(t) {
+		w := strings.ToLower(p.Typed)
+		if len(w) > maxTyped {
+			continue
+		}
+		s.reset(ch, nil, w, inf, len(w)+maxExtra)
+		f(&s, w)
 	}
 }
