@@ -7,51 +7,12 @@ import (
 	"testing"
 )
 
-// refKeyWalk is the keys' walk of round 10 (keyTrie.keyWalk before its
-// fast paths), kept as the reference the current walk must equal.
-func (t *keyTrie) refKeyWalk(f *refSkelFilter, g *belowTable, node, d, maxDepth int) int32 {
-	ok, _ := g.final(node)
-	accept := ok && f.accepts(d)
-	idx := int32(len(t.nodes))
-	t.nodes = append(t.nodes, keyNode{accept: accept})
-	base := len(t.pending)
-	if d < maxDepth {
-		m := f.mask(d)
-		lo, hi := g.edges(node)
-		for k := lo; k < hi; k++ {
-			c := g.eb[k]
-			if m[c>>6]&(1<<(c&63)) == 0 {
-				continue
-			}
-			t.steps++
-			if t.steps > keyWalkMax {
-				return -1
-			}
-			next := int(g.en[k])
-			if !f.step(d, c, g.nodes[next].sets.below(), g.rest[next]) {
-				continue
-			}
-			if ch := t.refKeyWalk(f, g, next, d+1, maxDepth); ch >= 0 {
-				t.pending = append(t.pending, keyEdge{k: int32(k), child: ch})
-			} else if t.steps > keyWalkMax {
-				return -1
-			}
-		}
-	}
-	return t.close(idx, base, accept)
-}
-
-// refBuild is keyTrie.build with refKeyWalk (round 10) or, with
-// round11, refKeyWalk11, both over the banded byte rows.
-func (t *keyTrie) refBuild(f *refSkelFilter, g *belowTable, maxDepth int, round11 bool) bool {
+// refBuild is keyTrie.build with refKeyWalk11, the walk of round 11 over
+// the banded byte rows (which, in its turn, was checked node for node
+// against the round-10 walk: BENCHMARKS.md, round 11).
+func (t *keyTrie) refBuild(f *refSkelFilter, g *belowTable, maxDepth int) bool {
 	t.nodes, t.edges, t.pending, t.steps = t.nodes[:0], t.edges[:0], t.pending[:0], 0
-	var root int32
-	if round11 {
-		root = t.refKeyWalk11(f, g, 0, 0, maxDepth)
-	} else {
-		root = t.refKeyWalk(f, g, 0, 0, maxDepth)
-	}
-	if root < 0 {
+	if t.refKeyWalk11(f, g, 0, 0, maxDepth) < 0 {
 		t.nodes = t.nodes[:0]
 		return t.steps <= keyWalkMax
 	}
@@ -66,9 +27,8 @@ func keyWalkWords(t testing.TB, n int) []string {
 }
 
 // TestKeyWalkSameTrie checks that the keys' walk over the bit rows builds,
-// node for node and edge for edge, the same trie as the round-10 and
-// round-11 walks over the banded byte rows (refKeyWalk, refKeyWalk11)
-// and gives up on the same words with as many steps, for every
+// node for node and edge for edge, the same trie as the round-11 walk
+// over the banded byte rows (refKeyWalk11) and gives up on the same words with as many steps, for every
 // development misspelling and 200 random strings over the SUBTLEX-US
 // letters-below table.
 func TestKeyWalkSameTrie(t *testing.T) {
@@ -88,16 +48,14 @@ func TestKeyWalkSameTrie(t *testing.T) {
 		maxDepth := min(len(w)+maxExtra, 2*maxTyped)
 		f.reset(w, maxDepth)
 		okGot := got.build(&f, c.below, maxDepth)
-		for _, round11 := range []bool{false, true} {
-			rf.reset(w, maxDepth)
-			okWant := want.refBuild(&rf, c.below, maxDepth, round11)
-			nodes += len(want.nodes)
-			if okGot != okWant || fmt.Sprint(got.nodes) != fmt.Sprint(want.nodes) || fmt.Sprint(got.edges) != fmt.Sprint(want.edges) {
-				t.Errorf("%q: trie of %d nodes (finished %v), want %d nodes (finished %v; round 11 walk %v)", w, len(got.nodes), okGot, len(want.nodes), okWant, round11)
-			}
-			if round11 && got.steps != want.steps {
-				t.Errorf("%q: %d steps, the round 11 walk %d", w, got.steps, want.steps)
-			}
+		rf.reset(w, maxDepth)
+		okWant := want.refBuild(&rf, c.below, maxDepth)
+		nodes += len(want.nodes)
+		if okGot != okWant || fmt.Sprint(got.nodes) != fmt.Sprint(want.nodes) || fmt.Sprint(got.edges) != fmt.Sprint(want.edges) {
+			t.Errorf("%q: trie of %d nodes (finished %v), want %d nodes (finished %v)", w, len(got.nodes), okGot, len(want.nodes), okWant)
+		}
+		if got.steps != want.steps {
+			t.Errorf("%q: %d steps, the round 11 walk %d", w, got.steps, want.steps)
 		}
 	}
 	if nodes == 0 {
@@ -133,7 +91,7 @@ func BenchmarkKeyWalkOnly(b *testing.B) {
 		cpu0 := threadClock()
 		if m == 0 {
 			rf.reset(w, maxDepth)
-			kt.refBuild(&rf, c.below, maxDepth, true)
+			kt.refBuild(&rf, c.below, maxDepth)
 		} else {
 			f.reset(w, maxDepth)
 			kt.build(&f, c.below, maxDepth)
