@@ -61,26 +61,27 @@ type costOpt struct {
 // keyboard-slip model and the spelling-error model combined by taking the
 // cheaper explanation of each edit. It is immutable after newChannel.
 type channel struct {
-	sub      [256][256]float32 // sub[typed][intended], inf on the diagonal
-	del      [256]float32      // intended byte left out
-	delDbl   float32           // intended byte left out after the same byte
-	insBase  float32           // an extra typed byte, no context
-	insDbl   float32           // an extra typed byte repeating a neighbour
-	insNear  [256][256]float32 // insNear[extra][neighbour] for key slips
-	trans    float32
-	lead     float32           // added to spelling edits of the first letter (leadCost)
-	slipSub  [128][128]float32 // keyboard-slip part of sub, ASCII only
-	slipDel  float32           // keyboard-slip part of del
-	slipRep  float32           // keyboard-slip part of insDbl
-	rules    []chRule
-	byBeta   map[string][]int32
-	byByte   [256][]int32   // byBeta's lists of the one-byte typed sides, by byte
-	betaLens []int          // distinct β lengths, ascending
-	cheapSub [256][]costOpt // per typed byte: intended bytes by sub cost
-	cheapDel []costOpt      // intended bytes by deletion cost
-	minEdit  float32        // cheapest non-match edit cost
-	maxAlpha int
-	affix    float32 // a stem typed with another ending (family.go); inf: off
+	sub       [256][256]float32 // sub[typed][intended], inf on the diagonal
+	del       [256]float32      // intended byte left out
+	delDbl    float32           // intended byte left out after the same byte
+	insBase   float32           // an extra typed byte, no context
+	insDbl    float32           // an extra typed byte repeating a neighbour
+	insNear   [256][256]float32 // insNear[extra][neighbour] for key slips
+	trans     float32
+	lead      float32           // added to spelling edits of the first letter (leadCost)
+	slipSub   [128][128]float32 // keyboard-slip part of sub, ASCII only
+	slipDel   float32           // keyboard-slip part of del
+	slipRep   float32           // keyboard-slip part of insDbl
+	rules     []chRule
+	byBeta    map[string][]int32
+	byByte    [256][]int32   // byBeta's lists of the one-byte typed sides, by byte
+	betaLens  []int          // distinct β lengths, ascending
+	cheapSub  [256][]costOpt // per typed byte: intended bytes by sub cost
+	cheapDel  []costOpt      // intended bytes by deletion cost
+	minEdit   float32        // cheapest non-match edit cost
+	maxAlpha  int
+	affix     float32 // a stem typed with another ending (family.go); inf: off
+	irregular float32 // a verb's regular past for its irregular form (irregular.go); inf: off
 }
 
 // alphabet is the set of bytes tried as intended letters where no typed
@@ -157,6 +158,7 @@ func newChannel(kb *Keyboard, em *ErrorModel) *channel {
 	ch.insDbl = min(ln(slipRepeat), float32(bo.InsDouble))
 	ch.trans = min(ln(slipSwapRate), float32(bo.Trans))
 	ch.affix = float32(bo.Affix)
+	ch.irregular = float32(bo.Irregular)
 	add := func(a, b string, cost float32) {
 		switch {
 		case len(a) == 1 && len(b) == 1:
@@ -297,7 +299,7 @@ func unitChannel(transpose bool) *channel {
 		ch.sub[t][t] = inf
 		ch.del[t] = 1
 	}
-	ch.delDbl, ch.insBase, ch.insDbl, ch.trans, ch.affix = 1, 1, 1, inf, inf
+	ch.delDbl, ch.insBase, ch.insDbl, ch.trans, ch.affix, ch.irregular = 1, 1, 1, inf, inf, inf
 	if transpose {
 		ch.trans = 1
 	}

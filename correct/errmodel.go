@@ -114,10 +114,9 @@ const DefaultAffixCost = 3.2
 const affixBit = 1 << 7
 
 // DefaultIrregularCost is Backoff.Irregular for a table without an
-// "@irregular" line (tables written before it existed), and the cost a
-// Corrector built without Options.ErrorModel uses: the value in the
+// "@irregular" line (tables written before it existed): the value in the
 // built-in table (errmodel.tsv, trained on the development misspellings
-// list).
+// list), which a Corrector built without Options.ErrorModel uses.
 const DefaultIrregularCost = 5.734
 
 // irregularBit is the "@irregular" line's bit in ParseErrorModel's seen

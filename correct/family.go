@@ -55,12 +55,11 @@ type famFrame struct {
 //
 // First, for any typed word, known or not, it offers the irregular forms
 // of a verb lower over-regularises (addIrregular in irregular.go): they
-// are family members no shared stem finds ("teached" for taught). Both
-// features are off when the channel's affix cost is inf (a unit-cost
-// channel).
+// are family members no shared stem finds ("teached" for taught). Each
+// feature is off when its channel cost is inf (a unit-cost channel).
 func (c *Corrector) addFamily(rk *ranker, lower string) int {
-	if c.ch.affix < inf {
-		c.addIrregular(rk, lower, c.irregularCost())
+	if c.ch.irregular < inf {
+		c.addIrregular(rk, lower, c.ch.irregular)
 	}
 	if rk.skipOK || c.ch.affix >= inf || len(lower) <= familyMinStem || len(lower) > maxTyped {
 		return 0

@@ -122,13 +122,3 @@ func (c *Corrector) addIrregular(rk *ranker, lower string, cost float32) {
 		}
 	}
 }
-
-// irregularCost returns Backoff.Irregular of the corrector's error model:
-// Options.ErrorModel's, or DefaultIrregularCost (the built-in table's)
-// when it is nil.
-func (c *Corrector) irregularCost() float32 {
-	if em := c.opts.ErrorModel; em != nil {
-		return float32(em.backoff.Irregular)
-	}
-	return DefaultIrregularCost
-}
