@@ -14,12 +14,7 @@ import (
 // list of real misspellings) over the SUBTLEX-US lexicon: expanding
 // prefixes in another order must not change what is within budget.
 func TestBestFirstMatchesDepthFirst(t *testing.T) {
-	d := corpus(t)
-	lex := newTrieLex(t, d.subtlexLex)
-	c, err := New(lex, d.unigramScorer(lex.words), Options{})
-	if err != nil {
-		t.Fatal(err)
-	}
+	c, _ := subtlexTrieCorrector(t)
 	pairs := devPairs(t)
 	checked, found := 0, 0
 	for i := 0; i < len(pairs) && checked < 300; i += 7 {
@@ -29,9 +24,9 @@ func TestBestFirstMatchesDepthFirst(t *testing.T) {
 		}
 		checked++
 		var dfs, bfs search
-		dfs.reset(c.ch, lex, typed, float32(c.opts.MaxCost), len(typed)+maxExtra)
+		dfs.reset(c.ch, c.lex, typed, float32(c.opts.MaxCost), len(typed)+maxExtra)
 		dfs.run()
-		bfs.reset(c.ch, lex, typed, float32(c.opts.MaxCost), len(typed)+maxExtra)
+		bfs.reset(c.ch, c.lex, typed, float32(c.opts.MaxCost), len(typed)+maxExtra)
 		bfs.runBest()
 		want, got := hitList(dfs.hits), hitList(bfs.hits)
 		if fmt.Sprint(got) != fmt.Sprint(want) {
@@ -63,12 +58,7 @@ func hitList(h []hit) []hit {
 // words found are exactly the lexicon words whose channel cost, computed
 // one by one by the row recurrence, is within budget.
 func TestBelowBoundKeepsWords(t *testing.T) {
-	d := corpus(t)
-	lex := newTrieLex(t, d.subtlexLex)
-	c, err := New(lex, d.unigramScorer(lex.words), Options{})
-	if err != nil {
-		t.Fatal(err)
-	}
+	c, lex := subtlexTrieCorrector(t)
 	if c.below == nil {
 		t.Fatal("no letters-below table for a lexicon that lists edges")
 	}

@@ -87,33 +87,53 @@ func TestIsAffixError(t *testing.T) {
 	}
 }
 
-func TestTrainAffixCost(t *testing.T) {
-	// One affix error among four pairs: the Laplace estimate (n+1)/(N+2)
-	// that TrainErrorModel documents for its class costs gives 2/6, a cost
-	// of ln 3 (worked by hand).
-	pairs := []Pair{
-		{Typed: "oftenly", Intended: []string{"often"}},
-		{Typed: "teh", Intended: []string{"the"}},
-		{Typed: "recieve", Intended: []string{"receive"}},
-		{Typed: "wich", Intended: []string{"which"}},
+func TestTrainWordErrorCosts(t *testing.T) {
+	// One whole-word error of the class among four pairs: the Laplace
+	// estimate (n+1)/(N+2) that TrainErrorModel documents for its class
+	// costs gives 2/6, a cost of ln 3 (worked by hand).
+	tests := []struct {
+		name  string
+		typed string // the pair of the class, intended word want
+		want  string
+		cost  func(Backoff) float64
+	}{
+		{"affix", "oftenly", "often", func(b Backoff) float64 { return b.Affix }},
+		{"irregular", "teached", "taught", func(b Backoff) float64 { return b.Irregular }},
 	}
-	m := TrainErrorModel(pairs, TrainOptions{})
-	if got, want := m.Backoff().Affix, math.Log(3); math.Abs(got-want) > 1e-9 {
-		t.Errorf("Affix = %v, want ln 3 = %v", got, want)
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			pairs := []Pair{
+				{Typed: tc.typed, Intended: []string{tc.want}},
+				{Typed: "teh", Intended: []string{"the"}},
+				{Typed: "recieve", Intended: []string{"receive"}},
+				{Typed: "wich", Intended: []string{"which"}},
+			}
+			m := TrainErrorModel(pairs, TrainOptions{})
+			if got, want := tc.cost(m.Backoff()), math.Log(3); math.Abs(got-want) > 1e-9 {
+				t.Errorf("%s cost = %v, want ln 3 = %v", tc.name, got, want)
+			}
+		})
 	}
 }
 
-func TestParseErrorModelAffix(t *testing.T) {
-	base := "@sub-vowel\t1\n@sub\t1\n@del\t1\n@del-double\t1\n@ins\t1\n@ins-double\t1\n@trans\t1\n"
+func TestParseErrorModelWordCosts(t *testing.T) {
+	classic := "@sub-vowel\t1\n@sub\t1\n@del\t1\n@del-double\t1\n@ins\t1\n@ins-double\t1\n@trans\t1\n"
+	affix := func(b Backoff) float64 { return b.Affix }
+	irregular := func(b Backoff) float64 { return b.Irregular }
 	tests := []struct {
 		name, table string
 		wantErr     bool
+		cost        func(Backoff) float64
 		want        float64
 	}{
-		{"affix given", base + "@affix\t4.5\n", false, 4.5},
-		{"affix missing: a table older than the line", base, false, DefaultAffixCost},
-		{"a classic line missing", base[len("@sub-vowel\t1\n"):] + "@affix\t4.5\n", true, 0},
-		{"affix negative", base + "@affix\t-1\n", true, 0},
+		{"affix given", classic + "@affix\t4.5\n", false, affix, 4.5},
+		{"affix missing: a table older than the line", classic, false, affix, DefaultAffixCost},
+		{"a classic line missing", classic[len("@sub-vowel\t1\n"):] + "@affix\t4.5\n", true, affix, 0},
+		{"affix negative", classic + "@affix\t-1\n", true, affix, 0},
+		{"irregular given", classic + "@affix\t1\n@irregular\t4.5\n", false, irregular, 4.5},
+		{"irregular missing: a table older than the line", classic + "@affix\t1\n", false, irregular, DefaultIrregularCost},
+		{"irregular negative", classic + "@affix\t1\n@irregular\t-1\n", true, irregular, 0},
+		{"irregular with a rule's fields", classic + "@affix\t1\n@irregular\tx\t1\n", true, irregular, 0},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
@@ -127,8 +147,8 @@ func TestParseErrorModelAffix(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			if got := m.Backoff().Affix; got != tc.want {
-				t.Errorf("Affix = %v, want %v", got, tc.want)
+			if got := tc.cost(m.Backoff()); got != tc.want {
+				t.Errorf("cost = %v, want %v", got, tc.want)
 			}
 		})
 	}

@@ -1,10 +1,8 @@
 package correct
 
 import (
-	"errors"
 	"math"
 	"slices"
-	"strings"
 	"testing"
 )
 
@@ -55,55 +53,8 @@ func TestIrregularOfAllocs(t *testing.T) {
 	}
 }
 
-func TestTrainIrregularCost(t *testing.T) {
-	// One over-regularised verb among four pairs: the Laplace estimate
-	// (n+1)/(N+2) that TrainErrorModel documents for its class costs gives
-	// 2/6, a cost of ln 3 (worked by hand).
-	pairs := []Pair{
-		{Typed: "teached", Intended: []string{"taught"}},
-		{Typed: "teh", Intended: []string{"the"}},
-		{Typed: "recieve", Intended: []string{"receive"}},
-		{Typed: "wich", Intended: []string{"which"}},
-	}
-	m := TrainErrorModel(pairs, TrainOptions{})
-	if got, want := m.Backoff().Irregular, math.Log(3); math.Abs(got-want) > 1e-9 {
-		t.Errorf("Irregular = %v, want ln 3 = %v", got, want)
-	}
-}
-
-func TestParseErrorModelIrregular(t *testing.T) {
-	base := "@sub-vowel\t1\n@sub\t1\n@del\t1\n@del-double\t1\n@ins\t1\n@ins-double\t1\n@trans\t1\n@affix\t1\n"
-	tests := []struct {
-		name, table string
-		wantErr     bool
-		want        float64
-	}{
-		{"irregular given", base + "@irregular\t4.5\n", false, 4.5},
-		{"irregular missing: a table older than the line", base, false, DefaultIrregularCost},
-		{"irregular negative", base + "@irregular\t-1\n", true, 0},
-		{"irregular with a rule's fields", base + "@irregular\tx\t1\n", true, 0},
-	}
-	for _, tc := range tests {
-		t.Run(tc.name, func(t *testing.T) {
-			m, err := ParseErrorModel(strings.NewReader(tc.table))
-			if tc.wantErr {
-				if !errors.Is(err, ErrErrorModel) {
-					t.Fatalf("err = %v, want ErrErrorModel", err)
-				}
-				return
-			}
-			if err != nil {
-				t.Fatal(err)
-			}
-			if got := m.Backoff().Irregular; got != tc.want {
-				t.Errorf("Irregular = %v, want %v", got, tc.want)
-			}
-		})
-	}
-}
-
-// A Corrector built without an error model uses DefaultIrregularCost, which
-// must be the built-in table's value.
+// DefaultIrregularCost, the cost a table older than the "@irregular" line
+// gets, is documented as the built-in table's value.
 func TestDefaultIrregularCostIsBuiltin(t *testing.T) {
 	em, err := BuiltinErrorModel()
 	if err != nil {

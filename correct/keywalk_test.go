@@ -32,12 +32,7 @@ func widestHits(t *testing.T, c *Corrector, w string, oneWalk bool) []hit {
 // misspelling and random strings, some short (a short typed skeleton lets
 // the keys through much of the lexicon).
 func TestKeyWalkSameWords(t *testing.T) {
-	d := corpus(t)
-	lex := newTrieLex(t, d.subtlexLex)
-	c, err := New(lex, d.unigramScorer(lex.words), Options{})
-	if err != nil {
-		t.Fatal(err)
-	}
+	c, _ := subtlexTrieCorrector(t)
 	typed := typedSample(t, 1, 0, 4, 60, 1, 12)
 	tests := []struct {
 		name  string

@@ -325,6 +325,20 @@ func newTrieLex(t testing.TB, words []string) *trieLex {
 	return &trieLex{Lexicon: l, words: words}
 }
 
+// subtlexTrieCorrector returns a Corrector with the default options over
+// the SUBTLEX-US lexicon as the engine reads it (newTrieLex), ranked by
+// unigram frequency, and that lexicon.
+func subtlexTrieCorrector(t testing.TB) (*Corrector, *trieLex) {
+	t.Helper()
+	d := corpus(t)
+	lex := newTrieLex(t, d.subtlexLex)
+	c, err := New(lex, d.unigramScorer(lex.words), Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	return c, lex
+}
+
 // AppendEdges implements EdgeLister.
 func (l *trieLex) AppendEdges(dst []Edge, state int) []Edge {
 	var buf [64]trie.Transition

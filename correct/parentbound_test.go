@@ -15,12 +15,7 @@ import (
 // recurrence in TestBelowBoundKeepsWords. It also checks that the bound
 // prunes: fewer rows computed in all.
 func TestParentBoundKeepsWords(t *testing.T) {
-	d := corpus(t)
-	lex := newTrieLex(t, d.subtlexLex)
-	c, err := New(lex, d.unigramScorer(lex.words), Options{})
-	if err != nil {
-		t.Fatal(err)
-	}
+	c, lex := subtlexTrieCorrector(t)
 	typed := typedSample(t, 11, 150, 15, 20, 3, 10)
 	tests := []struct {
 		name      string

@@ -51,12 +51,7 @@ func skelKeeps(typed, word string) bool {
 // word by word against the row recurrence in TestBelowBoundKeepsWords.
 // It also checks that the filter prunes: fewer rows computed in all.
 func TestSkeletonPassKeepsWords(t *testing.T) {
-	d := corpus(t)
-	lex := newTrieLex(t, d.subtlexLex)
-	c, err := New(lex, d.unigramScorer(lex.words), Options{})
-	if err != nil {
-		t.Fatal(err)
-	}
+	c, lex := subtlexTrieCorrector(t)
 	typed := typedSample(t, 7, 0, 16, 30, 3, 10)
 	tests := []struct {
 		name  string
