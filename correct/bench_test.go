@@ -43,7 +43,10 @@ func eightLetterTyped(b *testing.B) []string {
 // trie-cap-wholewide the previous widest pass (the whole lexicon, not
 // only the words skelFilter keeps, skeleton.go), trie-cap-onewalk the
 // widest pass in one walk with the keys as a filter instead of the keys'
-// walk and then the weighted one (keywalk.go). Besides
+// walk and then the weighted one (keywalk.go), trie-cap-midwhole the
+// previous passes after the narrow one (the middle pass over the whole
+// lexicon, then the widest pass, instead of the keys' pass, keysPass).
+// Besides
 // latency (wall and, where the thread's CPU clock is read, CPU time of
 // the calling thread, which other processes disturb less) it reports the
 // states visited and the DP rows computed per word, which do not depend
@@ -64,17 +67,19 @@ func BenchmarkCorrect8(b *testing.B) {
 		noParent   bool // the previous search: no parentBound check
 		fullWide   bool // the previous widest pass: the whole lexicon
 		oneWalk    bool // the previous widest pass: one walk, the keys as a filter
+		midWhole   bool // the previous passes: the whole lexicon's middle pass, then the widest
 	}{
-		{"flat", newFlatLex(d.subtlexLex), d.subtlexLex, false, 0, false, false, false, false},
-		{"vellum", newVellumLex(b, d.subtlexLex), d.subtlexLex, false, 0, false, false, false, false},
-		{"trie", newTrieLex(b, d.subtlexLex), d.subtlexLex, false, 0, false, false, false, false},
-		{"trie-depthfirst", newTrieLex(b, d.subtlexLex), d.subtlexLex, true, 0, false, false, false, false},
-		{"trie-cap", newTrieLex(b, d.subtlexLex), d.subtlexLex, false, benchCap, false, false, false, false},
-		{"trie-cap-wholewide", newTrieLex(b, d.subtlexLex), d.subtlexLex, false, benchCap, false, false, true, false},
-		{"trie-cap-onewalk", newTrieLex(b, d.subtlexLex), d.subtlexLex, false, benchCap, false, false, false, true},
-		{"trie-cap-noparent", newTrieLex(b, d.subtlexLex), d.subtlexLex, false, benchCap, false, true, false, false},
-		{"trie-depthfirst-cap", newTrieLex(b, d.subtlexLex), d.subtlexLex, true, benchCap, false, false, false, false},
-		{"trie-cap-rowbound", newTrieLex(b, d.subtlexLex), d.subtlexLex, false, prevBenchCap, true, false, false, false},
+		{"flat", newFlatLex(d.subtlexLex), d.subtlexLex, false, 0, false, false, false, false, false},
+		{"vellum", newVellumLex(b, d.subtlexLex), d.subtlexLex, false, 0, false, false, false, false, false},
+		{"trie", newTrieLex(b, d.subtlexLex), d.subtlexLex, false, 0, false, false, false, false, false},
+		{"trie-depthfirst", newTrieLex(b, d.subtlexLex), d.subtlexLex, true, 0, false, false, false, false, false},
+		{"trie-cap", newTrieLex(b, d.subtlexLex), d.subtlexLex, false, benchCap, false, false, false, false, false},
+		{"trie-cap-wholewide", newTrieLex(b, d.subtlexLex), d.subtlexLex, false, benchCap, false, false, true, false, false},
+		{"trie-cap-onewalk", newTrieLex(b, d.subtlexLex), d.subtlexLex, false, benchCap, false, false, false, true, false},
+		{"trie-cap-midwhole", newTrieLex(b, d.subtlexLex), d.subtlexLex, false, benchCap, false, false, false, false, true},
+		{"trie-cap-noparent", newTrieLex(b, d.subtlexLex), d.subtlexLex, false, benchCap, false, true, false, false, false},
+		{"trie-depthfirst-cap", newTrieLex(b, d.subtlexLex), d.subtlexLex, true, benchCap, false, false, false, false, false},
+		{"trie-cap-rowbound", newTrieLex(b, d.subtlexLex), d.subtlexLex, false, prevBenchCap, true, false, false, false, false},
 	}
 	for _, l := range lexicons {
 		b.Run(l.name, func(b *testing.B) {
@@ -86,6 +91,7 @@ func BenchmarkCorrect8(b *testing.B) {
 			c.noParent = l.noParent
 			c.fullWide = l.fullWide
 			c.oneWalk = l.oneWalk
+			c.midWhole = l.midWhole
 			if l.rowBound {
 				c.below, c.capRows = nil, false
 			}
@@ -207,7 +213,10 @@ func BenchmarkWidePass(b *testing.B) {
 // or below the median: the words that set the median latency, for
 // profiling them apart from the long tail. It reports the mean time per
 // word and the typed-word setup alone (prepare) per word, and the words
-// taken and their most rows.
+// taken and their most rows. The rows are counted with the previous
+// passes (midWhole): the keys' pass computes few weighted rows and does
+// not count its keys' walk, so by its rows the set would take 8 words
+// that reach it (round 16) instead of the one reaching the middle pass.
 func BenchmarkCorrect8Easy(b *testing.B) {
 	d := corpus(b)
 	lex := newTrieLex(b, d.subtlexLex)
@@ -217,9 +226,11 @@ func BenchmarkCorrect8Easy(b *testing.B) {
 	}
 	all := eightLetterTyped(b)
 	rows := make([]int, len(all))
+	c.midWhole = true // choose the words by the previous passes' rows
 	for i, w := range all {
 		_, rows[i] = c.work(w)
 	}
+	c.midWhole = false
 	sorted := slices.Clone(rows)
 	slices.Sort(sorted)
 	med := sorted[len(sorted)/2]
@@ -367,7 +378,9 @@ func reportPaired(b *testing.B, names [2]string, best [2][]time.Duration) {
 // the share of words reaching each pass, rows and time per pass (median
 // over the words that run it), and the share of the time of words ending
 // in a wider pass that goes to the narrower passes' prefixes, which the
-// wider pass walks again. Run it for a few rounds: -benchtime=3x.
+// wider pass walks again. The second pass is the keys' pass (keysPass)
+// for the words that get it, which then reach no third pass. Run it for
+// a few rounds: -benchtime=3x.
 func BenchmarkPasses(b *testing.B) {
 	c, typed := cappedCorrector(b)
 	runtime.LockOSThread()
@@ -408,16 +421,24 @@ func BenchmarkPasses(b *testing.B) {
 					break
 				}
 				last = budget
+				keys := p == 1 && c.keysAfterNarrow(widest)
+				if keys {
+					budget = min(widest, o.MaxCost)
+				}
 				t0 := threadClock()
 				s.reset(c.ch, c.lex, w, float32(budget), len(w)+maxExtra)
 				s.limit = o.MaxStates - used
 				s.rk = &sc.rk
-				c.runPass(s, w, p, budget, true)
+				if keys {
+					c.keysPass(s, &sc.rk, w)
+				} else {
+					c.runPass(s, w, p, budget, true)
+				}
 				per[i].cpu[p] = min(per[i].cpu[p], threadClock()-t0)
 				per[i].rows[p] = s.spent()
 				per[i].last = p
 				used += s.spent()
-				if budget >= min(widest, o.MaxCost) || len(sc.rk.top) > 0 && sc.rk.top[0].Score >= c.passRef(p) {
+				if keys || budget >= min(widest, o.MaxCost) || len(sc.rk.top) > 0 && sc.rk.top[0].Score >= c.passRef(p) {
 					break
 				}
 			}

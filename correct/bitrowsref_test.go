@@ -25,7 +25,7 @@ type refSkelFilter struct {
 // maxDepth bytes.
 func (f *refSkelFilter) reset(typed string, maxDepth int) {
 	f.buf = appendSkeleton(f.buf[:0], typed)
-	f.skel.reset(f.buf, maxDepth, skelEdits)
+	f.skel.reset(f.buf, maxDepth, skelEditsFor(len(f.buf)))
 	f.tw = append(f.tw[:0], typed...)
 	f.plain.reset(f.tw, maxDepth, plainEdits)
 	f.k = grow(f.k, maxDepth+1)

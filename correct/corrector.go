@@ -202,13 +202,25 @@ type Corrector struct {
 	// one along its words (keywalk.go), for comparison in tests and
 	// benchmarks.
 	oneWalk bool
+	// midWhole selects the previous passes after the narrow one: the
+	// middle pass over the whole lexicon, then the widest pass, instead
+	// of the keys' pass (keysPass), for comparison in tests and
+	// benchmarks.
+	midWhole bool
 }
 
 // firstPass is the cost budget of the first, narrow search pass: about one
-// ordinary edit.
+// ordinary edit. On the 8-letter misspellings of BenchmarkCorrect8 80 %
+// of the words end after it; the rest get the keys' pass (keysPass),
+// whose keys' walk is the dearest part of the slowest words (about
+// 0.5-0.75 ms of their 1.0-1.4 ms CPU, narrow pass 0.07-0.18 ms, the
+// weighted rows along the keys' words 0.25-0.45 ms; measured, this
+// project; BENCHMARKS.md, round 16).
 const firstPass = 6
 
-// secondPass is the budget of the middle pass.
+// secondPass is the budget of the middle pass: of the whole lexicon for a
+// rare listed word (rarePass), and otherwise the share of the keys' pass
+// (keysPass) that is ranked first.
 const secondPass = 9
 
 // rarePass is the widest pass a rare listed word gets (Options.RareLogProb):
@@ -242,7 +254,9 @@ const passRefLogProb = -16
 // middle-pass candidate (0.9 % going wide) lost 8. The engine's CV
 // (root TestCorrectDevCrossValidated) went from 92.87 / 97.05 % to
 // 92.87 / 97.01 % (one word of top-3). Measured, this project;
-// BENCHMARKS.md, round 7.
+// BENCHMARKS.md, round 7. Since round 16 it is the score the keys'
+// pass's words within secondPass must reach for its dearer words not to
+// be ranked (keysPass); the walk itself is no longer skipped.
 const midPassRefLogProb = -17
 
 // passRef returns the score (LMWeight-scaled) the best candidate of pass
@@ -345,10 +359,13 @@ func (c *Corrector) Correct(typed string, context []uint32, max int, dst []Candi
 	}
 	// Words within the cost budget, searched in widening passes: most
 	// misspellings are one cheap edit away, and a wider pass runs only when
-	// the narrower one found nothing convincing. Under a state cap the
-	// middle pass matters: a complete pass at 9 nats beats a full-budget
-	// pass cut short (on the development list with the engine's cap,
-	// dropping it cost 0.6 point of top-1 and 0.7 of top-3).
+	// the narrower one found nothing convincing. After the narrow pass an
+	// unknown word gets the keys' pass (keysPass), which ranks the words
+	// within 9 nats first and the dearer ones only when those found
+	// nothing convincing. (A full-budget pass over the whole lexicon cut
+	// short by the engine's cap did worse than a complete middle pass:
+	// dropping the middle pass then cost 0.6 point of top-1 and 0.7 of
+	// top-3.)
 	s := &sc.s
 	rk := &sc.rk
 	rk.start(c, context, typedID, inLex, keepN, sc.top)
@@ -464,7 +481,9 @@ func insertTop(top []Candidate, c Candidate, n int) []Candidate {
 // searchUpTo finds the candidates of lower in passes of growing budget up
 // to widest (at most Options.MaxCost), the cap shared by the passes; it
 // returns the work the cap counted (see capRows) and the number of states
-// entered. Each pass is walked by runPass.
+// entered. After the narrow pass, a word searched beyond the middle
+// budget gets the keys' pass (keysPass), the last; other passes are
+// walked by runPass.
 func (c *Corrector) searchUpTo(s *search, rk *ranker, lower string, widest float64, bestFirst bool) (used, states int) {
 	o := &c.opts
 	last := 0.0
@@ -477,6 +496,10 @@ func (c *Corrector) searchUpTo(s *search, rk *ranker, lower string, widest float
 		if o.MaxStates > 0 && used >= o.MaxStates {
 			break
 		}
+		keys := i == 1 && c.keysAfterNarrow(widest)
+		if keys {
+			budget = min(widest, o.MaxCost)
+		}
 		s.below = c.below
 		s.capRows = c.capRows
 		s.noParent = c.noParent
@@ -485,22 +508,74 @@ func (c *Corrector) searchUpTo(s *search, rk *ranker, lower string, widest float
 			s.limit = o.MaxStates - used
 		}
 		s.rk = rk
-		c.runPass(s, lower, i, budget, bestFirst)
+		if keys {
+			c.keysPass(s, rk, lower)
+		} else {
+			c.runPass(s, lower, i, budget, bestFirst)
+		}
 		used += s.spent()
 		states += s.visited
-		if budget >= min(widest, o.MaxCost) || len(rk.top) > 0 && rk.top[0].Score >= c.passRef(i) {
+		if keys || budget >= min(widest, o.MaxCost) || len(rk.top) > 0 && rk.top[0].Score >= c.passRef(i) {
 			break
 		}
 	}
 	return used, states
 }
 
+// keysAfterNarrow reports whether a word searched up to widest gets the
+// keys' pass (keysPass) after the narrow one, rather than the middle
+// pass over the whole lexicon and then the widest pass (a rare listed
+// word, whose widest pass is the middle one; a budget not above
+// secondPass; or midWhole or fullWide set).
+func (c *Corrector) keysAfterNarrow(widest float64) bool {
+	return !c.midWhole && !c.fullWide && min(widest, c.opts.MaxCost) > secondPass
+}
+
+// keysPass is the pass after the narrow one for a word that may be
+// searched up to the full budget: the middle and widest passes in one
+// walk, over the words skelFilter keeps (walkKeys) within s's budget
+// (the widest), whose hits are ranked in two steps as the two passes
+// would: first those within secondPass, and then, unless the best
+// candidate so far reaches passRef(1), the rest. The keys are built and
+// walked once, not the whole lexicon at secondPass and then the keys at
+// the full budget; the middle pass's words outside the keys are lost.
+// On corpora/misspellings-dev.tsv, package cross-validation (each fold's
+// error model trained on the others) lost 1 word of top-3 of 2,173
+// and 2 of top-1 with 5 folds (2,112 to 2,111, 2,029 to 2,027) and 2 and
+// 2 with 10 folds; the engine's (keyloom eval --folds) 1 and 1 with 5
+// folds and 0 and 1 with 10. On the 8-letter misspellings of
+// BenchmarkCorrect8 (SUBTLEX-US trie, engine cap) CPU p99 fell by about
+// 30 %, from 1.7-1.9 to 1.1-1.4 ms, the median unchanged (measured, this
+// project; BENCHMARKS.md, round 16). Before it, the slowest 5 % of those
+// words (16 of 305) had all reached the widest pass, which added a top-3
+// word for 9 or 10 of them, while 3 of their top-3 candidates (for 2
+// words) came from the middle pass and were outside the keys.
+func (c *Corrector) keysPass(s *search, rk *ranker, lower string) {
+	s.rk = nil // the hits are ranked below, in two steps
+	c.walkKeys(s, lower)
+	s.rk = rk
+	for _, h := range s.hits {
+		if h.cost <= secondPass {
+			rk.add(h.id, h.cost)
+		}
+	}
+	if len(rk.top) > 0 && rk.top[0].Score >= c.passRef(1) {
+		return
+	}
+	for _, h := range s.hits {
+		if h.cost > secondPass {
+			rk.add(h.id, h.cost)
+		}
+	}
+}
+
 // runPass walks pass i (0 for the narrow one) of searchUpTo with s, reset
-// for lower and the pass's budget. The passes walk depth-first. The third,
-// widest pass follows only the words skelFilter keeps (skeleton.go),
-// found first by the keys' own walk (keywalk.go; with oneWalk, or
-// without the letters-below table, or when that walk gives up, the keys
-// filter the weighted walk instead, with the same result): on
+// for lower and the pass's budget: the narrow pass, the middle pass over
+// the whole lexicon of a rare listed word, and, with midWhole (the
+// previous passes; otherwise keysPass stands for both), the middle pass
+// over the whole lexicon and the widest pass. The passes walk
+// depth-first. The third, widest pass follows only the words skelFilter
+// keeps (skeleton.go; walkKeys): on
 // the 8-letter misspellings of BenchmarkCorrect8 it examined at most
 // 5,694 prefixes (median 1,976) instead of the whole lexicon's 17,997
 // (10,675); on corpora/misspellings-dev.tsv (package 5-fold
@@ -516,29 +591,37 @@ func (c *Corrector) searchUpTo(s *search, rk *ranker, lower string, widest float
 func (c *Corrector) runPass(s *search, lower string, i int, budget float64, bestFirst bool) {
 	switch {
 	case i == 2 && !c.fullWide:
-		s.skf.reset(lower, s.maxDepth)
-		if s.below != nil && !c.oneWalk && s.kwt.build(&s.skf, s.below, s.maxDepth) {
-			// The keys first, then the weighted rows along their words
-			// only (keywalk.go).
-			if len(s.kwt.nodes) == 0 {
-				return // no word the keys keep
-			}
-			s.kt = &s.kwt
-			s.ktAt = grow(s.ktAt, s.maxDepth+1)
-			s.ktAt[0] = 0
-			s.run()
-			s.kt = nil
-			return
-		}
-		s.skf.reset(lower, s.maxDepth)
-		s.skel = &s.skf
-		s.run()
-		s.skel = nil
+		c.walkKeys(s, lower)
 	case bestFirst && budget >= c.opts.MaxCost:
 		s.runBest()
 	default:
 		s.run()
 	}
+}
+
+// walkKeys walks s, reset for lower and a budget, over the words
+// skelFilter keeps (skeleton.go): found first by the keys' own walk
+// (keywalk.go), then the weighted rows along their words only; with
+// oneWalk, or without the letters-below table, or when the keys' walk
+// gives up, the keys filter the weighted walk instead, with the same
+// result.
+func (c *Corrector) walkKeys(s *search, lower string) {
+	s.skf.reset(lower, s.maxDepth)
+	if s.below != nil && !c.oneWalk && s.kwt.build(&s.skf, s.below, s.maxDepth) {
+		if len(s.kwt.nodes) == 0 {
+			return // no word the keys keep
+		}
+		s.kt = &s.kwt
+		s.ktAt = grow(s.ktAt, s.maxDepth+1)
+		s.ktAt[0] = 0
+		s.run()
+		s.kt = nil
+		return
+	}
+	s.skf.reset(lower, s.maxDepth)
+	s.skel = &s.skf
+	s.run()
+	s.skel = nil
 }
 
 // widestPass returns the budget of the widest pass Correct searches a

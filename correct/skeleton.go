@@ -15,7 +15,9 @@ package correct
 // BENCHMARKS.md). So the widest pass looks only there (skelFilter): keys
 // of a different kind from the weighted channel, cheap to check on each
 // prefix of the walk, which computes the channel's exact cost of every
-// word they keep.
+// word they keep. Since round 16 the middle budget's words of an unknown
+// word are searched under the same keys, in the same walk (keysPass,
+// corrector.go).
 
 // The consonant skeleton of a word: its bytes without the vowels a e i o
 // u, y, h and w, and with a byte equal to the skeleton's previous one left
@@ -79,6 +81,28 @@ type skelFilter struct {
 // (measured, this project; BENCHMARKS.md).
 const skelEdits = 1
 
+// shortSkeleton is the longest typed skeleton that a kept word's skeleton
+// must match exactly (no edit): one edit from a skeleton of one or two
+// consonants lets through most words of one to three consonants
+// ("harrases" → rs, "wherease" → rs, "athenean" → tn), which made them the
+// slowest words of the keys' walk (about 15,000 children stepped into and
+// a 7,400-node trie for "harrases"). With exact skeletons there, package
+// cross-validation on corpora/misspellings-dev.tsv (5 and 10 folds) and
+// the engine's (5 and 10 folds) found the same top-1 and top-3 counts as
+// with one edit; 3 (skeletons of three consonants too) lost one word of
+// top-3 in each (measured, this project; BENCHMARKS.md, round 16).
+const shortSkeleton = 2
+
+// skelEditsFor returns how many plain edits from a typed skeleton of n
+// bytes a kept word's skeleton may be: skelEdits, or none for a skeleton
+// of at most shortSkeleton bytes.
+func skelEditsFor(n int) uint8 {
+	if n <= shortSkeleton {
+		return 0
+	}
+	return skelEdits
+}
+
 // plainEdits is how many plain edits from the typed word a word the
 // widest pass keeps may be, whatever its skeleton: two keyboard slips
 // (two neighbouring keys hit, say) can take a short word's skeleton two
@@ -93,7 +117,7 @@ const plainEdits = 2
 // maxDepth bytes.
 func (f *skelFilter) reset(typed string, maxDepth int) {
 	f.buf = appendSkeleton(f.buf[:0], typed)
-	f.skel.reset(f.buf, maxDepth, skelEdits)
+	f.skel.reset(f.buf, maxDepth, skelEditsFor(len(f.buf)))
 	f.tw = append(f.tw[:0], typed...)
 	f.plain.reset(f.tw, maxDepth, plainEdits)
 	f.k = grow(f.k, maxDepth+1)

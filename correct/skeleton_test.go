@@ -33,11 +33,12 @@ func TestAppendSkeleton(t *testing.T) {
 // optimal-string-alignment distance of unitChannel (whose distances
 // TestUnitDistanceMatchesLevenshtein checks against
 // github.com/agnivade/levenshtein): the words whose skeleton is within
-// skelEdits of the typed word's, or that are within plainEdits of it.
+// skelEditsFor (by its length) of the typed word's, or that are within
+// plainEdits of it.
 func skelKeeps(typed, word string) bool {
 	unit := unitChannel(true)
 	ts, ws := appendSkeleton(nil, typed), appendSkeleton(nil, word)
-	return unit.distance(string(ts), string(ws)) <= skelEdits || unit.distance(typed, word) <= plainEdits
+	return unit.distance(string(ts), string(ws)) <= float32(skelEditsFor(len(ts))) || unit.distance(typed, word) <= plainEdits
 }
 
 // TestSkeletonPassKeepsWords checks that the widest pass restricted by
@@ -106,6 +107,33 @@ func TestSkeletonPassKeepsWords(t *testing.T) {
 			t.Logf("%d words kept; rows %d with the filter, %d without", kept, rowsSkel, rowsWhole)
 			if kept == 0 || rowsSkel >= rowsWhole {
 				t.Errorf("kept %d words, rows %d with the filter and %d without: want some words and fewer rows", kept, rowsSkel, rowsWhole)
+			}
+		})
+	}
+}
+
+// TestSkeletonEditsByLength checks the skeleton key's edit allowance by
+// the typed skeleton's length (skelEditsFor): none for a skeleton of at
+// most shortSkeleton bytes, skelEdits above. The skeletons are worked out
+// by hand from the definition (vowels, h, w and y dropped, repeats
+// merged).
+func TestSkeletonEditsByLength(t *testing.T) {
+	tests := []struct {
+		name, typed, skel string
+		edits             uint8
+	}{
+		{"h and repeats dropped", "harrases", "rs", 0},
+		{"two consonants", "athenean", "tn", 0},
+		{"no consonant", "ayeee", "", 0},
+		{"three consonants", "paralely", "prl", 1},
+		{"four consonants", "tornadoe", "trnd", 1},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			var f skelFilter
+			f.reset(tt.typed, 20)
+			if string(f.buf) != tt.skel || f.skel.maxd != tt.edits {
+				t.Errorf("%q: skeleton %q with %d edits, want %q with %d", tt.typed, f.buf, f.skel.maxd, tt.skel, tt.edits)
 			}
 		})
 	}
