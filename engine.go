@@ -76,12 +76,12 @@ const DefaultAutoApplyConfidence = 0.8
 // 93.24/96.96 % at 20,000 and 93.28/97.01 % at 25,000, the same as with no
 // cap (measured while the widest pass still walked the whole lexicon).
 // The engine's figures on the development list itself hide this (its
-// error model was trained there: no loss down to 3,000). Since the widest
-// pass follows only spellings near the typed word's consonant skeleton or
+// error model was trained there: no loss down to 3,000). Since the search
+// after the narrow pass follows only spellings near the typed word's consonant skeleton or
 // within two plain edits (correct/skeleton.go), the 8-letter
 // misspellings of the package's benchmark (74k-word lexicon) examine at
 // most about 9,000 prefixes, so the cap now bounds only rarer, longer
-// words; the slowest corrections take about 3 ms on this project's
+// words; the slowest corrections take about 2 ms on this project's
 // machine (BENCHMARKS.md).
 const DefaultCorrectionStates = 25000
 
