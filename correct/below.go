@@ -70,7 +70,14 @@ type belowTable struct {
 	eb    []byte      // edge bytes, by node and in the lexicon's order
 	en    []uint32    // edge targets (node indices)
 	eo    []uint32    // edge outputs, modulo 2³² (word IDs are 32-bit)
-	rest  []restLens  // by node: the lengths of the rests below (restlen.go)
+	// ebp holds, by edge, the letters below its target together with the
+	// class of its own byte: the set parentBound prices the edge's child
+	// with, kept beside the edge so that a child the bound prunes is
+	// priced without reading its target's node (a cache miss per child
+	// that cost about 1 % of the median 8-letter misspelling, measured,
+	// this project; BENCHMARKS.md, round 16).
+	ebp  []uint32
+	rest []restLens // by node: the lengths of the rests below (restlen.go)
 	// ascending reports that every state's edges are listed by rising
 	// byte, so that the edges of a state whose edges are all letters lie
 	// in the order of their classes (pickLetters, search.go).
@@ -131,12 +138,14 @@ func (t *belowTable) final(i int) (bool, uint32) {
 // 2.4 MB table, and raised the peak RSS of a one-shot correction by about
 // 6 MB, measured, this project; BENCHMARKS.md). Cost: two edge listings
 // and one Final per state; 19 bytes of table per state (3 of them the
-// rest lengths, restlen.go) and 9 per edge;
+// rest lengths, restlen.go) and 13 per edge (4 of them the set
+// parentBound prices the edge's child with, ebp);
 // while building, 4 bytes per state (8 when a state does not fit 32 bits,
 // which costs a third walk) and a hash table of 4 bytes a slot, at most
 // half full (for the 74k-word SUBTLEX-US lexicon, 34,656 states and
-// 76,264 edges: a 1.24 MB table and 0.1 MB of rest lengths; before the
-// rest lengths, 0.75 MB more while building and 2.9 MB allocated in all).
+// 76,264 edges: a 1.24 MB table, 0.31 MB of ebp and 0.1 MB of rest
+// lengths; before the rest lengths, 0.75 MB more while building and
+// 2.9 MB allocated in all).
 func newBelowTable(lex Lexicon, el EdgeLister) *belowTable {
 	// The states of a lexicon are mostly offsets that fit 32 bits: a
 	// list of those takes half the memory.
@@ -221,6 +230,7 @@ func buildBelow[S lexState](lex Lexicon, el EdgeLister) (*belowTable, bool) {
 	}
 	t.nodes[len(states)].lo = uint32(edges)
 	fillSets(t, states)
+	fillParentSets(t)
 	fillRest(t)
 	return t, true
 }
@@ -320,6 +330,14 @@ func fillSets[S lexState](t *belowTable, states []S) {
 		return below
 	}
 	walk(0, 0)
+}
+
+// fillParentSets fills t.ebp from the edges and the nodes' sets.
+func fillParentSets(t *belowTable) {
+	t.ebp = make([]uint32, len(t.eb))
+	for k, b := range t.eb {
+		t.ebp[k] = t.nodes[t.en[k]].sets.below() | belowBit(b)
+	}
 }
 
 // hopt is one way of paying for a typed byte in the letters-below bound,

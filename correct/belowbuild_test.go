@@ -142,6 +142,18 @@ func checkSameTable(t *testing.T, got, want *belowTable) {
 	if !slices.Equal(got.eo, want.eo) {
 		t.Errorf("edge outputs differ (%d, want %d)", len(got.eo), len(want.eo))
 	}
+	// The set parentBound prices an edge's child with, by its definition
+	// from the reference's nodes and edges.
+	if len(got.ebp) != len(want.eb) || cap(got.ebp) != len(got.ebp) {
+		t.Errorf("ebp: %d entries (cap %d), want %d", len(got.ebp), cap(got.ebp), len(want.eb))
+	} else {
+		for k, b := range want.eb {
+			if v := want.nodes[want.en[k]].sets.below() | belowBit(b); got.ebp[k] != v {
+				t.Errorf("ebp[%d] = %b, want %b (the letters below node %d and %q)", k, got.ebp[k], v, want.en[k], b)
+				break
+			}
+		}
+	}
 	if cap(got.nodes) != len(got.nodes) || cap(got.eb) != len(got.eb) || cap(got.en) != len(got.en) || cap(got.eo) != len(got.eo) {
 		t.Errorf("spare capacity: nodes %d/%d, eb %d/%d, en %d/%d, eo %d/%d", len(got.nodes), cap(got.nodes),
 			len(got.eb), cap(got.eb), len(got.en), cap(got.en), len(got.eo), cap(got.eo))

@@ -61,24 +61,30 @@ type costOpt struct {
 // keyboard-slip model and the spelling-error model combined by taking the
 // cheaper explanation of each edit. It is immutable after newChannel.
 type channel struct {
-	sub       [256][256]float32 // sub[typed][intended], inf on the diagonal
-	del       [256]float32      // intended byte left out
-	delDbl    float32           // intended byte left out after the same byte
-	insBase   float32           // an extra typed byte, no context
-	insDbl    float32           // an extra typed byte repeating a neighbour
-	insNear   [256][256]float32 // insNear[extra][neighbour] for key slips
-	trans     float32
-	lead      float32           // added to spelling edits of the first letter (leadCost)
-	slipSub   [128][128]float32 // keyboard-slip part of sub, ASCII only
-	slipDel   float32           // keyboard-slip part of del
-	slipRep   float32           // keyboard-slip part of insDbl
-	rules     []chRule
-	byBeta    map[string][]int32
-	byByte    [256][]int32   // byBeta's lists of the one-byte typed sides, by byte
-	betaLens  []int          // distinct β lengths, ascending
-	cheapSub  [256][]costOpt // per typed byte: intended bytes by sub cost
-	cheapDel  []costOpt      // intended bytes by deletion cost
-	minEdit   float32        // cheapest non-match edit cost
+	sub      [256][256]float32 // sub[typed][intended], inf on the diagonal
+	del      [256]float32      // intended byte left out
+	delDbl   float32           // intended byte left out after the same byte
+	insBase  float32           // an extra typed byte, no context
+	insDbl   float32           // an extra typed byte repeating a neighbour
+	insNear  [256][256]float32 // insNear[extra][neighbour] for key slips
+	trans    float32
+	lead     float32           // added to spelling edits of the first letter (leadCost)
+	slipSub  [128][128]float32 // keyboard-slip part of sub, ASCII only
+	slipDel  float32           // keyboard-slip part of del
+	slipRep  float32           // keyboard-slip part of insDbl
+	rules    []chRule
+	byBeta   map[string][]int32
+	byByte   [256][]int32   // byBeta's lists of the one-byte typed sides, by byte
+	betaLens []int          // distinct β lengths, ascending
+	cheapSub [256][]costOpt // per typed byte: intended bytes by sub cost
+	cheapDel []costOpt      // intended bytes by deletion cost
+	// delCost[i] is cheapDel[i].cost and delUpTo[i] the set of the bytes
+	// of cheapDel[:i+1], so that the search's set of bytes worth trying
+	// (allowed) takes the deletions that fit its budget by a scan of the
+	// costs and one union (fillDelUpTo).
+	delCost   []float32
+	delUpTo   [][4]uint64
+	minEdit   float32 // cheapest non-match edit cost
 	maxAlpha  int
 	affix     float32 // a stem typed with another ending (family.go); inf: off
 	irregular float32 // a verb's regular past for its irregular form (irregular.go); inf: off
@@ -236,7 +242,19 @@ func newChannel(kb *Keyboard, em *ErrorModel) *channel {
 	}
 	slices.SortStableFunc(ch.cheapDel, byCost)
 	ch.minEdit = min(ch.minEdit, ch.cheapDel[0].cost)
+	ch.fillDelUpTo()
 	return ch
+}
+
+// fillDelUpTo fills delCost and delUpTo from cheapDel.
+func (ch *channel) fillDelUpTo() {
+	ch.delCost = make([]float32, len(ch.cheapDel))
+	ch.delUpTo = make([][4]uint64, len(ch.cheapDel))
+	var m [4]uint64
+	for i, o := range ch.cheapDel {
+		m[o.c>>6] |= 1 << (o.c & 63)
+		ch.delCost[i], ch.delUpTo[i] = o.cost, m
+	}
 }
 
 // groupByBeta indexes rules by their typed side β: each list holds the
@@ -313,6 +331,7 @@ func unitChannel(transpose bool) *channel {
 	for _, c := range alphabet {
 		ch.cheapDel = append(ch.cheapDel, costOpt{c, 1})
 	}
+	ch.fillDelUpTo()
 	ch.minEdit = 1
 	return ch
 }

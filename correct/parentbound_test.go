@@ -61,3 +61,61 @@ func TestParentBoundKeepsWords(t *testing.T) {
 		})
 	}
 }
+
+// TestVisitPickedMatchesScan checks the depth-first walk's loop over the
+// picked letter edges of a state (visitPicked, with extendBelow and the
+// sets read beside the edges, belowTable.ebp) against its general loop,
+// which reads every edge and takes the child's sets from its node: the
+// same words at the same costs, in the same order, and the same work
+// (states entered, rows computed, children examined), at each pass
+// budget, for words of the development misspellings list
+// (corpora/misspellings-dev.tsv) and random letter strings over the
+// SUBTLEX-US lexicon (corpora/subtlex-us-word-counts.tsv). A cross-check
+// of two code paths of the project, no external source; the general loop
+// is checked against the row recurrence by TestBelowBoundKeepsWords and
+// TestParentBoundKeepsWords.
+func TestVisitPickedMatchesScan(t *testing.T) {
+	c, lex := subtlexTrieCorrector(t)
+	if !c.below.ascending {
+		t.Fatal("the SUBTLEX-US table does not list edges by rising byte: visitPicked would not run")
+	}
+	typed := typedSample(t, 7, 250, 16, 30, 3, 10)
+	tests := []struct {
+		name     string
+		budget   float32
+		noParent bool
+	}{
+		{"narrow", firstPass, false},
+		{"middle", secondPass, false},
+		{"full", 13, false},
+		{"narrow, no parentBound", firstPass, true},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			found, rows := 0, 0
+			walk := func(scan bool, w string) *search {
+				t.Helper()
+				s := &search{below: c.below, scanEdges: scan, noParent: tt.noParent}
+				s.reset(c.ch, lex, w, tt.budget, len(w)+maxExtra)
+				s.run()
+				return s
+			}
+			for _, w := range typed {
+				scan, picked := walk(true, w), walk(false, w)
+				if fmt.Sprint(picked.hits) != fmt.Sprint(scan.hits) {
+					t.Errorf("%q: found %d words with visitPicked, %d reading every edge\n got %v\nwant %v", w, len(picked.hits), len(scan.hits), picked.hits, scan.hits)
+				}
+				if picked.visited != scan.visited || picked.rowsDone != scan.rowsDone || picked.examined != scan.examined {
+					t.Errorf("%q: states, rows, examined %d, %d, %d with visitPicked; %d, %d, %d reading every edge", w,
+						picked.visited, picked.rowsDone, picked.examined, scan.visited, scan.rowsDone, scan.examined)
+				}
+				found += len(scan.hits)
+				rows += scan.rowsDone
+			}
+			if found < 300 {
+				t.Errorf("%d words found in all; the comparison is too thin", found)
+			}
+			t.Logf("%d words found, %d rows", found, rows)
+		})
+	}
+}

@@ -82,7 +82,6 @@ type search struct {
 	maxDepth  int
 	rows      []float32
 	mins      []float32
-	extra     []float32
 	path      []byte
 	ins       []float32
 	subC      []float32       // subC[c*n+j]: intended c typed as t[j]; 0 when equal (filled per byte c by subRow)
@@ -97,6 +96,7 @@ type search struct {
 	startEv   []startEvent    // prepareStarts' first starts of each first byte, by cost
 	startPos  []startEvent    // the same by typed position
 	startSeen [256]uint64     // prepareStarts' scratch, zero between calls
+	startMin  []float32       // startMin[x]: the cheapest rule starting at typed position x (inf if none)
 	first     [256][]ruleHead // rules by first intended byte, by cost
 	usedFirst []byte
 	act       []partial // partial rule matches, stacked by depth
@@ -166,6 +166,9 @@ type search struct {
 	// noParent turns off the check of parentBound (parentbound.go) before
 	// a child's row is computed, for comparison in tests and benchmarks.
 	noParent bool
+	// scanEdges makes the depth-first walk read every edge in its general
+	// loop instead of visitPicked, for comparison in tests.
+	scanEdges bool
 }
 
 // plainByte marks the bytes the search tries as intended letters wherever
@@ -210,7 +213,6 @@ func (s *search) reset(ch *channel, lex Lexicon, typed string, budget float32, m
 	}
 	s.rows = s.rows[:need]
 	s.mins = grow(s.mins, s.maxDepth+1)
-	s.extra = grow(s.extra, s.w)
 	if cap(s.path) < s.maxDepth+1 {
 		s.path = make([]byte, s.maxDepth+1)
 	}
@@ -514,27 +516,18 @@ func (s *search) visit(d int, state int, acc uint64) {
 	}
 	// With the set of bytes worth trying known, no filter and a state
 	// whose edges are all letters, the loop goes straight to the edges of
-	// the letters in the set (pickLetters) instead of reading every edge:
-	// at the median 8-letter misspelling a third of the edges the narrow
-	// pass looked at (about 460 of 1,400) pass the set (measured, this
-	// project; BENCHMARKS.md, round 12).
-	var pick, nx uint32
-	fast := haveSet && g != nil && g.ascending && s.skel == nil && s.kt == nil
-	if fast {
-		pick, nx, fast = pickLetters(g.nodes[state].sets.next(), &set)
-	}
-	for x := lo; ; x++ {
-		k := x
-		if fast {
-			if pick == 0 {
-				break
-			}
-			b := bitIndex(pick)
-			pick &= pick - 1
-			k = lo + bits.OnesCount32(nx&(1<<b-1))
-		} else if x >= hi {
-			break
+	// the letters in the set (pickLetters, visitPicked) instead of reading
+	// every edge: at the median 8-letter misspelling a third of the edges
+	// the narrow pass looked at (about 460 of 1,400) pass the set
+	// (measured, this project; BENCHMARKS.md, round 12).
+	if haveSet && g != nil && g.ascending && s.skel == nil && s.kt == nil && !s.scanEdges {
+		if pick, nx, ok := pickLetters(g.nodes[state].sets.next(), &set); ok {
+			s.visitPicked(d, lo, pick, nx, acc, prev, last, parts, pn, rs)
+			return
 		}
+	}
+	for x := lo; x < hi; x++ {
+		k := x
 		if s.kt != nil {
 			e := s.kt.edges[x]
 			k = int(e.k)
@@ -558,7 +551,7 @@ func (s *search) visit(d int, state int, acc uint64) {
 		if s.skel != nil && !s.skel.step(d, c, s.belowOf(next), s.restOf(next)) {
 			continue // no word below is one the filter keeps
 		}
-		if g != nil && !s.noParent && s.parentBound(s.rows[d*w:(d+1)*w], prev, c, last, parts, g.nodes[next].sets.below()|belowBit(c)) > budget {
+		if g != nil && !s.noParent && s.parentBound(s.rows[d*w:(d+1)*w], prev, c, last, parts, g.ebp[k]) > budget {
 			s.examined++ // counted for the cap as when its row was computed (parentbound.go)
 			continue
 		}
@@ -575,6 +568,46 @@ func (s *search) visit(d int, state int, acc uint64) {
 		}
 		if keep {
 			s.visit(d+1, next, acc+out)
+		}
+		s.act = s.act[:base]
+	}
+}
+
+// visitPicked is visit's loop over the children of a state of the
+// letters-below table whose edges are all letters, at depth d, reached
+// with output sum acc, with no filter: pick holds the classes of the
+// letters worth trying, nx those of the state's edges, which start at
+// edge lo (pickLetters); prev, last, parts, pn and rs are the prefix's
+// parent row, last byte, partial rule matches, partialNext set and
+// rule-start set. It does what visit's general loop does for those
+// edges, in the same order, with what only that state can need: the
+// byte is the letter of the picked class, the set parentBound prices is
+// read beside the edge (belowTable.ebp), the edge's target and output
+// only for the children it keeps, and the rules are extended by
+// extendBelow. Together about 4–5 % less time for the median 8-letter
+// misspelling than the general loop (measured, this project;
+// BENCHMARKS.md, round 16).
+func (s *search) visitPicked(d, lo int, pick, nx uint32, acc uint64, prev []float32, last byte, parts []partial, pn *[4]uint64, rs *startSet) {
+	g, w, budget := s.below, s.w, s.budget
+	row := s.rows[d*w : (d+1)*w]
+	for ; pick != 0; pick &= pick - 1 {
+		b := bitIndex(pick)
+		k := lo + bits.OnesCount32(nx&(1<<b-1))
+		c := 'a' + byte(b)
+		s.path[d] = c
+		if !s.noParent && s.parentBound(row, prev, c, last, parts, g.ebp[k]) > budget {
+			s.examined++ // counted for the cap as when its row was computed (parentbound.go)
+			continue
+		}
+		next := int(g.en[k])
+		sets := g.nodes[next].sets
+		base := s.extendBelow(d, c, sets, pn, rs)
+		m := s.computeRowDepth(d + 1)
+		// The child is kept as in visit: within budget or with a rule
+		// under way, and within budget by childBound.
+		if (m <= budget || s.actEnd[d+1] > base) &&
+			s.childBound(s.rows[(d+1)*w:(d+2)*w], row, m, c, s.act[base:s.actEnd[d+1]], sets) <= budget {
+			s.visit(d+1, next, acc+uint64(g.eo[k]))
 		}
 		s.act = s.act[:base]
 	}
@@ -665,19 +698,33 @@ func (s *search) allowed(row, prev []float32, m float32, last byte, parts []part
 			add(o.c)
 		}
 	}
-	for _, o := range ch.cheapDel {
-		if m+o.cost > budget {
+	// The deletions that fit: a scan of their costs (by cost), then the
+	// union of their bytes (channel.delUpTo) instead of adding them one
+	// by one, about 1 % of the median 8-letter misspelling (measured,
+	// this project; BENCHMARKS.md, round 16).
+	nd := 0
+	for _, v := range ch.delCost {
+		if m+v > budget {
 			break
 		}
-		add(o.c)
+		nd++
+	}
+	if nd > 0 {
+		u := &ch.delUpTo[nd-1]
+		set[0] |= u[0]
+		set[1] |= u[1]
+		set[2] |= u[2]
+		set[3] |= u[3]
 	}
 	if prev != nil && m+ch.delDbl <= budget {
 		add(last)
 	}
 	if prev != nil && ch.trans < inf {
-		for j := 2; j <= s.n; j++ {
-			if last == s.t[j-1] && prev[j-2]+ch.trans <= budget {
-				add(s.t[j-2])
+		// Typed byte x (1 <= x < n) is last: t[x-1] and t[x] swapped.
+		for ps := s.pos[last] &^ 1; ps != 0; ps &= ps - 1 {
+			x := bitIndex64(ps)
+			if prev[x-1]+ch.trans <= budget {
+				add(s.t[x-1])
 			}
 		}
 	}
@@ -810,6 +857,68 @@ func (s *search) extend(lo, hi int, m float32, from int32, c byte) int {
 	return base
 }
 
+// extendBelow is advance for visitPicked: it extends the partial rule
+// matches of depth d by byte c into depth d+1, for a child whose state
+// has the given sets, with pn the parent's partialNext set (nil when it
+// has none) and rs its rule-start set (not nil), and lists the rules c
+// completes in s.done. It returns where depth d+1's partials start. It
+// gives the same partials, in the same order, as advance with setChild,
+// s.pnext and s.rnext set, reading the child's sets once instead of
+// through childSetsNow for each rule.
+func (s *search) extendBelow(d int, c byte, sets belowSets, pn *[4]uint64, rs *startSet) int {
+	lo, hi := s.actStart[d], s.actEnd[d]
+	base := len(s.act)
+	s.done = s.done[:0]
+	if pn != nil && pn[c>>6]&(1<<(c&63)) == 0 {
+		hi = lo // no partial match waits for c
+	}
+	next, below := sets.next(), sets.below()
+	for i := lo; i < hi; i++ {
+		p := s.act[i]
+		if p.next != c {
+			continue
+		}
+		r := &s.rules[p.rule]
+		p.k++
+		if int(p.k) == r.la {
+			s.done = append(s.done, p)
+		} else if rest := r.alpha[p.k:]; belowBit(rest[0])&next != 0 && classBits(rest[1:])&^below == 0 {
+			// Else no word below can use it (canFinish).
+			p.next = rest[0]
+			s.act = append(s.act, p)
+		}
+	}
+	if rs.first[c>>6]&(1<<(c&63)) != 0 {
+		// Some rule starting with c fits the budget (rulestart.go).
+		m, budget, live := s.mins[d], s.budget, rs.at
+		row := s.rows[d*s.w : (d+1)*s.w]
+		for _, f := range s.first[c] {
+			if m+f.cost > budget {
+				break // first[c] is sorted by cost
+			}
+			// As in extend: the least start entry among the positions
+			// where some rule fits.
+			v := inf
+			for st := f.starts & live; st != 0; st &= st - 1 {
+				v = min(v, row[bitIndex64(st)])
+			}
+			if v+f.cost > budget {
+				continue
+			}
+			r := &s.rules[f.rule]
+			p := partial{rule: f.rule, k: 1, from: int32(d)}
+			if r.la == 1 {
+				s.done = append(s.done, p)
+			} else if r.next1&next != 0 && r.rest2&^below == 0 { // canStart
+				p.next = r.alpha[1]
+				s.act = append(s.act, p)
+			}
+		}
+	}
+	s.actStart[d+1], s.actEnd[d+1] = base, len(s.act)
+	return base
+}
+
 // computeRow fills row d from the rows above it, path[:d] and the rules in
 // s.done, stores and returns its minimum. Cost: O(typed length), with a
 // plain loop when no transposition or rule applies.
@@ -847,32 +956,30 @@ func (s *search) computeRow(rs, ps, gs, d int, c, pc byte) float32 {
 		tm = (s.pos[c] << 2) & (s.pos[pc] << 1)
 	}
 	if len(s.done) == 0 && tm == 0 {
-		// Two passes: the substitutions and deletions do not depend on
-		// each other, so the first pass has no chain; only the second,
-		// for typed extras, goes left to right. Branch-free minima (the
-		// comparisons are unpredictable) and loops over sub and ins, one
-		// shorter than the rows, so that no bounds are checked. Together
-		// about 8 % less time for the median word than one pass with
-		// branches (BenchmarkCorrect8, measured, this project).
-		P, R := P[:len(sub)+1], R[:len(sub)+1]
-		R[0] = P[0] + dc
-		for j, x := range sub {
-			R[j+1] = min(P[j]+x, P[j+1]+dc)
-		}
-		v := R[0]
-		m := v
-		R1 := R[1:]
-		for j, x := range ins[:len(R1)] {
-			v = min(R1[j], v+x)
-			R1[j] = v
-			m = min(m, v)
-		}
+		// The plain row (rowplain.go: in assembly on amd64).
+		m := rowPlain(R[:len(sub)+1], P[:len(sub)+1], sub, ins[:len(sub)], dc)
 		s.mins[rs] = m
 		return m
 	}
-	E := s.extra[:len(P)]
-	for j := range E {
-		E[j] = inf
+	return s.computeRowEdits(R, P, sub, ins, dc, tm, rs, gs)
+}
+
+// computeRowEdits is computeRow for a row with rules completed (s.done)
+// or transpositions (tm, from the grandparent's row in slot gs): the
+// substitutions and deletions first, as in computeRow's plain loop, then
+// each entry a rule or transposition ends at lowered to its term, then
+// the typed extras. Each entry is the least of the same terms as when they
+// were gathered in a row of their own first, and min gives the same value
+// in any order: the terms are never NaN and never a negative zero (costs
+// are sums of non-negative prices starting from +0). Without the extra
+// row to fill and read, the rows with rules cost less (measured, this
+// project; BENCHMARKS.md, round 16).
+func (s *search) computeRowEdits(R, P, sub, ins []float32, dc float32, tm uint64, rs, gs int) float32 {
+	w, ch := s.w, s.ch
+	P, R = P[:len(sub)+1], R[:len(sub)+1]
+	R[0] = P[0] + dc
+	for j, x := range sub {
+		R[j+1] = min(P[j]+x, P[j+1]+dc)
 	}
 	for _, p := range s.done {
 		r := &s.rules[p.rule]
@@ -883,28 +990,22 @@ func (s *search) computeRow(rs, ps, gs, d int, c, pc byte) float32 {
 			if p.from == 0 && e == r.lb && (r.lb == 0 || r.alpha[0] != s.t[0]) {
 				v += ch.lead
 			}
-			if v < E[e] {
-				E[e] = v
-			}
+			R[e] = min(R[e], v)
 		}
 	}
-	var T []float32
-	if d >= 2 {
-		T = s.rows[gs*w : (gs+1)*w]
-	}
-	R[0] = min(P[0]+dc, E[0])
-	for j := 1; j <= n; j++ {
-		R[j] = min(P[j-1]+sub[j-1], P[j]+dc, E[j])
-	}
-	for ; tm != 0; tm &= tm - 1 {
-		j := bits.TrailingZeros64(tm)
-		R[j] = min(R[j], T[j-2]+ch.trans)
+	if tm != 0 {
+		T := s.rows[gs*w : (gs+1)*w]
+		for ; tm != 0; tm &= tm - 1 {
+			j := bits.TrailingZeros64(tm)
+			R[j] = min(R[j], T[j-2]+ch.trans)
+		}
 	}
 	v := R[0]
 	m := v
-	for j := 1; j <= n; j++ {
-		v = min(R[j], v+ins[j-1])
-		R[j] = v
+	R1 := R[1:]
+	for j, x := range ins[:len(R1)] {
+		v = min(R1[j], v+x)
+		R1[j] = v
 		m = min(m, v)
 	}
 	s.mins[rs] = m

@@ -282,3 +282,208 @@ func TestPickLettersMatchesEdgeScan(t *testing.T) {
 		})
 	}
 }
+
+// TestAllowedMatchesByteScan checks the set of bytes worth trying
+// (allowed), whose deletions are taken as one union per budget
+// (channel.delUpTo) and whose transpositions are found through the typed
+// byte positions, against the same set built byte by byte as its
+// definition reads: every typed byte whose entry fits the budget and the
+// substitutions for it that fit, every deletion that fits after the row
+// minimum, the doubled last byte, each transposition of the last byte
+// with a typed neighbour that fits from the parent's row, the partial
+// rules' next bytes, and the rule starts (addRuleStarts, checked rule by
+// rule in TestRuleStartsMatchRules). Typed words: every one of
+// corpora/misspellings-dev.tsv, under the built-in error model and the
+// unit-cost channel, with rows, minima and last bytes drawn at random. A
+// cross-check of two code paths of the project, no external source.
+func TestAllowedMatchesByteScan(t *testing.T) {
+	tests := []struct {
+		name string
+		ch   *channel
+	}{
+		{"built-in model", qwertyChannel(t)},
+		{"unit costs with transpositions", unitChannel(true)},
+	}
+	rng := rand.New(rand.NewPCG(16, 4))
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			ch := tt.ch
+			checked, dels, swaps := 0, 0, 0
+			devSearches(t, ch, func(s *search, w string) {
+				if s.n == 0 {
+					return
+				}
+				s.below = &belowTable{}
+				defer func() { s.below = nil }()
+				s.prepare(ch) // the letters-below tables, for the rule starts
+				for trial := 0; trial < 4; trial++ {
+					s.budget = []float32{firstPass, secondPass, 13, 2}[trial]
+					row := make([]float32, s.n+1)
+					prev := make([]float32, s.n+1)
+					for j := range row {
+						row[j] = rng.Float32() * (s.budget + 3)
+						prev[j] = rng.Float32() * (s.budget + 3)
+					}
+					m := slices.Min(row)
+					last := s.t[rng.IntN(s.n)]
+					if trial == 3 {
+						last = byte('a' + rng.IntN(26))
+					}
+					got := s.allowed(row, prev, m, last, nil)
+					var want [4]uint64
+					add := func(c byte) { want[c>>6] |= 1 << (c & 63) }
+					for j := 0; j < s.n; j++ {
+						if row[j] > s.budget {
+							continue
+						}
+						add(s.t[j])
+						for c := 0; c < 256; c++ {
+							if byte(c) != s.t[j] && slices.ContainsFunc(ch.cheapSub[s.t[j]], func(o costOpt) bool { return o.c == byte(c) }) && row[j]+ch.sub[s.t[j]][c] <= s.budget {
+								add(byte(c))
+							}
+						}
+					}
+					for _, o := range ch.cheapDel {
+						if m+o.cost <= s.budget {
+							add(o.c)
+							dels++
+						}
+					}
+					if m+ch.delDbl <= s.budget {
+						add(last)
+					}
+					if ch.trans < inf {
+						for j := 2; j <= s.n; j++ {
+							if last == s.t[j-1] && prev[j-2]+ch.trans <= s.budget {
+								add(s.t[j-2])
+								swaps++
+							}
+						}
+					}
+					var rs startSet
+					s.addRuleStarts(row, &rs)
+					for i := range want {
+						want[i] |= rs.first[i]
+					}
+					if got != want {
+						t.Fatalf("%q, budget %v, row %v, prev %v, last %q: set %x, want %x", w, s.budget, row, prev, last, got, want)
+					}
+					checked++
+				}
+			})
+			if checked == 0 || dels == 0 || swaps == 0 {
+				t.Fatalf("%d sets checked, %d deletions and %d transpositions taken: the check is too weak", checked, dels, swaps)
+			}
+		})
+	}
+}
+
+// TestRowEditsMatchExtraRow checks the rows computeRow computes when rules
+// complete or a transposition applies (computeRowEdits: each such entry
+// lowered after the substitutions and deletions) against the recurrence
+// with the rule and transposition terms gathered in a row of their own
+// first and taken in one minimum per entry, bit for bit, along the
+// intended word of every pair of corpora/misspellings-dev.tsv under the
+// built-in error model, where rules complete on most words. A cross-check
+// of two ways of computing one row, no external source; the row itself
+// is checked against plain edit distance (github.com/agnivade/levenshtein)
+// in TestUnitDistanceMatchesLevenshtein.
+func TestRowEditsMatchExtraRow(t *testing.T) {
+	ch := qwertyChannel(t)
+	var s search
+	withRules, withSwaps := 0, 0
+	for _, p := range devPairs(t) {
+		typed := strings.ToLower(p.Typed)
+		for _, intended := range p.Intended {
+			intended = strings.ToLower(intended)
+			if len(typed) > maxTyped || len(intended) > maxTyped {
+				continue
+			}
+			s.reset(ch, nil, typed, inf, len(intended))
+			for d := 0; d < len(intended); d++ {
+				s.path[d] = intended[d]
+				s.advance(d, intended[d])
+				want, wantMin := extraRowRef(&s, d+1)
+				if len(s.done) > 0 {
+					withRules++
+				}
+				if d >= 1 && intended[d] != intended[d-1] && (s.pos[intended[d]]<<2)&(s.pos[intended[d-1]]<<1) != 0 {
+					withSwaps++
+				}
+				gotMin := s.computeRowDepth(d + 1)
+				got := s.rows[(d+1)*s.w : (d+2)*s.w]
+				for j := range got {
+					if math.Float32bits(got[j]) != math.Float32bits(want[j]) {
+						t.Fatalf("%q for %q, depth %d: row %v, want %v", typed, intended, d+1, got, want)
+					}
+				}
+				if math.Float32bits(gotMin) != math.Float32bits(wantMin) {
+					t.Fatalf("%q for %q, depth %d: minimum %v, want %v", typed, intended, d+1, gotMin, wantMin)
+				}
+			}
+		}
+	}
+	if withRules < 1000 || withSwaps < 20 {
+		t.Fatalf("%d rows with rules completed, %d with a transposition: the check is too weak", withRules, withSwaps)
+	}
+	t.Logf("%d rows with rules completed, %d with a transposition", withRules, withSwaps)
+}
+
+// extraRowRef returns row d of s's walk along s.path, with the rules in
+// s.done, and its minimum, computed with the rule terms in an extra row:
+// the form computeRow had before computeRowEdits (round 16).
+func extraRowRef(s *search, d int) ([]float32, float32) {
+	w, n, ch := s.w, s.n, s.ch
+	c := s.path[d-1]
+	var pc byte
+	if d >= 2 {
+		pc = s.path[d-2]
+	}
+	P := s.rows[(d-1)*w : d*w]
+	R := make([]float32, w)
+	sub := s.subRow(c)
+	dc := ch.del[c]
+	if d >= 2 && pc == c {
+		dc = min(dc, ch.delDbl)
+	}
+	if d == 1 && ch.lead > 0 {
+		dc = min(ch.slipDel, dc+ch.lead)
+	}
+	E := make([]float32, w)
+	for j := range E {
+		E[j] = inf
+	}
+	for _, p := range s.done {
+		r := &s.rules[p.rule]
+		base := s.rows[int(p.from)*w : (int(p.from)+1)*w]
+		for ends := r.ends; ends != 0; ends &= ends - 1 {
+			e := bits.TrailingZeros64(ends)
+			v := base[e-r.lb] + r.cost
+			if p.from == 0 && e == r.lb && (r.lb == 0 || r.alpha[0] != s.t[0]) {
+				v += ch.lead
+			}
+			if v < E[e] {
+				E[e] = v
+			}
+		}
+	}
+	R[0] = min(P[0]+dc, E[0])
+	for j := 1; j <= n; j++ {
+		R[j] = min(P[j-1]+sub[j-1], P[j]+dc, E[j])
+	}
+	if d >= 2 && c != pc {
+		T := s.rows[(d-2)*w : (d-1)*w]
+		for tm := (s.pos[c] << 2) & (s.pos[pc] << 1); tm != 0; tm &= tm - 1 {
+			j := bits.TrailingZeros64(tm)
+			R[j] = min(R[j], T[j-2]+ch.trans)
+		}
+	}
+	v := R[0]
+	m := v
+	for j := 1; j <= n; j++ {
+		v = min(R[j], v+s.ins[j-1])
+		R[j] = v
+		m = min(m, v)
+	}
+	return R, m
+}
