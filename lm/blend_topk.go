@@ -5,7 +5,8 @@ import (
 	"strings"
 )
 
-// The exact blended top-k search.
+// The exact blended top-k search, for words with a typed part (the next
+// word ranks a candidate set instead: blend_next.go).
 //
 // For a prepared history the blend of a word w is, up to rounding, linear
 // in what is known about w (see blendProb):
@@ -323,10 +324,15 @@ func (s *idSet) add(id uint32) bool {
 // MinTyped times. Results carry extended IDs; the special tokens are never
 // returned; k is capped at MaxK.
 //
-// The result is exact: the same words, order and scores as ranking every
-// word by LogProb (see the comment at the top of blend_topk.go for the
-// search). It costs the base model's TopK for k or k+1 words plus a few
-// exact scorings; it does not allocate when dst has room for k results.
+// With a typed part (prefix not "", or a narrower range) the result is
+// exact: the same words, order and scores as ranking every word in range by
+// LogProb (see the comment at the top of blend_topk.go for the search).
+// For the next word (prefix "", the whole range) it is exact over a
+// candidate set: the base model's k best next words and the best few words
+// the user has typed after the last word and after the last two (see
+// blend_next.go), each scored as LogProb scores it. It costs the base
+// model's TopK for k or k+1 words plus a few exact scorings; it does not
+// allocate when dst has room for k results.
 func (v *OverlayView) TopK(ctx []uint32, prefix string, lo, hi uint32, k int, dst []Scored) []Scored {
 	if k > MaxK {
 		k = MaxK
@@ -373,6 +379,10 @@ func (v *OverlayView) topKSearch(q *query, r *rangeQ, k, first int, short bool, 
 	res.k, res.n = k, 0
 	bufs.reset()
 	t := thresholdSearch{searchBufs: bufs, v: v, q: q, r: r, k: k, res: res, c: v.coefficients(q), memo: m}
+	if r.whole {
+		t.runNext() // next word: a candidate set (blend_next.go)
+		return append(dst, res.buf[:res.n]...)
+	}
 	ok := t.run(first)
 	if m != nil && k < MaxK {
 		v.memo.noteShort(short, ok, t.shortOK)

@@ -329,11 +329,19 @@ func TestOverlayBlendNormalized(t *testing.T) {
 	}
 }
 
-// bruteBlend ranks every word in the range by LogProb.
+// bruteBlend ranks every word in the range by LogProb; for the next word
+// (prefix "", the whole range), every next-word candidate (nextCandidates).
 func bruteBlend(v *OverlayView, ctx []uint32, prefix string, lo, hi uint32, k int) []Scored {
+	var cands map[uint32]bool
+	if prefix == "" && lo == 0 && hi >= v.V {
+		cands = nextCandidates(v, ctx, k)
+	}
 	var all []Scored
 	for w := range uint32(v.VocabSize()) {
 		if w < v.V && (w < lo || w >= hi) || w >= v.V && !strings.HasPrefix(v.Word(w), prefix) {
+			continue
+		}
+		if cands != nil && !cands[w] {
 			continue
 		}
 		typed := uint32(0)
@@ -352,7 +360,11 @@ func bruteBlend(v *OverlayView, ctx []uint32, prefix string, lo, hi uint32, k in
 // TopK must equal ranking every word by LogProb (bruteBlend, which
 // scores each word through the blend's definition and sorts; it shares
 // only the blend formula with TopK): same words, same order, scores within
-// 1e-12. The queries are random (fixed seed, logged) over several
+// 1e-12. For the next word, "every word" is every next-word candidate
+// (blend_next.go), which bruteBlend finds by scoring every base word and
+// looking every word up in the user's counts, not through the lists the
+// search reads; the other tests that compare with bruteBlend check the
+// same. The queries are random (fixed seed, logged) over several
 // overlays: defaults, MinTyped 1 (many user-only words are suggestible),
 // no recency cache, and one that has learned little; contexts mix base
 // words, user-only words, <unk> and sentence starts; prefixes of 0–3
@@ -406,7 +418,7 @@ func TestOverlayTopKExact(t *testing.T) {
 				}
 				plen := 1 + rng.IntN(3)
 				if i%6 == 0 {
-					plen = 0 // next-word: scores the whole vocabulary in the oracle
+					plen = 0 // next-word: scores every candidate in the oracle
 				}
 				w := pick()
 				prefix := w[:min(len(w), plen)]
