@@ -45,7 +45,9 @@ type keyEdge struct {
 // (same words, same costs), so that no input costs much more than before:
 // the keys alone follow every vowel below a prefix whose skeleton is in
 // reach. Over all 2,173 development misspellings the keys' walk stepped
-// into median 6,603, p99 14,366 and at most 15,265 children, and for
+// into median 6,603, p99 14,366 and at most 15,265 children (before
+// round 17 left out the states whose rests start no kept skeleton:
+// setSkMask), and for
 // one- and two-letter words and long runs of one letter 300 to 8,700
 // (74 k-word SUBTLEX-US lexicon; measured, this project).
 const keyWalkMax = 20000
@@ -63,6 +65,7 @@ func (t *keyTrie) keyWalk(f *skelFilter, g *belowTable, node, d, maxDepth int) i
 	base := len(t.pending)
 	if d < maxDepth {
 		m := f.mask(d)
+		pm, pAll := f.plainMask(d)
 		lo, hi := g.edges(node)
 		for k := lo; k < hi; k++ {
 			c := g.eb[k]
@@ -74,7 +77,8 @@ func (t *keyTrie) keyWalk(f *skelFilter, g *belowTable, node, d, maxDepth int) i
 				return -1
 			}
 			next := int(g.en[k])
-			if !f.step(d, c, g.nodes[next].sets.below(), g.rest[next]) {
+			p := pAll || pm[c>>6]&(1<<(c&63)) != 0
+			if !f.stepPlain(d, c, g.nodes[next].sets.below(), g.rest[next], p) {
 				continue
 			}
 			var ch int32
@@ -83,7 +87,7 @@ func (t *keyTrie) keyWalk(f *skelFilter, g *belowTable, node, d, maxDepth int) i
 			} else {
 				// Only the skeleton key is left below: skelWalk.
 				sl := int(f.k[d+1])
-				f.skMask[sl] = f.mask(d + 1)
+				f.setSkMask(sl, d+1)
 				ch = t.skelWalk(f, g, next, d+1, maxDepth, f.skel.final(sl))
 			}
 			if ch >= 0 {
@@ -107,6 +111,10 @@ func (t *keyTrie) keyWalk(f *skelFilter, g *belowTable, node, d, maxDepth int) i
 func (t *keyTrie) skelWalk(f *skelFilter, g *belowTable, node, d, maxDepth int, fin bool) int32 {
 	ok, _ := g.final(node)
 	accept := ok && fin
+	if lead := g.rest[node].lead; !accept && lead&f.skLead[f.k[d]] == 0 && (!fin || lead&leadEnd == 0) {
+		// No word below is kept (see setSkMask): nothing to record.
+		return -1
+	}
 	idx := int32(len(t.nodes))
 	t.nodes = append(t.nodes, keyNode{accept: accept})
 	base := len(t.pending)
@@ -118,7 +126,7 @@ func (t *keyTrie) skelWalk(f *skelFilter, g *belowTable, node, d, maxDepth int, 
 			last = sk.path[k-1]
 		}
 		miss0, rest0 := f.skMiss[d], f.skRest[d]
-		m := &f.skMask[k]
+		m, skLead := &f.skMask[k], f.skLead[k]
 		lo, hi := g.edges(node)
 		for x := lo; x < hi; x++ {
 			c := g.eb[x]
@@ -140,6 +148,8 @@ func (t *keyTrie) skelWalk(f *skelFilter, g *belowTable, node, d, maxDepth int, 
 				if !sk.reach(k2, below, 0, rs) {
 					continue
 				}
+			} else if lead := g.rest[next].lead; lead&skLead == 0 && (!fin || lead&leadEnd == 0) {
+				continue // skelWalk's first test, for the child, at no call
 			} else if (miss != miss0 || rs != rest0) && !sk.reach(k, below, 0, rs) {
 				// The parent's test (reach), which passed, holds unless
 				// the letters missing below or the longest tail changed.
@@ -152,7 +162,7 @@ func (t *keyTrie) skelWalk(f *skelFilter, g *belowTable, node, d, maxDepth int, 
 			if k2 == k {
 				ch = t.skelWalk(f, g, next, d+1, maxDepth, fin)
 			} else {
-				f.skMask[k2] = f.mask(d + 1)
+				f.setSkMask(k2, d+1)
 				ch = t.skelWalk(f, g, next, d+1, maxDepth, sk.final(k2))
 			}
 			if ch >= 0 {
@@ -163,6 +173,39 @@ func (t *keyTrie) skelWalk(f *skelFilter, g *belowTable, node, d, maxDepth int, 
 		}
 	}
 	return t.close(idx, base, accept)
+}
+
+// setSkMask puts in f.skMask[k] the byte mask (mask) at depth d, whose
+// path has k skeleton bytes, for keyTrie.skelWalk, and in f.skLead[k]
+// the letters (belowBit) of the bytes of that mask, which holds the
+// path's last skeleton byte. Below a prefix whose plain key is out of reach,
+// the skeleton key keeps a word only when the word's skeleton goes on
+// with a byte of the mask (skelWalk steps into no other byte that moves
+// the skeleton; all the bytes it steps into until then leave the
+// skeleton as it is, mask or not) or repeats the last byte, or when it
+// has no more skeleton bytes and the prefix's skeleton is in reach. So
+// skelWalk walks no further below a state whose rests start their
+// skeletons (restLens.lead) with none of the letters of skLead, unless a
+// rest without skeleton bytes ends a kept word: every such walk would
+// record nothing. The test is exact: the trie is the same, only the
+// steps below such states are saved.
+func (f *skelFilter) setSkMask(k, d int) {
+	m := f.mask(d)
+	f.skMask[k] = m
+	f.skLead[k] = maskLetters(&m) // the mask holds the last skeleton byte
+}
+
+// maskLetters returns the letters (belowBit) of the bytes of m.
+func maskLetters(m *[4]uint64) uint32 {
+	const az = 1<<26 - 1 // the bits of 'a' to 'z' in m[1], from bit 'a'-64
+	lead := uint32(m[1]>>('a'-64)) & az
+	lead |= uint32(m[0]>>'\'') & 1 << 26
+	lead |= uint32(m[0]>>'-') & 1 << 27
+	other := m[0]&^(1<<'\''|1<<'-') | m[1]&^(az<<('a'-64)) | m[2] | m[3]
+	if other != 0 {
+		lead |= 1 << 28
+	}
+	return lead
 }
 
 // close ends trie node idx, whose children keyWalk or skelWalk stacked

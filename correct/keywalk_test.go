@@ -102,3 +102,111 @@ func TestKeyWalkSameCandidates(t *testing.T) {
 		})
 	}
 }
+
+// trieWords returns the words the keys' trie t records over table g: the
+// paths from node 0 to its accepting nodes, spelled by the table's edge
+// bytes.
+func trieWords(t *keyTrie, g *belowTable) []string {
+	var out []string
+	var walk func(n int32, path []byte)
+	walk = func(n int32, path []byte) {
+		nd := t.nodes[n]
+		if nd.accept {
+			out = append(out, string(path))
+		}
+		for _, e := range t.edges[nd.lo:nd.hi] {
+			walk(e.child, append(path, g.eb[e.k]))
+		}
+	}
+	if len(t.nodes) > 0 {
+		walk(0, nil)
+	}
+	return out
+}
+
+// TestKeyWalkRepeatedSkeletonByte checks the keys' trie on small
+// hand-made lexicons against skelKeeps (direct OSA distances): the words
+// it records are exactly those skelKeeps keeps. The cases are the ones
+// setSkMask's cut must not lose: a word whose skeleton goes on with the
+// skeleton's last byte again (left out of the skeleton) after the edit
+// is spent, so that the next skeleton byte is out of the mask
+// ("saaixxes" for "sonos": skeleton sxs, one substitution from sns; the
+// plain key out of reach from "saai" on), a word ending with vowels once the skeleton is
+// in reach, and words below the cut point that no key keeps.
+func TestKeyWalkRepeatedSkeletonByte(t *testing.T) {
+	tests := []struct {
+		name  string
+		typed string
+		words []string
+	}{
+		{"last byte again after the edit", "sonos", []string{"saaixxes", "saaixxed", "sixxes", "sixtus", "sax", "sanas"}},
+		{"vowels after the skeleton", "sonos", []string{"sinsaeiou", "sinsy", "sinst", "sinsx"}},
+		{"no key keeps the rest", "petition", []string{"pattern", "potion", "petitions", "xylophone", "pitta"}},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			lex := newTrieLex(t, tt.words)
+			g := newBelowTable(lex, lex)
+			if g == nil || g.rest == nil {
+				t.Fatal("no letters-below table")
+			}
+			maxDepth := min(len(tt.typed)+maxExtra, 2*maxTyped)
+			var f skelFilter
+			f.reset(tt.typed, maxDepth)
+			var kt keyTrie
+			if !kt.build(&f, g, maxDepth) {
+				t.Fatal("the keys' walk gave up")
+			}
+			got := trieWords(&kt, g)
+			var want []string
+			for _, w := range lex.words {
+				if skelKeeps(tt.typed, w) {
+					want = append(want, w)
+				}
+			}
+			if fmt.Sprint(got) != fmt.Sprint(want) {
+				t.Errorf("%q: trie words %q, want %q (skelKeeps)", tt.typed, got, want)
+			}
+		})
+	}
+}
+
+// TestMaskLetters checks maskLetters on every one-byte mask and on the
+// full mask against belowBit, the letters' own definition (below.go).
+func TestMaskLetters(t *testing.T) {
+	tests := []struct {
+		name  string
+		bytes string
+	}{
+		{"one letter", "s"},
+		{"letters and vowels", "nsaeiou"},
+		{"apostrophe and hyphen", "'-"},
+		{"upper case counts as other", "A"},
+		{"empty", ""},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			var m [4]uint64
+			var want uint32
+			for i := 0; i < len(tt.bytes); i++ {
+				c := tt.bytes[i]
+				m[c>>6] |= 1 << (c & 63)
+				want |= belowBit(c)
+			}
+			if got := maskLetters(&m); got != want {
+				t.Errorf("maskLetters(%q) = %#x, want %#x", tt.bytes, got, want)
+			}
+		})
+	}
+	all := [4]uint64{^uint64(0), ^uint64(0), ^uint64(0), ^uint64(0)}
+	if got := maskLetters(&all); got != belowAll {
+		t.Errorf("maskLetters(all) = %#x, want %#x", got, uint32(belowAll))
+	}
+	for c := range 256 {
+		var m [4]uint64
+		m[c>>6] |= 1 << (c & 63)
+		if got := maskLetters(&m); got != belowBit(byte(c)) {
+			t.Errorf("maskLetters(%#x) = %#x, want %#x", c, got, belowBit(byte(c)))
+		}
+	}
+}

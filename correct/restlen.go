@@ -8,16 +8,27 @@ package correct
 // the letters below it; the lengths add that a typed tail longer or
 // shorter than every rest below costs the difference in insertions or
 // deletions. Entries saturate at 255 (a max of 255 is no bound).
+//
+// lead tells the keys' walk below a dead plain key (keyTrie.skelWalk)
+// which skeletons can start below the state: the letters (belowBit) that
+// are the first skeleton byte of some rest, that is the first byte of
+// the rest that inSkeleton keeps, and leadEnd when some rest holds no
+// such byte at all (a word ends below with the skeleton as it is).
 type restLens struct {
 	min, max, skel uint8
+	lead           uint32
 }
+
+// leadEnd is the bit of restLens.lead for a rest without a skeleton
+// byte; belowBit uses bits 0 to 28.
+const leadEnd = 1 << 31
 
 // noRest is the entry that bounds nothing: a state deeper than the walk
 // that fills the table goes, or a search without the table.
-var noRest = restLens{min: 0, max: 255, skel: 255}
+var noRest = restLens{min: 0, max: 255, skel: 255, lead: belowAll | leadEnd}
 
 // fillRest fills t.rest, the restLens of every node, by one depth-first
-// walk that visits each node once. Cost: one pass over the edges; 3 bytes
+// walk that visits each node once. Cost: one pass over the edges; 8 bytes
 // per node.
 func fillRest(t *belowTable) {
 	n := len(t.nodes) - 1
@@ -31,6 +42,7 @@ func fillRest(t *belowTable) {
 		r := restLens{min: 255}
 		if ok, _ := t.final(i); ok {
 			r.min = 0
+			r.lead = leadEnd
 		}
 		lo, hi := t.edges(i)
 		for k := lo; k < hi; k++ {
@@ -43,6 +55,9 @@ func fillRest(t *belowTable) {
 			s := uint8(0)
 			if inSkeleton(t.eb[k]) {
 				s = 1
+				r.lead |= belowBit(t.eb[k])
+			} else {
+				r.lead |= c.lead
 			}
 			r.min = min(r.min, sat8(int(c.min)+1))
 			r.max = max(r.max, sat8(int(c.max)+1))

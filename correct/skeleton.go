@@ -26,11 +26,12 @@ package correct
 // inSkeleton reports whether byte c belongs to a word's consonant
 // skeleton.
 func inSkeleton(c byte) bool {
-	switch c {
-	case 'a', 'e', 'i', 'o', 'u', 'y', 'h', 'w':
-		return false
-	}
-	return true
+	// One shift instead of a switch: the bits of the left-out letters,
+	// from 'a' up; a byte below 'a' wraps to a shift of 64 or more (no
+	// bit, in Go), and one above 'y' finds none either.
+	const out = uint64(1)<<('a'-'a') | 1<<('e'-'a') | 1<<('i'-'a') | 1<<('o'-'a') |
+		1<<('u'-'a') | 1<<('y'-'a') | 1<<('h'-'a') | 1<<('w'-'a')
+	return out>>(c-'a')&1 == 0
 }
 
 // appendSkeleton appends the consonant skeleton of w to dst.
@@ -68,6 +69,7 @@ type skelFilter struct {
 	skMiss  []uint32    // by depth: the typed skeleton's letters missing below, when skelOK
 	skRest  []uint8     // by depth: the longest skeleton tail below (restLens.skel), when skelOK
 	skMask  [][4]uint64 // by skeleton bytes walked: the byte mask (mask) of keyTrie.skelWalk
+	skLead  []uint32    // by skeleton bytes walked: the letters of skMask and of the skeleton's last byte (setSkMask)
 	buf     []byte      // the typed skeleton
 	tw      []byte      // the typed word
 }
@@ -129,6 +131,7 @@ func (f *skelFilter) reset(typed string, maxDepth int) {
 	f.skRest = grow(f.skRest, maxDepth+1)
 	f.skMiss[0] = ^uint32(0) // no reach test at the empty prefix
 	f.skMask = grow(f.skMask, f.skel.nrows)
+	f.skLead = grow(f.skLead, f.skel.nrows)
 }
 
 // step extends the path at depth d by byte c to depth d+1; below is the
@@ -139,7 +142,14 @@ func (f *skelFilter) reset(typed string, maxDepth int) {
 // below (the words below a prefix are among those below its parent), and
 // its rows are no longer computed.
 func (f *skelFilter) step(d int, c byte, below uint32, rest restLens) bool {
-	p := f.plainOK[d]
+	return f.stepPlain(d, c, below, rest, f.plainOK[d])
+}
+
+// stepPlain is step with p in place of f.plainOK[d]: false when the plain
+// key is out of reach at depth d+1 whatever its row (keyTrie.keyWalk
+// passes false for a byte out of the plain key's own mask, plainMask),
+// which spares the plain key's row.
+func (f *skelFilter) stepPlain(d int, c byte, below uint32, rest restLens, p bool) bool {
 	if p {
 		f.plain.push(d, c)
 		p = f.plain.reach(d+1, below, rest.min, rest.max)
@@ -193,6 +203,15 @@ func (f *skelFilter) mask(d int) (m [4]uint64) {
 		}
 	}
 	return m
+}
+
+// plainMask returns mask's bytes for the plain key alone, with all true
+// when it lets through every byte: a byte out of it leaves the plain key
+// out of reach at depth d+1 (unitRows.nextMask), so that its row need not
+// be computed. The plain key must be within reach at depth d.
+func (f *skelFilter) plainMask(d int) (m [4]uint64, all bool) {
+	all = f.plain.nextMask(d, &m)
+	return m, all
 }
 
 // notSkeleton is the set of bytes inSkeleton rejects.

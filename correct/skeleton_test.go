@@ -2,8 +2,43 @@ package correct
 
 import (
 	"fmt"
+	"strings"
 	"testing"
 )
+
+// TestInSkeleton checks inSkeleton, a shift on a constant since round 17,
+// against the letters its definition (skeleton.go) leaves out, a e i o u
+// y h w, for every byte value, named cases first.
+func TestInSkeleton(t *testing.T) {
+	tests := []struct {
+		name string
+		c    byte
+		want bool
+	}{
+		{"a left out", 'a', false},
+		{"y left out", 'y', false},
+		{"w left out", 'w', false},
+		{"z kept", 'z', true},
+		{"b kept", 'b', true},
+		{"apostrophe kept", '\'', true},
+		{"byte below a kept", '`', true},
+		{"byte above z kept", '{', true},
+		{"upper-case A kept", 'A', true},
+		{"byte 0xff kept", 0xff, true},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			if got := inSkeleton(tt.c); got != tt.want {
+				t.Errorf("inSkeleton(%q) = %v, want %v", tt.c, got, tt.want)
+			}
+		})
+	}
+	for c := range 256 {
+		if want := strings.IndexByte("aeiouyhw", byte(c)) < 0; inSkeleton(byte(c)) != want {
+			t.Errorf("inSkeleton(%#x) = %v, want %v", c, !want, want)
+		}
+	}
+}
 
 // TestAppendSkeleton checks the consonant skeleton on words worked by
 // hand from its definition in skeleton.go (this package's own key, no
