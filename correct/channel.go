@@ -88,6 +88,7 @@ type channel struct {
 	maxAlpha  int
 	affix     float32 // a stem typed with another ending (family.go); inf: off
 	irregular float32 // a verb's regular past for its irregular form (irregular.go); inf: off
+	moved     float32 // a letter typed two places from where it belongs (moved.go); inf: off
 }
 
 // alphabet is the set of bytes tried as intended letters where no typed
@@ -165,6 +166,7 @@ func newChannel(kb *Keyboard, em *ErrorModel) *channel {
 	ch.trans = min(ln(slipSwapRate), float32(bo.Trans))
 	ch.affix = float32(bo.Affix)
 	ch.irregular = float32(bo.Irregular)
+	ch.moved = float32(bo.Moved)
 	add := func(a, b string, cost float32) {
 		switch {
 		case len(a) == 1 && len(b) == 1:
@@ -317,7 +319,7 @@ func unitChannel(transpose bool) *channel {
 		ch.sub[t][t] = inf
 		ch.del[t] = 1
 	}
-	ch.delDbl, ch.insBase, ch.insDbl, ch.trans, ch.affix, ch.irregular = 1, 1, 1, inf, inf, inf
+	ch.delDbl, ch.insBase, ch.insDbl, ch.trans, ch.affix, ch.irregular, ch.moved = 1, 1, 1, inf, inf, inf, inf
 	if transpose {
 		ch.trans = 1
 	}

@@ -26,7 +26,7 @@
 //     costs 2.26 nats more: writers rarely get the first letter wrong
 //     (see leadCost in channel.go).
 //
-// Three whole-word features stand beside the letter edits. Word families,
+// Four whole-word features stand beside the letter edits. Word families,
 // for typed words the lexicon does not know: a stem typed with another
 // ending ("examinated" for examined, "oftenly" for often) is usually
 // beyond the search budget, so the lexicon words sharing a long prefix
@@ -35,7 +35,11 @@
 // any typed word: a verb's base with the regular past ending ("teached",
 // "payed") gets the verb's irregular forms (taught, paid) from a table of
 // common English irregular verbs, at a per-word cost learned from the
-// training pairs like the family cost (irregular.go). Sound, for typed
+// training pairs like the family cost (irregular.go). Letters moved, for
+// typed words the lexicon does not know: the lexicon words obtained by
+// moving one typed letter two places ("tath" for that), which the search
+// prices as two swaps, are offered at a learned cost per move (moved.go).
+// Sound, for typed
 // words the lexicon does not know: candidates that sound
 // like the typed word (the same code under rules after Philips's 1990
 // Metaphone, phonetic.go) gain a small bonus, a pronunciation feature in

@@ -25,7 +25,7 @@ type Rule struct {
 }
 
 // Backoff holds the costs (nats) of single-letter edits that no rule covers,
-// by class, and of two whole-word errors (Affix, Irregular). They are
+// by class, and of three whole-word errors (Affix, Irregular, Moved). They are
 // estimated from the same training pairs as the rules.
 type Backoff struct {
 	// SubVowel is the cost of one vowel typed for another.
@@ -51,6 +51,10 @@ type Backoff struct {
 	// regular ending ("teached" for taught, "payed" for paid), per word
 	// (see addIrregular in irregular.go).
 	Irregular float64
+	// Moved is the cost of typing one letter two places from where it
+	// belongs, across two others ("tath" for that), per word (see
+	// addMoved in moved.go).
+	Moved float64
 }
 
 // ErrorModel is the spelling-error half of the channel: rules α→β with
@@ -99,10 +103,10 @@ const maxRuleLen = 8
 const maxRules = 1 << 16
 
 // backoffNames lists the backoff lines of the table format, in order.
-var backoffNames = [...]string{"sub-vowel", "sub", "del", "del-double", "ins", "ins-double", "trans", "affix", "irregular"}
+var backoffNames = [...]string{"sub-vowel", "sub", "del", "del-double", "ins", "ins-double", "trans", "affix", "irregular", "moved"}
 
 func (b *Backoff) field(i int) *float64 {
-	return [...]*float64{&b.SubVowel, &b.Sub, &b.Del, &b.DelDouble, &b.Ins, &b.InsDouble, &b.Trans, &b.Affix, &b.Irregular}[i]
+	return [...]*float64{&b.SubVowel, &b.Sub, &b.Del, &b.DelDouble, &b.Ins, &b.InsDouble, &b.Trans, &b.Affix, &b.Irregular, &b.Moved}[i]
 }
 
 // DefaultAffixCost is Backoff.Affix for a table without an "@affix" line
@@ -123,10 +127,19 @@ const DefaultIrregularCost = 5.734
 // set.
 const irregularBit = 1 << 8
 
+// DefaultMovedCost is Backoff.Moved for a table without a "@moved" line
+// (tables written before it existed): the value in the built-in table
+// (errmodel.tsv, trained on the development misspellings list).
+const DefaultMovedCost = 7.515
+
+// movedBit is the "@moved" line's bit in ParseErrorModel's seen set.
+const movedBit = 1 << 9
+
 // ParseErrorModel reads an error-model table: UTF-8 text, '#' comments,
-// "@NAME<TAB>COST" lines for the nine backoff costs (sub-vowel, sub, del,
-// del-double, ins, ins-double, trans, all required, then affix and
-// irregular, which default to DefaultAffixCost and DefaultIrregularCost) and
+// "@NAME<TAB>COST" lines for the ten backoff costs (sub-vowel, sub, del,
+// del-double, ins, ins-double, trans, all required, then affix, irregular
+// and moved, which default to DefaultAffixCost, DefaultIrregularCost and
+// DefaultMovedCost) and
 // "INTENDED<TAB>TYPED<TAB>COST" rule lines, where an empty side is written "∅".
 // It returns an error wrapping ErrErrorModel on malformed input.
 func ParseErrorModel(r io.Reader) (*ErrorModel, error) {
@@ -207,6 +220,10 @@ func (p *tableParser) finish() (*ErrorModel, error) {
 	if p.seen&irregularBit == 0 {
 		p.m.backoff.Irregular = DefaultIrregularCost // tables written before the irregular line
 		p.seen |= irregularBit
+	}
+	if p.seen&movedBit == 0 {
+		p.m.backoff.Moved = DefaultMovedCost // tables written before the moved line
+		p.seen |= movedBit
 	}
 	if p.seen != 1<<len(backoffNames)-1 {
 		return nil, fmt.Errorf("%w: missing backoff lines", ErrErrorModel)

@@ -55,11 +55,16 @@ type famFrame struct {
 //
 // First, for any typed word, known or not, it offers the irregular forms
 // of a verb lower over-regularises (addIrregular in irregular.go): they
-// are family members no shared stem finds ("teached" for taught). Each
-// feature is off when its channel cost is inf (a unit-cost channel).
+// are family members no shared stem finds ("teached" for taught). Then,
+// for a typed word the lexicon does not know, the words one moved letter
+// away (addMoved in moved.go). Each feature is off when its channel cost
+// is inf (a unit-cost channel).
 func (c *Corrector) addFamily(rk *ranker, lower string) int {
 	if c.ch.irregular < inf {
 		c.addIrregular(rk, lower, c.ch.irregular)
+	}
+	if !rk.skipOK && c.ch.moved < inf {
+		c.addMoved(rk, lower, c.ch.moved) // a letter moved two places (moved.go)
 	}
 	if rk.skipOK || c.ch.affix >= inf || len(lower) <= familyMinStem || len(lower) > maxTyped {
 		return 0

@@ -90,15 +90,22 @@ func TestIsAffixError(t *testing.T) {
 func TestTrainWordErrorCosts(t *testing.T) {
 	// One whole-word error of the class among four pairs: the Laplace
 	// estimate (n+1)/(N+2) that TrainErrorModel documents for its class
-	// costs gives 2/6, a cost of ln 3 (worked by hand).
+	// costs gives 2/6 per pair, a cost of ln 3 (worked by hand). The moved
+	// cost is per move: N counts the moves (movedWindow) the intended
+	// words allow, worked by hand: that 4 (tha→hat, ath; hat→ath, tha),
+	// the 2, receive 8 (rec, cei, eiv, ive two each; ece none: each moves
+	// an e across an e), which 6; 2/22, a cost of ln 11. "teh" and
+	// "recieve" are adjacent swaps and "wich" a deletion, not moves.
 	tests := []struct {
 		name  string
 		typed string // the pair of the class, intended word want
 		want  string
 		cost  func(Backoff) float64
+		nats  float64
 	}{
-		{"affix", "oftenly", "often", func(b Backoff) float64 { return b.Affix }},
-		{"irregular", "teached", "taught", func(b Backoff) float64 { return b.Irregular }},
+		{"affix", "oftenly", "often", func(b Backoff) float64 { return b.Affix }, math.Log(3)},
+		{"irregular", "teached", "taught", func(b Backoff) float64 { return b.Irregular }, math.Log(3)},
+		{"moved", "tath", "that", func(b Backoff) float64 { return b.Moved }, math.Log(11)},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
@@ -109,8 +116,8 @@ func TestTrainWordErrorCosts(t *testing.T) {
 				{Typed: "wich", Intended: []string{"which"}},
 			}
 			m := TrainErrorModel(pairs, TrainOptions{})
-			if got, want := tc.cost(m.Backoff()), math.Log(3); math.Abs(got-want) > 1e-9 {
-				t.Errorf("%s cost = %v, want ln 3 = %v", tc.name, got, want)
+			if got := tc.cost(m.Backoff()); math.Abs(got-tc.nats) > 1e-9 {
+				t.Errorf("%s cost = %v, want %v", tc.name, got, tc.nats)
 			}
 		})
 	}
@@ -120,6 +127,7 @@ func TestParseErrorModelWordCosts(t *testing.T) {
 	classic := "@sub-vowel\t1\n@sub\t1\n@del\t1\n@del-double\t1\n@ins\t1\n@ins-double\t1\n@trans\t1\n"
 	affix := func(b Backoff) float64 { return b.Affix }
 	irregular := func(b Backoff) float64 { return b.Irregular }
+	moved := func(b Backoff) float64 { return b.Moved }
 	tests := []struct {
 		name, table string
 		wantErr     bool
@@ -134,6 +142,11 @@ func TestParseErrorModelWordCosts(t *testing.T) {
 		{"irregular missing: a table older than the line", classic + "@affix\t1\n", false, irregular, DefaultIrregularCost},
 		{"irregular negative", classic + "@affix\t1\n@irregular\t-1\n", true, irregular, 0},
 		{"irregular with a rule's fields", classic + "@affix\t1\n@irregular\tx\t1\n", true, irregular, 0},
+		{"moved given", classic + "@affix\t1\n@irregular\t1\n@moved\t4.5\n", false, moved, 4.5},
+		{"moved missing: a table older than the line", classic + "@affix\t1\n@irregular\t1\n", false, moved, DefaultMovedCost},
+		{"moved missing with affix and irregular", classic, false, moved, DefaultMovedCost},
+		{"moved negative", classic + "@moved\t-1\n", true, moved, 0},
+		{"moved twice the fields", classic + "@moved\t1\t1\n", true, moved, 0},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {

@@ -133,13 +133,15 @@ func (s segment) match() bool { return s.a == s.b }
 // typed word is the intended word's stem with another ending (see
 // isAffixError), and the irregular cost likewise for pairs whose typed
 // word is a verb's base with the regular past ending and whose intended
-// word is one of its irregular forms (isIrregularError). Training is
+// word is one of its irregular forms (isIrregularError), and the moved
+// cost likewise for pairs whose typed word is the intended one with a
+// letter moved two places (isMovedError). Training is
 // deterministic. Cost: O(total bytes × Window²).
 func TrainErrorModel(pairs []Pair, opts TrainOptions) *ErrorModel {
 	opts.defaults()
 	ruleCount := map[[2]string]int{}
 	var words []string
-	var nSubV, nSub, nDel, nDelDbl, nIns, nInsDbl, nTrans, nAffix, nIrregular, nPairs float64
+	var nSubV, nSub, nDel, nDelDbl, nIns, nInsDbl, nTrans, nAffix, nIrregular, nMoved, nMoves, nPairs float64
 	for _, p := range pairs {
 		typed := strings.ToLower(p.Typed)
 		best, bestD := "", math.MaxInt
@@ -162,6 +164,10 @@ func TrainErrorModel(pairs []Pair, opts TrainOptions) *ErrorModel {
 		if isIrregularError(typed, best) {
 			nIrregular++
 		}
+		if isMovedError(typed, best) {
+			nMoved++
+		}
+		nMoves += float64(countMoves(best))
 		words = append(words, best)
 		segs := align(best, typed)
 		seen := map[[2]string]bool{}
@@ -247,6 +253,7 @@ func TrainErrorModel(pairs []Pair, opts TrainOptions) *ErrorModel {
 		Trans:     lp(nTrans, nChars),
 		Affix:     lp(nAffix, nPairs),
 		Irregular: lp(nIrregular, nPairs),
+		Moved:     lp(nMoved, nMoves),
 	}
 	if opts.Discount == 0 {
 		opts.Discount = discount(ruleCount)
