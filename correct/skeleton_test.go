@@ -160,8 +160,9 @@ func TestSkeletonEditsByLength(t *testing.T) {
 		{"h and repeats dropped", "harrases", "rs", 0},
 		{"two consonants", "athenean", "tn", 0},
 		{"no consonant", "ayeee", "", 0},
-		{"three consonants", "paralely", "prl", 1},
+		{"three consonants", "paralely", "prl", 0},
 		{"four consonants", "tornadoe", "trnd", 1},
+		{"six consonants", "restarant", "rstrnt", 1},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
