@@ -159,15 +159,22 @@ type search struct {
 	skf  skelFilter
 	// kt, if not nil, restricts the depth-first walk (which must follow
 	// s.below) to the paths of a keyTrie (keywalk.go): at depth d it is
-	// at trie node ktAt[d]. kwt is what it points to when set.
+	// at trie node ktAt[d], and visitKeys prices children with the
+	// trie's sets (keysets.go). kwt is what it points to when set.
 	kt   *keyTrie
 	kwt  keyTrie
 	ktAt []int32
+	// ktSets and ktEbp are the letters-below sets of the keys' trie's
+	// nodes and parentBound's sets of its edges (keysets.go).
+	ktSets []belowSets
+	ktEbp  []uint32
 	// noParent turns off the check of parentBound (parentbound.go) before
 	// a child's row is computed, for comparison in tests and benchmarks.
 	noParent bool
 	// scanEdges makes the depth-first walk read every edge in its general
-	// loop instead of visitPicked, for comparison in tests.
+	// loop instead of visitPicked, and walk the keys' trie in that loop
+	// with the table's sets instead of visitKeys (keysets.go), for
+	// comparison in tests and benchmarks.
 	scanEdges bool
 }
 
@@ -419,6 +426,9 @@ func (s *search) run() {
 	if s.below != nil {
 		st = 0 // the start node
 	}
+	if s.kt != nil && !s.scanEdges {
+		s.prepareKeySets()
+	}
 	s.visit(0, st, 0)
 }
 
@@ -500,6 +510,10 @@ func (s *search) visit(d int, state int, acc uint64) {
 		prev, last = s.rows[(d-1)*w:d*w], s.path[d-1]
 	}
 	parts := s.act[s.actStart[d]:s.actEnd[d]]
+	if s.kt != nil && !s.scanEdges {
+		s.visitKeys(d, acc, prev, last, parts)
+		return
+	}
 	edges, lo, hi, set, haveSet, rs := s.listEdges(s.edges[d], state, &s.rsDepth[d], s.rows[d*w:(d+1)*w], prev, s.mins[d], last, parts)
 	s.edges[d] = edges
 	pn := s.partialNext(&s.pnDepth[d], parts)
