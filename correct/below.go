@@ -137,13 +137,13 @@ func (t *belowTable) final(i int) (bool, uint32) {
 // allocate about six times the table, 13.9 MB for the default model's
 // 2.4 MB table, and raised the peak RSS of a one-shot correction by about
 // 6 MB, measured, this project; BENCHMARKS.md). Cost: two edge listings
-// and one Final per state; 19 bytes of table per state (3 of them the
-// rest lengths, restlen.go) and 13 per edge (4 of them the set
+// and one Final per state; 24 bytes of table per state (8 of them the
+// rest lengths and skeleton look-ahead, restlen.go) and 13 per edge (4 of them the set
 // parentBound prices the edge's child with, ebp);
 // while building, 4 bytes per state (8 when a state does not fit 32 bits,
 // which costs a third walk) and a hash table of 4 bytes a slot, at most
 // half full (for the 74k-word SUBTLEX-US lexicon, 34,656 states and
-// 76,264 edges: a 1.24 MB table, 0.31 MB of ebp and 0.1 MB of rest
+// 76,264 edges: a 1.24 MB table, 0.31 MB of ebp and 0.28 MB of rest
 // lengths; before the rest lengths, 0.75 MB more while building and
 // 2.9 MB allocated in all).
 func newBelowTable(lex Lexicon, el EdgeLister) *belowTable {

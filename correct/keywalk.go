@@ -13,7 +13,8 @@ package correct
 // of work changes. The keys' walk is not counted by the cap
 // (Options.MaxStates; it is bounded by keyWalkMax instead). The weighted
 // walk then examines some of the prefixes the one walk would, in the same
-// order, so under the cap it finds the same words whenever the one walk
+// order (fewer since its bounds read the trie's own letter sets,
+// keysets.go), so under the cap it finds the same words whenever the one walk
 // would have finished, and more when the cap would have stopped that.
 
 // keyTrie is the set of paths of the lexicon's automaton (belowTable)
