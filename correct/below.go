@@ -469,19 +469,23 @@ func (s *search) prepareBelow() {
 	s.clsPos.fill(&s.posBit)
 	// stepCls[k][b]: the cheapest first step at k that needs an edge
 	// letter of class b: a substitution, a deletion, or a rule starting
-	// with it.
-	s.stepCls = s.stepCls[:0]
-	// Each position starts from stepBase (min picks one of its operands,
-	// so taking those terms first leaves every entry as it was).
+	// with it. Each position starts from stepBase (min picks one of its
+	// operands, so taking those terms first leaves every entry as it
+	// was). The entries are lowered in place: lowered in a copy on the
+	// stack and then appended, the append's 16-byte loads of the copy
+	// waited for the single-float stores before them (a load spanning
+	// narrower stores is not forwarded from the store buffer; round 18,
+	// BENCHMARKS.md).
+	s.stepCls = grow(s.stepCls, n)
 	for k := 0; k < n; k++ {
-		cls := s.stepBase
+		cls := &s.stepCls[k]
+		*cls = s.stepBase
 		for _, g := range s.subG[s.t[k]] {
 			for a := g.any; a != 0; a &= a - 1 {
 				b := bitIndex(a)
 				cls[b] = min(cls[b], g.cost)
 			}
 		}
-		s.stepCls = append(s.stepCls, cls)
 	}
 	for i := range s.rules {
 		r := &s.rules[i]

@@ -74,9 +74,17 @@ func (s *search) prepareStarts() {
 			c := sorted[i].c
 			m[c>>6] |= 1 << (c & 63)
 			if k := len(s.startTab); k > first && s.startTab[k-1].cost == sorted[i].cost {
-				s.startTab[k-1].mask = m
+				setMask(&s.startTab[k-1].mask, &m)
 			} else {
-				s.startTab = append(s.startTab, startStep{cost: sorted[i].cost, mask: m})
+				// Written in place, not as a literal copied from the
+				// stack (as in gatherRules).
+				if k == cap(s.startTab) {
+					s.startTab = append(s.startTab, startStep{})
+				}
+				s.startTab = s.startTab[:k+1]
+				st := &s.startTab[k]
+				st.cost = sorted[i].cost
+				setMask(&st.mask, &m)
 			}
 		}
 		lo = hi
@@ -92,6 +100,15 @@ func (s *search) prepareStarts() {
 		}
 		s.startMin[x] = v
 	}
+}
+
+// setMask copies src to dst one word at a time. src is being built by
+// single-word ORs; a copy in 16-byte halves (what the compiler emits for
+// an array assignment) reads each half across two of those stores, a
+// load the processor cannot forward from its store buffer, and waits for
+// the stores to complete (measured, round 18, BENCHMARKS.md).
+func setMask(dst, src *[4]uint64) {
+	dst[0], dst[1], dst[2], dst[3] = src[0], src[1], src[2], src[3]
 }
 
 // startEvent is the cheapest start of the rules of first intended byte c

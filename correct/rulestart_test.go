@@ -139,3 +139,27 @@ func TestPrepareStartsMatchRuleScan(t *testing.T) {
 		t.Fatal("no steps at all: the check is vacuous")
 	}
 }
+
+// TestSetMask checks setMask against an array assignment (the Go
+// language's copy semantics, the reference) on masks with one bit set in
+// each of the four words in turn and on random masks.
+func TestSetMask(t *testing.T) {
+	rng := rand.New(rand.NewPCG(3, 5))
+	var cases [][4]uint64
+	for w := range 4 {
+		var m [4]uint64
+		m[w] = 1 << (17 * w % 64)
+		cases = append(cases, m)
+	}
+	for range 50 {
+		cases = append(cases, [4]uint64{rng.Uint64(), rng.Uint64(), rng.Uint64(), rng.Uint64()})
+	}
+	for _, src := range cases {
+		var dst [4]uint64
+		setMask(&dst, &src)
+		want := src
+		if dst != want {
+			t.Errorf("setMask(%x) = %x", src, dst)
+		}
+	}
+}

@@ -351,8 +351,19 @@ func (s *search) gatherRules(ch *channel) {
 			// Bit x of starts: the typed side starts at x, ending at
 			// x+lb.
 			s.first[c] = append(s.first[c], ruleHead{cost: cr.cost, rule: int32(len(s.rules)), starts: ends >> lb})
-			s.rules = append(s.rules, appRule{src: int32(r), alpha: cr.alpha, la: len(cr.alpha), lb: lb, cost: cr.cost, ends: ends,
-				alphaBits: cr.alphaBits, next1: cr.next1, rest2: cr.rest2})
+			// The rule is written field by field into its slot: built
+			// as a composite literal, it was assembled on the stack by
+			// narrow stores and copied by 16-byte loads, which cannot be
+			// forwarded from those stores (measured, round 18,
+			// BENCHMARKS.md).
+			k := len(s.rules)
+			if k == cap(s.rules) {
+				s.rules = append(s.rules, appRule{})
+			}
+			s.rules = s.rules[:k+1]
+			ar := &s.rules[k]
+			ar.src, ar.alpha, ar.la, ar.lb, ar.cost, ar.ends = int32(r), cr.alpha, len(cr.alpha), lb, cr.cost, ends
+			ar.alphaBits, ar.next1, ar.rest2 = cr.alphaBits, cr.next1, cr.rest2
 		}
 		s.ruleSet[wi] = 0
 	}
