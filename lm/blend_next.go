@@ -102,14 +102,7 @@ func (t *thresholdSearch) runNext() {
 		t.wMax[si] = t.c.gamma[si] * t.st[si].max
 	}
 	t.nextCands()
-	for i := range res.buf[:res.n] {
-		res.buf[i].LogP = math.Log(res.buf[i].LogP)
-		// Two probabilities a rounding apart can share a logarithm:
-		// restore the order of ties (lower ID first).
-		for j := i; j > 0 && better(res.buf[j], res.buf[j-1]); j-- {
-			res.buf[j], res.buf[j-1] = res.buf[j-1], res.buf[j]
-		}
-	}
+	res.toLogs()
 }
 
 // bestOf fills tb (its k set by the caller) with the best entries of list
@@ -261,6 +254,19 @@ func (t *thresholdSearch) nextCands() {
 		t.res.push(Scored{ID: x.tok, LogP: v.blendProb(q, pb, &ev)})
 		if t.res.n == t.k {
 			t.kth = t.res.buf[t.k-1].LogP
+		}
+	}
+}
+
+// toLogs turns the blended probabilities a search held in b into their
+// logarithms, the scores TopK returns.
+func (b *topBuf) toLogs() {
+	for i := range b.buf[:b.n] {
+		b.buf[i].LogP = math.Log(b.buf[i].LogP)
+		// Two probabilities a rounding apart can share a logarithm:
+		// restore the order of ties (lower ID first).
+		for j := i; j > 0 && better(b.buf[j], b.buf[j-1]); j-- {
+			b.buf[j], b.buf[j-1] = b.buf[j-1], b.buf[j]
 		}
 	}
 }
