@@ -62,21 +62,9 @@ var (
 // runNext answers a next-word TopK into t.res (see the comment at the top
 // of this file); t.r is the whole vocabulary.
 func (t *thresholdSearch) runNext() {
-	v, q, r, k, res := t.v, t.q, t.r, t.k, t.res
+	v, q, k, res := t.v, t.q, t.k, t.res
 	res.n = 0
-	var base []Scored
-	if r.lo < r.hi {
-		ok := false
-		if t.memo != nil {
-			base, ok = t.memo.baseTop(r, k, t.base[:0])
-		}
-		if !ok {
-			base = v.base.topKNodes(q.nb[:q.nn], r.lo, r.hi, k, t.base[:0], &t.cands)
-			if t.memo != nil {
-				t.memo.setBase(base, k)
-			}
-		}
-	}
+	base := t.baseList(k)
 	if len(base) == k {
 		// Every base word outside the list scores at most as its last.
 		t.pbBound = math.Exp(base[k-1].LogP)

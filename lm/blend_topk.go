@@ -517,6 +517,26 @@ func (b *searchBufs) reset() {
 	b.seen.n, b.scored.n, b.cands.n = 0, 0, 0
 }
 
+// baseList returns the base model's m best words in t.r after t.q's
+// history: from the memo when it holds them, else from the model, and
+// then kept in the memo for the next keystrokes.
+func (t *thresholdSearch) baseList(m int) []Scored {
+	r := t.r
+	if r.lo >= r.hi {
+		return nil
+	}
+	if t.memo != nil {
+		if base, ok := t.memo.baseTop(r, m, t.base[:0]); ok {
+			return base
+		}
+	}
+	base := t.v.base.topKNodes(t.q.nb[:t.q.nn], r.lo, r.hi, m, t.base[:0], &t.cands)
+	if t.memo != nil {
+		t.memo.setBase(base, m)
+	}
+	return base
+}
+
 // run is the threshold search with a base list of m words (see
 // threshold). While it runs, res holds blended probabilities, and t.kth
 // is the k-th of them; they become logarithms once, at the end, and only
@@ -532,19 +552,7 @@ func (b *searchBufs) reset() {
 func (t *thresholdSearch) run(m int) bool {
 	v, q, r, k, res := t.v, t.q, t.r, t.k, t.res
 	res.n = 0
-	var base []Scored
-	if r.lo < r.hi {
-		ok := false
-		if t.memo != nil {
-			base, ok = t.memo.baseTop(r, m, t.base[:0])
-		}
-		if !ok {
-			base = v.base.topKNodes(q.nb[:q.nn], r.lo, r.hi, m, t.base[:0], &t.cands)
-			if t.memo != nil {
-				t.memo.setBase(base, m)
-			}
-		}
-	}
+	base := t.baseList(m)
 	baseDone := len(base) < m // every base word of the range is in base
 	for i, s := range base {
 		pb := math.Exp(s.LogP)
