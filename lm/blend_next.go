@@ -71,15 +71,7 @@ func (t *thresholdSearch) runNext() {
 	}
 	for _, s := range base {
 		t.seen.add(s.ID)
-		var ev evidence
-		if w := t.memo.word(s.ID); w != nil && w.hasEv {
-			ev = w.ev
-		} else {
-			ev = v.evidenceMemo(q, s.ID, t.memo)
-			if w = t.memo.add(s.ID); w != nil {
-				w.ev, w.hasEv = ev, true
-			}
-		}
+		ev := t.wordEvidence(s.ID)
 		res.push(Scored{ID: s.ID, LogP: v.blendProb(q, math.Exp(s.LogP), &ev)})
 	}
 	if res.n == k {

@@ -517,6 +517,20 @@ func (b *searchBufs) reset() {
 	b.seen.n, b.scored.n, b.cands.n = 0, 0, 0
 }
 
+// wordEvidence returns the user's evidence for word id after t.q's
+// history: from the memo when it holds it, else looked up and then kept
+// in the memo for the next keystrokes.
+func (t *thresholdSearch) wordEvidence(id uint32) evidence {
+	if w := t.memo.word(id); w != nil && w.hasEv {
+		return w.ev
+	}
+	ev := t.v.evidenceMemo(t.q, id, t.memo)
+	if w := t.memo.add(id); w != nil {
+		w.ev, w.hasEv = ev, true
+	}
+	return ev
+}
+
 // baseList returns the base model's m best words in t.r after t.q's
 // history: from the memo when it holds them, else from the model, and
 // then kept in the memo for the next keystrokes.
@@ -561,15 +575,7 @@ func (t *thresholdSearch) run(m int) bool {
 		}
 		t.seen.add(s.ID)
 		t.scored.add(s.ID)
-		var ev evidence
-		if w := t.memo.word(s.ID); w != nil && w.hasEv {
-			ev = w.ev
-		} else {
-			ev = v.evidenceMemo(q, s.ID, t.memo)
-			if w = t.memo.add(s.ID); w != nil {
-				w.ev, w.hasEv = ev, true
-			}
-		}
+		ev := t.wordEvidence(s.ID)
 		res.push(Scored{ID: s.ID, LogP: v.blendProb(q, pb, &ev)})
 	}
 	if res.n == k {
