@@ -64,21 +64,7 @@ func (s *search) extendKeys(d int, c byte, sets belowSets, pn *[4]uint64) int {
 		hi = lo // no partial match waits for c
 	}
 	next, below := sets.next(), sets.below()
-	for i := lo; i < hi; i++ {
-		p := s.act[i]
-		if p.next != c {
-			continue
-		}
-		r := &s.rules[p.rule]
-		p.k++
-		if int(p.k) == r.la {
-			s.done = append(s.done, p)
-		} else if rest := r.alpha[p.k:]; belowBit(rest[0])&next != 0 && classBits(rest[1:])&^below == 0 {
-			// Else no word below can use it (canFinish).
-			p.next = rest[0]
-			s.act = append(s.act, p)
-		}
-	}
+	s.extendParts(lo, hi, c, next, below)
 	m, budget := s.mins[d], s.budget
 	row := s.rows[d*s.w : (d+1)*s.w]
 	for _, f := range s.first[c] {

@@ -882,6 +882,29 @@ func (s *search) extend(lo, hi int, m float32, from int32, c byte) int {
 	return base
 }
 
+// extendParts moves the partial rule matches s.act[lo:hi] that wait for
+// byte c one byte on, for a child whose state has the letter sets next
+// (on its edges) and below: a match c completes goes to s.done, one that
+// some word below can still finish (canFinish, from the two sets) is
+// appended to s.act, and the others are dropped. extendBelow and
+// extendKeys share it.
+func (s *search) extendParts(lo, hi int, c byte, next, below uint32) {
+	for i := lo; i < hi; i++ {
+		p := s.act[i]
+		if p.next != c {
+			continue
+		}
+		r := &s.rules[p.rule]
+		p.k++
+		if int(p.k) == r.la {
+			s.done = append(s.done, p)
+		} else if rest := r.alpha[p.k:]; belowBit(rest[0])&next != 0 && classBits(rest[1:])&^below == 0 {
+			p.next = rest[0]
+			s.act = append(s.act, p)
+		}
+	}
+}
+
 // extendBelow is advance for visitPicked: it extends the partial rule
 // matches of depth d by byte c into depth d+1, for a child whose state
 // has the given sets, with pn the parent's partialNext set (nil when it
@@ -898,21 +921,7 @@ func (s *search) extendBelow(d int, c byte, sets belowSets, pn *[4]uint64, rs *s
 		hi = lo // no partial match waits for c
 	}
 	next, below := sets.next(), sets.below()
-	for i := lo; i < hi; i++ {
-		p := s.act[i]
-		if p.next != c {
-			continue
-		}
-		r := &s.rules[p.rule]
-		p.k++
-		if int(p.k) == r.la {
-			s.done = append(s.done, p)
-		} else if rest := r.alpha[p.k:]; belowBit(rest[0])&next != 0 && classBits(rest[1:])&^below == 0 {
-			// Else no word below can use it (canFinish).
-			p.next = rest[0]
-			s.act = append(s.act, p)
-		}
-	}
+	s.extendParts(lo, hi, c, next, below)
 	if rs.first[c>>6]&(1<<(c&63)) != 0 {
 		// Some rule starting with c fits the budget (rulestart.go).
 		m, budget, live := s.mins[d], s.budget, rs.at
