@@ -196,11 +196,7 @@ func TestFamilyCandidates(t *testing.T) {
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
-			cands, _ := c.Correct(tc.typed, nil, 5, nil)
-			var got []string
-			for _, cand := range cands {
-				got = append(got, cand.Word)
-			}
+			got := correctedWords(c, tc.typed)
 			if len(tc.want) > 0 && (len(got) == 0 || got[0] != tc.want[0]) {
 				t.Errorf("Correct(%q) = %v, want %q first", tc.typed, got, tc.want[0])
 			}
@@ -307,4 +303,15 @@ func TestFamilyTableMatchesLexicon(t *testing.T) {
 	if offered < 1000 {
 		t.Errorf("%d words offered in all; the comparison is too thin", offered)
 	}
+}
+
+// correctedWords returns the words of c's first five candidates for
+// typed, with no context.
+func correctedWords(c *Corrector, typed string) []string {
+	cands, _ := c.Correct(typed, nil, 5, nil)
+	got := make([]string, 0, len(cands))
+	for _, cand := range cands {
+		got = append(got, cand.Word)
+	}
+	return got
 }
