@@ -315,3 +315,28 @@ func correctedWords(c *Corrector, typed string) []string {
 	}
 	return got
 }
+
+// The defaults a table older than the "@irregular" or "@moved" line gets
+// are documented as the built-in table's values: a check that the
+// constants and the generated table agree.
+func TestDefaultWordCostsAreBuiltin(t *testing.T) {
+	em, err := BuiltinErrorModel()
+	if err != nil {
+		t.Fatal(err)
+	}
+	b := em.Backoff()
+	tests := []struct {
+		name          string
+		builtin, want float64
+	}{
+		{"irregular", b.Irregular, DefaultIrregularCost},
+		{"moved", b.Moved, DefaultMovedCost},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			if tc.builtin != tc.want {
+				t.Errorf("built-in %s cost = %v, default constant = %v: regenerate or update the constant", tc.name, tc.builtin, tc.want)
+			}
+		})
+	}
+}

@@ -53,18 +53,6 @@ func TestIrregularOfAllocs(t *testing.T) {
 	}
 }
 
-// DefaultIrregularCost, the cost a table older than the "@irregular" line
-// gets, is documented as the built-in table's value.
-func TestDefaultIrregularCostIsBuiltin(t *testing.T) {
-	em, err := BuiltinErrorModel()
-	if err != nil {
-		t.Fatal(err)
-	}
-	if got := em.Backoff().Irregular; got != DefaultIrregularCost {
-		t.Errorf("built-in Irregular = %v, DefaultIrregularCost = %v: regenerate or update the constant", got, DefaultIrregularCost)
-	}
-}
-
 func TestIrregularCandidates(t *testing.T) {
 	words := []string{"reached", "saw", "see", "seed", "seek", "seen", "shrink", "shrunk", "sought", "taught", "teach"}
 	lex := newFlatLex(words)

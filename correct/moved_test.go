@@ -116,18 +116,6 @@ func TestMovedOffInUnitChannel(t *testing.T) {
 	}
 }
 
-// DefaultMovedCost, the cost a table older than the "@moved" line gets,
-// is documented as the built-in table's value.
-func TestDefaultMovedCostIsBuiltin(t *testing.T) {
-	em, err := BuiltinErrorModel()
-	if err != nil {
-		t.Fatal(err)
-	}
-	if got := em.Backoff().Moved; got != DefaultMovedCost {
-		t.Errorf("built-in Moved = %v, DefaultMovedCost = %v: regenerate or update the constant", got, DefaultMovedCost)
-	}
-}
-
 // BenchmarkAddMoved times the moved-letter offers alone (addMoved) for
 // the 8-letter misspellings of BenchmarkCorrect8 over the SUBTLEX-US
 // lexicon as the engine reads it, with the corrector's copy of the
